@@ -171,3 +171,19 @@ class FileProblem:
 
     location: Location
     message: str
+
+
+@dataclass(frozen=True)
+class ExtractionContext:
+    """What the claims layer needs besides the file itself."""
+
+    named_conditions: tuple[NamedConditionSet, ...] = ()
+    roots: tuple[str, ...] = (".",)  # scanned roots (relative paths), where Python imports are resolved
+    unroll_limit: int = 256  # iterations of a `for ... in range(...)` loop unrolled at most
+    inline_depth: int = 16  # nested inlined calls at most
+
+    def named(self, name: str) -> NamedConditionSet | None:
+        for item in self.named_conditions:
+            if item.name == name:
+                return item
+        return None
