@@ -1,0 +1,248 @@
+"""The decision procedure: a claim's obligations -> proved / refuted / inconclusive, with evidence.
+
+For each obligation ``left == right`` under its conditions:
+1. without conditions, a random evaluation modulo a large prime refutes most false claims at once;
+2. the translation gives the difference f and the generators G (conditions and auxiliary equations);
+3. f reduces to 0 modulo a Groebner basis of G -> proved, with cofactors c such that f = sum c_i g_i
+   (method: expansion when no generator is needed, saturation when an inverse variable is, else ideal);
+   f**k reduces to 0 for a small k -> proved (radical);
+4. otherwise the counter-normal-form is shown, and the claim is refuted only if a real witness is found.
+A certificate is re-checked by plain expansion (``certificate.check_certificate``) before ``proved`` is
+returned; if that check fails the obligation is inconclusive, never proved.
+"""
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass
+from typing import Sequence
+
+from verifier.algebra.certificate import check_certificate, make_certificate, poly_to_data
+from verifier.algebra.groebner import GroebnerTimeout, groebner_basis, membership_cofactors, reduce
+from verifier.algebra.translate import Translation, TranslationError, translate
+from verifier.algebra.verdict import Certificate, Method, ObligationResult, Verdict, Witness
+from verifier.algebra.witness import differs_mod_p, find_witness
+from verifier.claims.model import Claim, Obligation
+
+_RANK = {"proved": 0, "inconclusive": 1, "refuted": 2, "error": 3}
+_METHOD_RANK = {None: -1, "expansion": 0, "ideal": 1, "saturation": 2, "radical": 3}
+_RADICAL_POWERS = (2, 3)
+_RADICAL_TERM_LIMIT = 60  # f**k of a larger difference is not worth the time
+
+
+@dataclass(frozen=True)
+class Limits:
+    timeout: float = 10.0  # seconds for one claim, all its obligations together
+    seed: int = 0  # for the random evaluation and the witness search (reproducible runs)
+
+
+class _OutOfTime(Exception):
+    pass
+
+
+def decide(claim: Claim, limits: Limits = Limits()) -> Verdict:
+    """Decide every obligation of ``claim`` and combine them into one verdict (the worst one wins)."""
+    start = time.monotonic()
+    if claim.problem is not None:
+        return Verdict(claim, claim.problem.verdict, None, claim.problem.message, None, None, (),
+                       round(time.monotonic() - start, 3))
+    if not claim.obligations:
+        return Verdict(claim, "inconclusive", None, "the claim produced nothing to check", None, None, (),
+                       round(time.monotonic() - start, 3))
+    deadline = start + limits.timeout
+    results: list[ObligationResult] = []
+    for index, obligation in enumerate(claim.obligations):
+        results.append(decide_obligation(obligation, deadline=deadline, seed=limits.seed + index,
+                                         timeout=limits.timeout))
+    return combine(claim, tuple(results), round(time.monotonic() - start, 3))
+
+
+def combine(claim: Claim, results: tuple[ObligationResult, ...], seconds: float) -> Verdict:
+    """One verdict for the claim from its obligations' results."""
+    worst = max(results, key=lambda r: _RANK[r.verdict])
+    assumed = tuple(dict.fromkeys(a for r in results for a in r.assumed))
+    if worst.verdict == "proved":
+        method = max((r.method for r in results), key=lambda m: _METHOD_RANK[m])
+        if len(results) == 1:
+            reason = worst.reason
+        else:
+            vacuous = [r.label for r in results if r.vacuous]
+            reason = f"all {len(results)} obligations proved"
+            if vacuous:
+                reason += f" ({', '.join(vacuous)}: vacuously, the conditions cannot all hold)"
+        return Verdict(claim, "proved", method, reason, None, None, assumed, seconds, results)
+    prefix = f"{worst.label}: " if worst.label and len(results) > 1 else ""
+    return Verdict(claim, worst.verdict, worst.method, prefix + worst.reason, worst.counter_normal_form,
+                   worst.witness, assumed, seconds, results)
+
+
+def decide_obligation(obligation: Obligation, *, deadline: float, seed: int = 0,
+                      timeout: float = 10.0) -> ObligationResult:
+    label = obligation.label
+    try:
+        return _decide(obligation, deadline, seed)
+    except TranslationError as exc:
+        return ObligationResult(label, "inconclusive", None, f"cannot be represented as polynomials: {exc}")
+    except (GroebnerTimeout, _OutOfTime):
+        return ObligationResult(label, "inconclusive", None,
+                                f"time limit of {timeout:g} s reached before a decision")
+    except RecursionError:
+        return ObligationResult(label, "inconclusive", None, "the expression is too deeply nested to translate")
+
+
+def _check_time(deadline: float) -> None:
+    if time.monotonic() > deadline:
+        raise _OutOfTime()
+
+
+def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
+    label = ob.label
+    notes = ob.notes
+    if not ob.conditions and differs_mod_p(ob.left, ob.right, seed=seed) is True:
+        # false as rational functions: look for a witness first, then the counter-normal-form if affordable
+        witness = find_witness(ob.left, ob.right, ob.conditions, deadline=deadline, seed=seed)
+        if witness is not None:
+            cnf, assumed = _normal_form_text(ob, deadline)
+            return ObligationResult(label, "refuted", None, _refuted_reason(notes), cnf, witness, assumed)
+    _check_time(deadline)
+    tr = translate(ob)
+    _check_time(deadline)
+    generators = [g.poly for g in tr.generators]
+    f = tr.difference
+    if not f:
+        return _proved(tr, label, "expansion", 1, tuple(tr.ring.zero for _ in generators),
+                       "both sides expand to the same polynomial")
+    basis_result = groebner_basis(generators, deadline=deadline) if generators else None
+    if basis_result is not None and _is_unit_ideal(basis_result.basis):
+        # the conditions have no common (complex, hence real) point: the claim holds vacuously
+        assert basis_result.cofactors is not None
+        one_cofactors = basis_result.cofactors[0]
+        scale = 1 / basis_result.basis[0].LC
+        cofactors = tuple(f * c * scale for c in one_cofactors)
+        return _proved(tr, label, _method_of(tr, cofactors), 1, cofactors,
+                       "the conditions cannot all hold (1 is in their ideal): proved vacuously", vacuous=True)
+    if basis_result is not None:
+        cofactors = membership_cofactors(f, basis_result, deadline=deadline)
+        if cofactors is not None:
+            method = _method_of(tr, cofactors)
+            return _proved(tr, label, method, 1, tuple(cofactors), _proved_reason(method, tr))
+        _, normal_form = reduce(f, basis_result.basis, deadline=deadline)
+        if len(f.terms()) <= _RADICAL_TERM_LIMIT:
+            for k in _RADICAL_POWERS:
+                _check_time(deadline)
+                power_cofactors = membership_cofactors(f**k, basis_result, deadline=deadline)
+                if power_cofactors is not None:
+                    return _proved(tr, label, "radical", k, tuple(power_cofactors),
+                                   f"(LEFT - RIGHT)**{k} lies in the ideal of the conditions, so LEFT - RIGHT "
+                                   "vanishes wherever they hold (radical membership)")
+    else:
+        normal_form = f
+    cnf = tr.printed(normal_form)
+    witness = find_witness(ob.left, ob.right, ob.conditions, deadline=deadline, seed=seed)
+    if witness is not None:
+        return ObligationResult(label, "refuted", None, _refuted_reason(notes), cnf, witness, tr.assumed)
+    reason = ("the counter-normal-form is not zero, but no real point where every condition holds and the "
+              "sides differ was found")
+    if _has_opaque(tr):
+        reason += "; the difference involves calls the tool cannot see into"
+    elif tr.sign_conditions or any(a.kind == "radical" for a in tr.aux):
+        reason += "; deciding it may need sign reasoning (inequalities, principal square roots)"
+    else:
+        reason += "; the counterexamples may all be complex, or the search ran out of time"
+    return ObligationResult(label, "inconclusive", None, reason, cnf, None, tr.assumed)
+
+
+def _refuted_reason(notes: Sequence[str]) -> str:
+    reason = "the sides differ at the witness, where every condition holds"
+    if notes:
+        reason += " (" + "; ".join(notes) + ")"
+    return reason
+
+
+def _normal_form_text(ob: Obligation, deadline: float) -> tuple[str, tuple[str, ...]]:
+    """The counter-normal-form for a claim already known to be false, within what time is left."""
+    try:
+        tr = translate(ob)
+        generators = [g.poly for g in tr.generators]
+        if not generators:
+            return tr.printed(tr.difference), tr.assumed
+        basis = groebner_basis(generators, track_cofactors=False, deadline=deadline).basis
+        _, normal_form = reduce(tr.difference, basis, deadline=deadline)
+        return tr.printed(normal_form), tr.assumed
+    except (TranslationError, GroebnerTimeout, _OutOfTime, RecursionError):
+        return ("(not computed within the time limit; the sides differ as rational functions, "
+                "checked at random points modulo a prime)"), ()
+
+
+def _is_unit_ideal(basis: Sequence) -> bool:
+    return len(basis) == 1 and basis[0].is_ground and bool(basis[0])
+
+
+def _method_of(tr: Translation, cofactors: Sequence) -> Method:
+    used = [g for g, c in zip(tr.generators, cofactors) if c]
+    if not used:
+        return "expansion"
+    if any(g.kind in ("inverse", "nonzero") for g in used):
+        return "saturation"
+    return "ideal"
+
+
+def _proved_reason(method: Method, tr: Translation) -> str:
+    if method == "expansion":
+        return "both sides expand to the same polynomial"
+    if method == "saturation":
+        return ("LEFT - RIGHT lies in the ideal of the conditions saturated by the non-zero conditions "
+                "(denominators and != conditions)")
+    return "LEFT - RIGHT lies in the ideal of the conditions"
+
+
+def _proved(tr: Translation, label: str, method: Method, power: int, cofactors: tuple, reason: str,
+            vacuous: bool = False) -> ObligationResult:
+    certificate = build_certificate(tr, power, cofactors)
+    if not check_certificate(certificate):
+        # never report a proof that does not re-check; this would be a bug in the engine
+        return ObligationResult(label, "inconclusive", None,
+                                "internal: the proof certificate failed its independent re-check",
+                                None, None, tr.assumed)
+    return ObligationResult(label, "proved", method, reason, None, None, tr.assumed, certificate, vacuous)
+
+
+def build_certificate(tr: Translation, power: int, cofactors: Sequence) -> Certificate:
+    return make_certificate(
+        tuple(str(s) for s in tr.ring.symbols),
+        tr.difference,
+        power,
+        tuple(g.poly for g in tr.generators),
+        tuple(cofactors),
+    )
+
+
+def _has_opaque(tr: Translation) -> bool:
+    return any(a.kind in ("opaque", "log") for a in tr.aux)
+
+
+def certificate_matches(claim: Claim, results: Sequence[ObligationResult]) -> bool:
+    """True when every result is a proof whose certificate belongs to this claim and re-checks.
+
+    Used to accept a proof read back from the cache: the claim is translated again (cheap, no Groebner
+    basis), the certificate's target and generators must be exactly this translation's, and the identity
+    is re-checked by plain expansion.
+    """
+    if claim.problem is not None or len(results) != len(claim.obligations) or not results:
+        return False
+    for obligation, result in zip(claim.obligations, results):
+        cert = result.certificate
+        if result.verdict != "proved" or cert is None:
+            return False
+        try:
+            tr = translate(obligation)
+        except (TranslationError, RecursionError):
+            return False
+        if cert.symbols != tuple(str(s) for s in tr.ring.symbols):
+            return False
+        if cert.target != poly_to_data(tr.difference):
+            return False
+        if cert.generators != tuple(poly_to_data(g.poly) for g in tr.generators):
+            return False
+        if not check_certificate(cert):
+            return False
+    return True
