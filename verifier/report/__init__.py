@@ -1,0 +1,36 @@
+"""Verdict objects -> reports (text, json, github, sarif, junit).  All formatting lives here."""
+from __future__ import annotations
+
+from collections.abc import Sequence
+from typing import Literal
+
+from verifier.algebra.verdict import Verdict
+from verifier.report.common import OnInconclusive, fails_run, ordered, summary_counts, summary_line
+from verifier.report.github import render_github
+from verifier.report.json_report import render_json
+from verifier.report.junit import render_junit
+from verifier.report.sarif import render_sarif
+from verifier.report.text import render_text
+
+Format = Literal["text", "json", "github", "sarif", "junit"]
+FORMATS: tuple[str, ...] = ("text", "json", "github", "sarif", "junit")
+
+
+def render(
+    verdicts: Sequence[Verdict], fmt: Format = "text", *, version: str, on_inconclusive: OnInconclusive = "fail"
+) -> str:
+    """The report of ``verdicts`` in format ``fmt``; ``on_inconclusive`` decides error vs warning levels."""
+    if fmt == "text":
+        return render_text(verdicts, version=version)
+    if fmt == "json":
+        return render_json(verdicts, version=version)
+    if fmt == "github":
+        return render_github(verdicts, version=version, on_inconclusive=on_inconclusive)
+    if fmt == "sarif":
+        return render_sarif(verdicts, version=version, on_inconclusive=on_inconclusive)
+    if fmt == "junit":
+        return render_junit(verdicts, version=version, on_inconclusive=on_inconclusive)
+    raise ValueError(f"unknown report format {fmt!r}; choose one of {', '.join(FORMATS)}")
+
+
+__all__ = ["FORMATS", "Format", "fails_run", "ordered", "render", "summary_counts", "summary_line"]

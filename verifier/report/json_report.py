@@ -1,0 +1,44 @@
+"""The machine-readable report of design.md; keys in the documented order, claims in report order."""
+from __future__ import annotations
+
+import json
+from collections.abc import Sequence
+from typing import Any
+
+from verifier.algebra.verdict import Verdict
+from verifier.report.common import ordered, summary_counts
+
+
+def claim_object(verdict: Verdict) -> dict[str, Any]:
+    claim = verdict.claim
+    witness = None
+    if verdict.witness is not None:
+        witness = {
+            "values": {name: value for name, value in verdict.witness.values},
+            "left": verdict.witness.left,
+            "right": verdict.witness.right,
+        }
+    return {
+        "id": claim.id,
+        "path": claim.location.path,
+        "line": claim.location.line,
+        "column": claim.location.column,
+        "kind": claim.kind,
+        "text": claim.text,
+        "verdict": verdict.verdict,
+        "method": verdict.method,
+        "reason": verdict.reason,
+        "counter_normal_form": verdict.counter_normal_form,
+        "witness": witness,
+        "assumed": list(verdict.assumed),
+        "seconds": round(verdict.seconds, 3),
+    }
+
+
+def render_json(verdicts: Sequence[Verdict], *, version: str) -> str:
+    document = {
+        "tool": {"name": "idealcheck", "version": version},
+        "claims": [claim_object(v) for v in ordered(verdicts)],
+        "summary": summary_counts(verdicts),
+    }
+    return json.dumps(document, indent=2, ensure_ascii=False) + "\n"
