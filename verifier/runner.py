@@ -11,6 +11,7 @@ of a parent that may hold threads); where that context is missing they are spawn
 """
 from __future__ import annotations
 
+import dataclasses
 import hashlib
 import multiprocessing
 import os
@@ -27,6 +28,7 @@ from verifier.claims.model import Claim, FileProblem, Problem
 # Seconds a worker may run past the claim's own time limit before it is killed: ``decide`` checks its
 # deadline itself and normally returns in time; the kill is for code that does not return.
 KILL_GRACE_SECONDS = 2.0
+DEFAULT_DECIDER = "verifier.runner:decide_with_engine"
 
 
 class VerdictCache(Protocol):
@@ -44,6 +46,7 @@ class RunOptions:
     progress: bool = False  # a progress line on stderr
     kill_grace: float = KILL_GRACE_SECONDS
     in_process: bool = False  # decide in this process, without limits (debugging and tests only)
+    decider: str = DEFAULT_DECIDER  # "module:function" taking (claim, timeout) -> Verdict; tests swap it
 
 
 # ---------------------------------------------------------------- claims from files
@@ -166,13 +169,24 @@ def _limit_memory(memory_mb: int) -> None:
         pass
 
 
-def decide_guarded(claim: Claim, timeout: float, memory_mb: int) -> Verdict:
-    """``decide`` with the failures that must not escape turned into verdicts."""
+def _resolve(decider: str) -> Callable[..., Verdict]:
+    import importlib
+
+    module_name, _, function_name = decider.partition(":")
+    return getattr(importlib.import_module(module_name), function_name)
+
+
+def decide_with_engine(claim: Claim, timeout: float) -> Verdict:
     from verifier.algebra.decide import Limits, decide
 
+    return decide(claim, Limits(timeout=timeout))
+
+
+def decide_guarded(claim: Claim, timeout: float, memory_mb: int, decider: str = DEFAULT_DECIDER) -> Verdict:
+    """``decide`` with the failures that must not escape turned into verdicts."""
     start = time.monotonic()
     try:
-        return decide(claim, Limits(timeout=timeout))
+        return _resolve(decider)(claim, timeout)
     except MemoryError:
         return limit_verdict(claim, memory_limit_reason(memory_mb), time.monotonic() - start)
     except RecursionError:
@@ -182,7 +196,7 @@ def decide_guarded(claim: Claim, timeout: float, memory_mb: int) -> Verdict:
         return Verdict(claim, "error", None, reason, None, None, (), round(time.monotonic() - start, 3))
 
 
-def _worker_main(conn: Connection, timeout: float, memory_mb: int) -> None:
+def _worker_main(conn: Connection, timeout: float, memory_mb: int, decider: str) -> None:
     _limit_memory(memory_mb)
     while True:
         try:
@@ -192,7 +206,7 @@ def _worker_main(conn: Connection, timeout: float, memory_mb: int) -> None:
         if task is None:
             return
         index, claim = task
-        verdict = decide_guarded(claim, timeout, memory_mb)
+        verdict = decide_guarded(claim, timeout, memory_mb, decider)
         try:
             conn.send((index, verdict))
         except MemoryError:
@@ -229,7 +243,7 @@ class _Pool:
     def start_worker(self) -> _Worker:
         parent, child = self.ctx.Pipe(duplex=True)
         process = self.ctx.Process(
-            target=_worker_main, args=(child, self.options.timeout, self.options.memory_mb), daemon=True
+            target=_worker_main, args=(child, self.options.timeout, self.options.memory_mb, self.options.decider), daemon=True
         )
         process.start()
         child.close()
@@ -298,7 +312,7 @@ def _decide_all(pending: list[tuple[int, Claim]], options: RunOptions, progress:
         return results
     if options.in_process:
         for index, claim in pending:
-            results[index] = decide_guarded(claim, options.timeout, options.memory_mb)
+            results[index] = decide_guarded(claim, options.timeout, options.memory_mb, options.decider)
             progress.step()
         return results
     size = max(1, min(options.jobs or os.cpu_count() or 1, len(pending)))
@@ -482,8 +496,5 @@ def check(request: CheckRequest) -> list[Verdict]:
             conditions=tuple(getattr(request.config, "conditions", ()) or ()),
             dependency_text=dependency_text,
         )
-        options = RunOptions(
-            timeout=options.timeout, memory_mb=options.memory_mb, jobs=options.jobs, cache=cache,
-            progress=options.progress, kill_grace=options.kill_grace, in_process=options.in_process,
-        )
+        options = dataclasses.replace(options, cache=cache)
     return run(claims, options)

@@ -1,0 +1,26 @@
+"""Stand-in decision functions for the runner tests: they misbehave on purpose, by claim text."""
+from __future__ import annotations
+
+import os
+import signal
+import time
+
+from verifier.algebra.verdict import Verdict
+from verifier.claims.model import Claim
+
+
+def misbehave(claim: Claim, timeout: float) -> Verdict:
+    text = claim.text
+    if text == "sleep forever":
+        while True:
+            time.sleep(1)
+    if text == "allocate 8 GB":
+        block = bytearray(8 * 1024**3)  # fails under the worker's address-space limit
+        return Verdict(claim, "proved", None, f"allocated {len(block)} bytes", None, None, (), 0.0)
+    if text == "kill myself":
+        os.kill(os.getpid(), signal.SIGKILL)
+    if text == "raise":
+        raise ValueError("deliberate failure")
+    if text.startswith("nap "):
+        time.sleep(float(text.split()[1]))
+    return Verdict(claim, "proved", "expansion", f"decided in process {os.getpid()}", None, None, (), 0.0)
