@@ -1,0 +1,366 @@
+"""The proof-carrying result cache.
+
+An entry is a JSON file under ``<cache_dir>/v1/<2 hex>/<key>.json``; the key is the sha256 of the claim's
+canonical form (the ``repr`` of its obligations, which are frozen dataclasses), the text of every file it
+depends on, the named condition sets and the tool version.  Only decisive results are stored (``proved``
+and ``refuted``).
+
+Nothing read back is trusted: the file may have been edited by hand or by an attacker.  It is parsed as
+JSON (never evaluated, never unpickled), checked field by field, and then
+- a ``proved`` obligation is accepted only if its certificate belongs to this claim's translation and
+  re-checks by plain expansion (``algebra.decide.certificate_matches``);
+- a ``refuted`` obligation only if its witness re-checks against the obligation
+  (``algebra.witness.check_witness``).
+The claim's verdict is then combined afresh from the accepted obligation results, so a flipped top-level
+field has no effect.  Any failure means a cache miss: the claim is decided again and the entry rewritten.
+"""
+from __future__ import annotations
+
+import hashlib
+import json
+import os
+import tempfile
+import time
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass, replace
+from pathlib import Path
+from typing import Any
+
+from verifier.algebra.verdict import Certificate, ObligationResult, Verdict, Witness
+from verifier.claims.model import Claim, NamedConditionSet
+
+FORMAT = 1
+_VERDICTS = ("proved", "refuted", "inconclusive", "error")
+_METHODS = (None, "expansion", "ideal", "saturation", "radical")
+CACHEDIR_TAG = "Signature: 8a477f597d28d172789f06886806bc55\n# idealcheck result cache; safe to delete.\n"
+
+
+class Invalid(Exception):
+    """A cache entry that does not have the expected shape."""
+
+
+# ---------------------------------------------------------------- key
+
+
+def claim_key(
+    claim: Claim,
+    *,
+    version: str,
+    conditions: Sequence[NamedConditionSet],
+    dependency_text: Callable[[str], str | None],
+) -> str:
+    """sha256 over everything a claim's verdict depends on (its location is deliberately left out)."""
+    dependencies = sorted(set(claim.dependencies) | {claim.location.path})
+    digests = []
+    for path in dependencies:
+        text = dependency_text(path)
+        digest = "missing" if text is None else hashlib.sha256(text.encode("utf-8", "surrogateescape")).hexdigest()
+        digests.append([path, digest])
+    material = json.dumps(
+        [
+            "idealcheck-result",
+            FORMAT,
+            version,
+            claim.kind,
+            claim.text,
+            repr(claim.obligations),
+            repr(claim.notes),
+            digests,
+            repr(tuple(conditions)),
+        ],
+        ensure_ascii=True,
+    )
+    return hashlib.sha256(material.encode("ascii")).hexdigest()
+
+
+# ---------------------------------------------------------------- JSON <-> results
+
+
+def _poly_to_json(poly: Any) -> list:
+    return [[coefficient, list(exponents)] for coefficient, exponents in poly]
+
+
+def _certificate_to_json(cert: Certificate) -> dict[str, Any]:
+    return {
+        "symbols": list(cert.symbols),
+        "target": _poly_to_json(cert.target),
+        "power": cert.power,
+        "generators": [_poly_to_json(g) for g in cert.generators],
+        "cofactors": [_poly_to_json(c) for c in cert.cofactors],
+    }
+
+
+def _witness_to_json(witness: Witness | None) -> dict[str, Any] | None:
+    if witness is None:
+        return None
+    return {
+        "values": [[name, value] for name, value in witness.values],
+        "left": witness.left,
+        "right": witness.right,
+        "exact": witness.exact,
+    }
+
+
+def result_to_json(result: ObligationResult) -> dict[str, Any]:
+    return {
+        "label": result.label,
+        "verdict": result.verdict,
+        "method": result.method,
+        "reason": result.reason,
+        "counter_normal_form": result.counter_normal_form,
+        "witness": _witness_to_json(result.witness),
+        "assumed": list(result.assumed),
+        "certificate": None if result.certificate is None else _certificate_to_json(result.certificate),
+        "vacuous": result.vacuous,
+    }
+
+
+def _str(value: Any) -> str:
+    if not isinstance(value, str):
+        raise Invalid("expected a string")
+    return value
+
+
+def _opt_str(value: Any) -> str | None:
+    return None if value is None else _str(value)
+
+
+def _int(value: Any) -> int:
+    if not isinstance(value, int) or isinstance(value, bool):
+        raise Invalid("expected an integer")
+    return value
+
+
+def _list(value: Any) -> list:
+    if not isinstance(value, list):
+        raise Invalid("expected a list")
+    return value
+
+
+def _poly_from_json(value: Any, width: int) -> tuple[tuple[str, tuple[int, ...]], ...]:
+    terms = []
+    for term in _list(value):
+        pair = _list(term)
+        if len(pair) != 2:
+            raise Invalid("a term is [coefficient, exponents]")
+        coefficient = _str(pair[0])
+        exponents = tuple(_int(e) for e in _list(pair[1]))
+        if len(exponents) != width or any(e < 0 for e in exponents):
+            raise Invalid("exponent vector of the wrong shape")
+        terms.append((coefficient, exponents))
+    return tuple(terms)
+
+
+def _certificate_from_json(value: Any) -> Certificate | None:
+    if value is None:
+        return None
+    if not isinstance(value, dict):
+        raise Invalid("certificate must be an object")
+    symbols = tuple(_str(s) for s in _list(value.get("symbols")))
+    width = len(symbols)
+    power = _int(value.get("power"))
+    if power < 1:
+        raise Invalid("certificate power must be >= 1")
+    generators = tuple(_poly_from_json(g, width) for g in _list(value.get("generators")))
+    cofactors = tuple(_poly_from_json(c, width) for c in _list(value.get("cofactors")))
+    if len(generators) != len(cofactors):
+        raise Invalid("one cofactor per generator")
+    return Certificate(symbols, _poly_from_json(value.get("target"), width), power, generators, cofactors)
+
+
+def _witness_from_json(value: Any) -> Witness | None:
+    if value is None:
+        return None
+    if not isinstance(value, dict):
+        raise Invalid("witness must be an object")
+    values = []
+    for item in _list(value.get("values")):
+        pair = _list(item)
+        if len(pair) != 2:
+            raise Invalid("a witness value is [name, value]")
+        values.append((_str(pair[0]), _str(pair[1])))
+    exact = value.get("exact")
+    if not isinstance(exact, bool):
+        raise Invalid("witness.exact must be a boolean")
+    return Witness(tuple(values), _str(value.get("left")), _str(value.get("right")), exact)
+
+
+def result_from_json(value: Any) -> ObligationResult:
+    if not isinstance(value, dict):
+        raise Invalid("an obligation result must be an object")
+    verdict = value.get("verdict")
+    method = value.get("method")
+    if verdict not in _VERDICTS or method not in _METHODS:
+        raise Invalid("unknown verdict or method")
+    vacuous = value.get("vacuous", False)
+    if not isinstance(vacuous, bool):
+        raise Invalid("vacuous must be a boolean")
+    return ObligationResult(
+        label=_str(value.get("label")),
+        verdict=verdict,
+        method=method,
+        reason=_str(value.get("reason")),
+        counter_normal_form=_opt_str(value.get("counter_normal_form")),
+        witness=_witness_from_json(value.get("witness")),
+        assumed=tuple(_str(a) for a in _list(value.get("assumed"))),
+        certificate=_certificate_from_json(value.get("certificate")),
+        vacuous=vacuous,
+    )
+
+
+# ---------------------------------------------------------------- re-checking what was read
+
+
+def _proof_holds(claim: Claim, index: int, result: ObligationResult) -> bool:
+    from verifier.algebra.decide import certificate_matches
+
+    single = replace(claim, obligations=(claim.obligations[index],))
+    try:
+        return bool(certificate_matches(single, (result,)))
+    except Exception:  # a malformed certificate that slipped through the shape checks: not a proof
+        return False
+
+
+def _rechecked_refutation(claim: Claim, index: int, result: ObligationResult) -> ObligationResult | None:
+    """The result with its witness re-verified (sides recomputed), or None if the witness does not refute."""
+    from verifier.algebra.witness import check_witness
+
+    if result.witness is None or result.counter_normal_form is None:
+        return None
+    names = [name for name, _value in result.witness.values]
+    if len(set(names)) != len(names):
+        return None
+    obligation = claim.obligations[index]
+    try:
+        witness = check_witness(obligation.left, obligation.right, obligation.conditions, dict(result.witness.values))
+    except Exception:  # an unreadable value is not a witness
+        return None
+    if not isinstance(witness, Witness):
+        return None
+    return replace(result, witness=witness)
+
+
+def accept(claim: Claim, results: Sequence[ObligationResult], seconds: float) -> Verdict | None:
+    """The verdict rebuilt from results read back from the cache, or None if any check fails."""
+    from verifier.algebra.decide import combine
+
+    if claim.problem is not None or len(results) != len(claim.obligations) or not results:
+        return None
+    checked: list[ObligationResult] = []
+    for index, (obligation, result) in enumerate(zip(claim.obligations, results)):
+        if result.label != obligation.label:
+            return None
+        if result.verdict == "proved":
+            if not _proof_holds(claim, index, result):
+                return None
+        elif result.verdict == "refuted":
+            rechecked = _rechecked_refutation(claim, index, result)
+            if rechecked is None:
+                return None
+            result = rechecked
+        elif result.verdict != "inconclusive":
+            return None
+        checked.append(result)
+    verdict = combine(claim, tuple(checked), round(seconds, 3))
+    if verdict.verdict not in ("proved", "refuted"):
+        return None
+    return replace(verdict, cached=True)
+
+
+# ---------------------------------------------------------------- the cache
+
+
+@dataclass
+class CacheStats:
+    hits: int = 0
+    misses: int = 0
+    rejected: int = 0  # entries that were read but failed validation or the re-check
+    stored: int = 0
+
+
+class ResultCache:
+    """Results of decided claims on disk, re-checked on every read."""
+
+    def __init__(
+        self,
+        directory: str | os.PathLike[str],
+        *,
+        version: str,
+        conditions: Sequence[NamedConditionSet] = (),
+        dependency_text: Callable[[str], str | None],
+    ) -> None:
+        self.directory = Path(directory)
+        self.version = version
+        self.conditions = tuple(conditions)
+        self.dependency_text = dependency_text
+        self.stats = CacheStats()
+        self._keys: dict[str, str] = {}
+
+    def key(self, claim: Claim) -> str:
+        if claim.id not in self._keys:
+            self._keys[claim.id] = claim_key(
+                claim, version=self.version, conditions=self.conditions, dependency_text=self.dependency_text
+            )
+        return self._keys[claim.id]
+
+    def entry_path(self, claim: Claim) -> Path:
+        key = self.key(claim)
+        return self.directory / f"v{FORMAT}" / key[:2] / f"{key}.json"
+
+    def load(self, claim: Claim) -> Verdict | None:
+        if claim.problem is not None or not claim.obligations:
+            return None
+        start = time.monotonic()
+        path = self.entry_path(claim)
+        try:
+            raw = path.read_text(encoding="utf-8")
+        except (OSError, UnicodeDecodeError):
+            self.stats.misses += 1
+            return None
+        verdict = None
+        try:
+            document = json.loads(raw)
+            if not isinstance(document, dict) or document.get("format") != FORMAT:
+                raise Invalid("not a cache entry of this format")
+            if document.get("key") != self.key(claim):
+                raise Invalid("entry of another claim")
+            results = tuple(result_from_json(r) for r in _list(document.get("obligations")))
+            verdict = accept(claim, results, time.monotonic() - start)
+        except (Invalid, ValueError, TypeError, RecursionError):
+            verdict = None
+        if verdict is None:
+            self.stats.rejected += 1
+            return None
+        self.stats.hits += 1
+        return verdict
+
+    def store(self, claim: Claim, verdict: Verdict) -> None:
+        if verdict.verdict not in ("proved", "refuted") or not verdict.obligations or verdict.cached:
+            return
+        document = {
+            "format": FORMAT,
+            "key": self.key(claim),
+            "tool_version": self.version,
+            "claim": claim.id,
+            "text": claim.text,
+            "verdict": verdict.verdict,  # informative only: the verdict is recombined on reading
+            "obligations": [result_to_json(r) for r in verdict.obligations],
+        }
+        path = self.entry_path(claim)
+        try:
+            self._prepare()
+            path.parent.mkdir(parents=True, exist_ok=True)
+            handle, temporary = tempfile.mkstemp(dir=path.parent, prefix=".tmp-", suffix=".json")
+            with os.fdopen(handle, "w", encoding="utf-8") as out:
+                json.dump(document, out, ensure_ascii=False, indent=1)
+            os.replace(temporary, path)
+            self.stats.stored += 1
+        except OSError:
+            pass  # a read-only or full disk costs speed, never correctness
+
+    def _prepare(self) -> None:
+        if (self.directory / "CACHEDIR.TAG").exists():
+            return
+        self.directory.mkdir(parents=True, exist_ok=True)
+        (self.directory / "CACHEDIR.TAG").write_text(CACHEDIR_TAG, encoding="utf-8")
+        (self.directory / ".gitignore").write_text("# written by idealcheck\n*\n", encoding="utf-8")
