@@ -1,0 +1,88 @@
+"""Sampled floating-point accuracy of the two sides of an identity (algebra/accuracy.py)."""
+from __future__ import annotations
+
+import math
+from claim_exprs import cond, expr
+
+from verifier.algebra.accuracy import (
+    AccuracySettings,
+    estimate_accuracy,
+    float_value,
+    reference_value,
+    ulp_error,
+)
+from verifier.claims.model import Obligation
+
+NAIVE_ROOT = "(-b + sqrt(b*b - 4*a*c))/(2*a)"
+CONJUGATE_ROOT = "2*c/(-b - sqrt(b*b - 4*a*c))"
+NEAR_CANCELLATION = AccuracySettings(samples=200, seed=1, ranges=(("a", 0.5, 2.0), ("b", 1e3, 1e6), ("c", 0.5, 2.0)))
+
+
+def test_naive_quadratic_root_is_less_accurate_near_cancellation():
+    # Goldberg, "What Every Computer Scientist Should Know About Floating-Point Arithmetic", ACM Computing
+    # Surveys 23(1), 1991, section 1.4 (equations (4) and (5), numbers from memory): when b*b >> 4*a*c the
+    # naive formula subtracts nearly equal numbers; the conjugate form avoids the cancellation.
+    estimate = estimate_accuracy(Obligation(expr(NAIVE_ROOT), expr(CONJUGATE_ROOT)), NEAR_CANCELLATION)
+    assert estimate.samples == 200
+    assert estimate.more_accurate == "right"
+    assert estimate.left.median_ulps > 1000 * max(estimate.right.median_ulps, 1.0)
+    # both sides of the conjugate form round a few operations only: a handful of ulps at worst
+    assert estimate.right.worst_ulps < 16
+    # written the other way round, the ranking follows the expression, not the position
+    flipped = estimate_accuracy(Obligation(expr(CONJUGATE_ROOT), expr(NAIVE_ROOT)), NEAR_CANCELLATION)
+    assert flipped.more_accurate == "left"
+
+
+def test_reproducible_with_a_seed_and_different_with_another():
+    ob = Obligation(expr(NAIVE_ROOT), expr(CONJUGATE_ROOT))
+    first = estimate_accuracy(ob, NEAR_CANCELLATION)
+    again = estimate_accuracy(ob, NEAR_CANCELLATION)
+    other = estimate_accuracy(ob, AccuracySettings(samples=200, seed=2, ranges=NEAR_CANCELLATION.ranges))
+    assert first == again
+    assert first.left.worst_point != other.left.worst_point
+
+
+def test_float_evaluation_follows_the_written_order():
+    # 1e16 + 1 rounds to 1e16 (the spacing of doubles there is 2, ties to even), so (x + y) - x is 0 while
+    # y + (x - x) is 1 (IEEE 754 round to nearest even, common practice); the exact value is 1
+    values = {"x": 1e16, "y": 1.0}
+    assert float_value(expr("(x + y) - x"), values) == 0.0
+    assert float_value(expr("y + (x - x)"), values) == 1.0
+    assert reference_value(expr("(x + y) - x"), values) == 1
+    assert ulp_error(0.0, reference_value(expr("(x + y) - x"), values)) == 1 / math.ulp(1.0)
+
+
+def test_exact_double_result_has_no_error():
+    assert ulp_error(0.5, reference_value(expr("x/2"), {"x": 1.0})) == 0.0
+    # 0.1 is the exact decimal 1/10 in a claim; the double 0.1 is off by less than half an ulp (IEEE 754)
+    error = ulp_error(float_value(expr("0.1"), {}), reference_value(expr("0.1"), {}))
+    assert 0 < error <= 0.5
+
+
+def test_equation_conditions_are_met_by_solving():
+    # Heron's area with s defined by an equation: the sampler solves for s, so the two forms agree closely
+    left = "sqrt(s*(s - a)*(s - b)*(s - c))"
+    right = "sqrt((a + b + c)*(-a + b + c)*(a - b + c)*(a + b - c))/4"
+    ob = Obligation(expr(left), expr(right), (cond("s == (a + b + c)/2"),))
+    settings = AccuracySettings(samples=50, seed=3, default_range=(0.1, 2.0))
+    estimate = estimate_accuracy(ob, settings)
+    assert estimate.equations_solved == ("s",)
+    assert estimate.samples == 50
+    assert estimate.rejected > 0  # points that are not triangles make a radicand negative
+    for _, value in estimate.left.worst_point:
+        assert isinstance(value, float)
+    point = dict(estimate.left.worst_point)
+    assert abs(point["s"] - (point["a"] + point["b"] + point["c"]) / 2) <= 4 * math.ulp(point["s"])
+
+
+def test_sign_conditions_reject_points():
+    ob = Obligation(expr("sqrt(x)**2"), expr("x"), (cond("x > 1"),))
+    estimate = estimate_accuracy(ob, AccuracySettings(samples=30, seed=0, default_range=(-4.0, 4.0)))
+    assert estimate.samples == 30 and estimate.rejected > 0
+    assert all(value > 1 for name, value in estimate.left.worst_point)
+
+
+def test_impossible_conditions_measure_nothing():
+    ob = Obligation(expr("x"), expr("x"), (cond("x > 5"),))
+    estimate = estimate_accuracy(ob, AccuracySettings(samples=5, seed=0, default_range=(0.0, 1.0)))
+    assert estimate.samples == 0 and estimate.problem

@@ -1,0 +1,330 @@
+"""Sampled floating-point accuracy of the two sides of a proved identity.
+
+Both sides are evaluated in IEEE double arithmetic in exactly the order the expression tree gives (the
+order the source writes it: ``a + b + c`` is ``(a + b) + c``) and exactly (rationals, or mpmath at high
+precision when a step is irrational) at the same double inputs.  The error of a side at a point is
+``|computed - exact| / ulp(exact rounded to double)``.  Points are drawn uniformly from per-variable ranges
+with a seeded generator; equation conditions are met by solving for some variables with mpmath, and the
+other conditions by rejection.  This is a sampled estimate, not a bound.
+"""
+from __future__ import annotations
+
+import math
+import random
+import statistics
+from dataclasses import dataclass, field
+from fractions import Fraction
+from typing import Callable, Mapping, Sequence
+
+import mpmath
+from mpmath import mp, mpf
+
+from verifier.algebra.evaluate import DomainError, NotEvaluable, exact_value, numeric_value, postorder, variables
+from verifier.claims.model import BinOp, Call, Condition, Expr, Neg, Num, Obligation, Opaque, Pow, Var
+
+EXACT_DIGITS = 60  # decimal digits of the reference value when it is irrational
+DEFAULT_SAMPLES = 2000
+DEFAULT_RANGE = (-10.0, 10.0)
+_ATTEMPTS_PER_SAMPLE = 20
+
+
+class NotMeasurable(Exception):
+    """The obligation cannot be sampled (opaque calls, no point satisfying the conditions, ...)."""
+
+
+@dataclass(frozen=True)
+class AccuracySettings:
+    samples: int = DEFAULT_SAMPLES
+    seed: int = 0
+    default_range: tuple[float, float] = DEFAULT_RANGE
+    ranges: tuple[tuple[str, float, float], ...] = ()  # per-variable (name, low, high)
+
+    def range_of(self, name: str) -> tuple[float, float]:
+        for variable, low, high in self.ranges:
+            if variable == name:
+                return low, high
+        return self.default_range
+
+
+@dataclass(frozen=True)
+class SideAccuracy:
+    median_ulps: float
+    worst_ulps: float
+    worst_point: tuple[tuple[str, float], ...]  # the double inputs where the worst error occurred
+    worst_computed: float
+    worst_exact: str  # the exact value there, as a decimal with 17 significant digits
+    non_finite: int = 0  # samples where the double evaluation overflowed or was undefined
+
+
+@dataclass(frozen=True)
+class AccuracyEstimate:
+    label: str  # the obligation's label
+    samples: int  # points used
+    rejected: int  # drawn points that failed a condition or a domain rule
+    left: SideAccuracy | None
+    right: SideAccuracy | None
+    more_accurate: str | None  # "left", "right" or None (equal on these samples, or not measured)
+    equations_solved: tuple[str, ...] = ()  # variables computed from equation conditions
+    problem: str | None = None  # why nothing was measured
+    notes: tuple[str, ...] = field(default=())
+
+
+# ---------------------------------------------------------------- double evaluation in source order
+
+
+def _fma(a: float, b: float, c: float) -> float:
+    fma = getattr(math, "fma", None)
+    if fma is not None:
+        return fma(a, b, c)
+    return float(Fraction(a) * Fraction(b) + Fraction(c))  # one rounding, like a hardware fma
+
+
+def float_value(expr: Expr, values: Mapping[str, float]) -> float:
+    """``expr`` evaluated in IEEE double, operation by operation in tree order (Python float semantics).
+
+    Raises ArithmeticError/ValueError where Python's float arithmetic does (division by zero, sqrt of a
+    negative number, overflow in ``**`` or ``exp``) and NotEvaluable for opaque calls.
+    """
+    results: dict[int, float] = {}
+    for node in postorder(expr):
+        results[id(node)] = _float_node(node, lambda n: results[id(n)], values)
+    return results[id(expr)]
+
+
+def _float_node(node: Expr, value: Callable[[Expr], float], point: Mapping[str, float]) -> float:
+    if isinstance(node, Num):
+        return float(node.value)
+    if isinstance(node, Var):
+        return float(point[node.name])
+    if isinstance(node, Neg):
+        return -value(node.operand)
+    if isinstance(node, BinOp):
+        a, b = value(node.left), value(node.right)
+        if node.op == "+":
+            return a + b
+        if node.op == "-":
+            return a - b
+        if node.op == "*":
+            return a * b
+        if node.op == "/":
+            return a / b
+        raise ValueError(f"unknown operator {node.op!r}")
+    if isinstance(node, Pow):
+        base = value(node.base)
+        exponent = Fraction(node.exponent)
+        if exponent.denominator == 1:
+            k = exponent.numerator
+            if k < 0:
+                return 1.0 / (base ** (-k)) if base != 0 else _raise_zero_division()
+            return base**k
+        if base < 0:
+            raise ValueError("negative base of a fractional power")
+        return base ** float(exponent)
+    if isinstance(node, Call):
+        args = [value(a) for a in node.args]
+        f = node.function
+        if f == "sqrt":
+            return math.sqrt(args[0])
+        if f == "hypot":
+            return math.hypot(args[0], args[1])
+        if f == "fma":
+            return _fma(args[0], args[1], args[2])
+        if f in ("sin", "cos", "tan", "exp", "log"):
+            return getattr(math, f)(args[0])
+        raise ValueError(f"unknown function {f!r}")
+    if isinstance(node, Opaque):
+        raise NotEvaluable(f"opaque call {node.name}")
+    raise ValueError(f"unknown expression node {type(node).__name__}")
+
+
+def _raise_zero_division() -> float:
+    raise ZeroDivisionError("division by zero")
+
+
+# ---------------------------------------------------------------- exact evaluation and ulps
+
+
+def reference_value(expr: Expr, values: Mapping[str, float]) -> mpf:
+    """The exact value of ``expr`` at the double inputs, as an mpf with ``EXACT_DIGITS`` digits."""
+    point = {name: Fraction(v) for name, v in values.items()}
+    exact = exact_value(expr, point)
+    with mp.workdps(EXACT_DIGITS):
+        if exact is not None:
+            return mpf(exact.numerator) / exact.denominator
+        return numeric_value(expr, point, EXACT_DIGITS)
+
+
+def ulp_error(computed: float, exact: mpf) -> float:
+    """``|computed - exact|`` in units in the last place of ``exact`` rounded to double."""
+    with mp.workdps(EXACT_DIGITS):
+        if not math.isfinite(computed):
+            return math.inf
+        rounded = float(exact)
+        unit = math.ulp(rounded) if math.isfinite(rounded) else math.ulp(math.copysign(1.7976931348623157e308, rounded))
+        return float(abs(mpf(computed) - exact) / mpf(unit))
+
+
+# ---------------------------------------------------------------- sampling points that satisfy the conditions
+
+
+def _condition_holds(condition: Condition, point: Mapping[str, float]) -> bool:
+    """Exact check (at the double inputs) of a != or sign condition; equations are handled by solving."""
+    left = reference_value(condition.left, point)
+    right = reference_value(condition.right, point)
+    with mp.workdps(EXACT_DIGITS):
+        d = left - right
+        r = condition.relation
+        if r == "!=":
+            return d != 0
+        if r == "<":
+            return d < 0
+        if r == "<=":
+            return d <= 0
+        if r == ">":
+            return d > 0
+        if r == ">=":
+            return d >= 0
+    return True
+
+
+def _plan_equations(equations: Sequence[Condition], names: Sequence[str]) -> list[str]:
+    """One distinct variable per equation to solve for (later variables first: they are usually derived)."""
+    chosen: list[str] = []
+    for condition in equations:
+        candidates = sorted(variables(condition.left) | variables(condition.right), key=names.index, reverse=True)
+        pick = next((v for v in candidates if v not in chosen), None)
+        if pick is None:
+            raise NotMeasurable(f"cannot choose a variable to solve the condition {condition.text} for")
+        chosen.append(pick)
+    return chosen
+
+
+def _solve(equations: Sequence[Condition], unknowns: Sequence[str], point: dict[str, float], rng: random.Random,
+           settings: AccuracySettings) -> bool:
+    """Complete ``point`` with values of ``unknowns`` that satisfy ``equations`` (numerically, then rounded)."""
+    if not equations:
+        return True
+
+    def residuals(*xs):
+        values = dict(point)
+        values.update({u: x for u, x in zip(unknowns, xs)})
+        return [numeric_value(c.left, values, 30) - numeric_value(c.right, values, 30) for c in equations]
+
+    start = [rng.uniform(*settings.range_of(u)) for u in unknowns]
+    try:
+        with mp.workdps(30):
+            if len(unknowns) == 1:
+                roots = [mpmath.findroot(lambda x: residuals(x)[0], start[0])]
+            else:
+                roots = list(mpmath.findroot(lambda *xs: residuals(*xs), start))
+    except (ValueError, ZeroDivisionError, DomainError, OverflowError, ArithmeticError, NotEvaluable):
+        return False
+    for u, root in zip(unknowns, roots):
+        if mpmath.im(root) != 0:
+            return False
+        value = float(mpmath.re(root))
+        if not math.isfinite(value):
+            return False
+        point[u] = value
+    return True
+
+
+def _sample_point(
+    names: Sequence[str], equations: Sequence[Condition], unknowns: Sequence[str], others: Sequence[Condition],
+    rng: random.Random, settings: AccuracySettings,
+) -> dict[str, float] | None:
+    point = {n: rng.uniform(*settings.range_of(n)) for n in names if n not in unknowns}
+    if not _solve(equations, unknowns, point, rng, settings):
+        return None
+    try:
+        for condition in others:
+            if not _condition_holds(condition, point):
+                return None
+    except (DomainError, ZeroDivisionError, ArithmeticError, ValueError):
+        return None
+    return point
+
+
+# ---------------------------------------------------------------- the estimate
+
+
+def _summary(errors: list[tuple[float, dict[str, float], float, mpf]], non_finite: int, names: Sequence[str]) -> SideAccuracy:
+    worst = max(errors, key=lambda e: e[0])
+    with mp.workdps(EXACT_DIGITS):
+        exact_text = mpmath.nstr(worst[3], 17)
+    return SideAccuracy(
+        median_ulps=float(statistics.median(e[0] for e in errors)),
+        worst_ulps=worst[0],
+        worst_point=tuple((n, worst[1][n]) for n in names if n in worst[1]),
+        worst_computed=worst[2],
+        worst_exact=exact_text,
+        non_finite=non_finite,
+    )
+
+
+def _side_error(expr: Expr, point: Mapping[str, float]) -> tuple[float, float, mpf] | None:
+    """(ulp error, computed, exact) or None when the exact value is undefined at the point."""
+    try:
+        exact = reference_value(expr, point)
+    except (DomainError, ZeroDivisionError, ArithmeticError, ValueError):
+        return None
+    try:
+        computed = float_value(expr, point)
+    except (ZeroDivisionError, OverflowError, ValueError, ArithmeticError):
+        computed = math.nan
+    return ulp_error(computed, exact), computed, exact
+
+
+def estimate_accuracy(obligation: Obligation, settings: AccuracySettings = AccuracySettings()) -> AccuracyEstimate:
+    """Sample ``settings.samples`` points satisfying the obligation's conditions and compare both sides."""
+    label = obligation.label
+    exprs = [obligation.left, obligation.right] + [e for c in obligation.conditions for e in (c.left, c.right)]
+    if any(isinstance(node, Opaque) for e in exprs for node in postorder(e)):
+        return AccuracyEstimate(label, 0, 0, None, None, None, problem="the claim calls functions the tool cannot evaluate")
+    names = sorted(set().union(*(variables(e) for e in exprs)))
+    equations = [c for c in obligation.conditions if c.relation == "=="]
+    others = [c for c in obligation.conditions if c.relation != "=="]
+    try:
+        unknowns = _plan_equations(equations, names)
+    except NotMeasurable as exc:
+        return AccuracyEstimate(label, 0, 0, None, None, None, problem=str(exc))
+    rng = random.Random(settings.seed)
+    left_errors: list[tuple[float, dict[str, float], float, mpf]] = []
+    right_errors: list[tuple[float, dict[str, float], float, mpf]] = []
+    non_finite = [0, 0]
+    rejected = 0
+    attempts = 0
+    used = 0
+    while used < settings.samples and attempts < settings.samples * _ATTEMPTS_PER_SAMPLE:
+        attempts += 1
+        point = _sample_point(names, equations, unknowns, others, rng, settings)
+        if point is None:
+            rejected += 1
+            continue
+        left = _side_error(obligation.left, point)
+        right = _side_error(obligation.right, point)
+        if left is None or right is None:
+            rejected += 1
+            continue
+        used += 1
+        for side, (error, computed, exact), errors in ((0, left, left_errors), (1, right, right_errors)):
+            if math.isinf(error):
+                non_finite[side] += 1
+            errors.append((error, point, computed, exact))
+    if not used:
+        return AccuracyEstimate(label, 0, rejected, None, None, None, tuple(unknowns),
+                                problem="no sampled point satisfied every condition and domain rule")
+    left_summary = _summary(left_errors, non_finite[0], names)
+    right_summary = _summary(right_errors, non_finite[1], names)
+    return AccuracyEstimate(label, used, rejected, left_summary, right_summary,
+                            _more_accurate(left_summary, right_summary), tuple(unknowns))
+
+
+def _more_accurate(left: SideAccuracy, right: SideAccuracy) -> str | None:
+    """The side with the smaller median error; the worst error breaks a tie."""
+    for a, b in ((left.median_ulps, right.median_ulps), (left.worst_ulps, right.worst_ulps)):
+        if a < b:
+            return "left"
+        if b < a:
+            return "right"
+    return None
