@@ -1,0 +1,45 @@
+"""Test helper: Python-syntax text -> claim expression trees (whitelisted ast nodes only, no eval).
+
+The project's claim-language parser lives in the claims layer; the witness tests build their trees with
+this small stand-in so that they do not depend on it.
+"""
+from __future__ import annotations
+
+import ast
+from fractions import Fraction
+
+from verifier.claims.model import BinOp, Call, Condition, Expr, Neg, Num, Pow, Var
+
+_OPS = {ast.Add: "+", ast.Sub: "-", ast.Mult: "*", ast.Div: "/"}
+_RELATIONS = {ast.Eq: "==", ast.NotEq: "!=", ast.Lt: "<", ast.LtE: "<=", ast.Gt: ">", ast.GtE: ">="}
+
+
+def _build(node: ast.AST) -> Expr:
+    if isinstance(node, ast.Constant) and isinstance(node.value, (int, float)):
+        return Num(Fraction(str(node.value)))
+    if isinstance(node, ast.Name):
+        return Var(node.id)
+    if isinstance(node, ast.UnaryOp) and isinstance(node.op, ast.USub):
+        return Neg(_build(node.operand))
+    if isinstance(node, ast.BinOp) and isinstance(node.op, ast.Pow):
+        exponent = _build(node.right)
+        if isinstance(exponent, Neg) and isinstance(exponent.operand, Num):
+            return Pow(_build(node.left), -exponent.operand.value)
+        assert isinstance(exponent, Num)
+        return Pow(_build(node.left), exponent.value)
+    if isinstance(node, ast.BinOp) and type(node.op) in _OPS:
+        return BinOp(_OPS[type(node.op)], _build(node.left), _build(node.right))  # type: ignore[arg-type]
+    if isinstance(node, ast.Call) and isinstance(node.func, ast.Name):
+        return Call(node.func.id, tuple(_build(a) for a in node.args))
+    raise ValueError(f"unsupported syntax {ast.dump(node)}")
+
+
+def expr(text: str) -> Expr:
+    return _build(ast.parse(text, mode="eval").body)
+
+
+def cond(text: str) -> Condition:
+    tree = ast.parse(text, mode="eval").body
+    assert isinstance(tree, ast.Compare) and len(tree.ops) == 1
+    relation = _RELATIONS[type(tree.ops[0])]
+    return Condition(relation, _build(tree.left), _build(tree.comparators[0]), text)  # type: ignore[arg-type]

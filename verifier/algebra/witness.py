@@ -1,0 +1,677 @@
+"""Counterexample search and checking: a real point where every condition holds and the sides differ.
+
+A claim is refuted only with a witness returned from here, so the check is strict:
+- a rational point is checked in exact rational arithmetic whenever every value stays rational;
+- otherwise with mpmath at two precisions (60 and 120 digits).  Equation conditions are first refined
+  by Newton steps (minimum-norm, on all their variables) starting from the given point; the refinement
+  must move the point by almost nothing, end with a tiny residual and a Jacobian of full row rank (a
+  regular point, so a true solution lies right beside the printed one).  Strict inequalities, ``!=``
+  and the difference of the sides must be clearly non-zero, with the same value at both precisions.
+The search tries small rationals, random rationals of varied signs and scales, exact solutions of
+equations that are affine in one variable, and Newton solutions of the equations from random starts.
+Everything is deterministic for a given seed (up to the deadline).
+"""
+from __future__ import annotations
+
+import random
+import re
+import time
+from dataclasses import dataclass
+from fractions import Fraction
+from itertools import islice, product
+from typing import Iterator, Mapping, Sequence, Union
+
+import mpmath
+from mpmath import mp, mpf
+
+from verifier.algebra.evaluate import (
+    DomainError,
+    NotEvaluable,
+    exact_value,
+    has_opaque,
+    numeric_value,
+    postorder,
+    tiny,
+    to_mpf,
+    variables,
+)
+from verifier.algebra.verdict import Witness
+from verifier.claims.model import BinOp, Call, Condition, Expr, Neg, Num, Opaque, Pow, Var
+
+Real = Union[mpf, Fraction]
+
+# ---------------------------------------------------------------- random evaluation modulo a prime
+
+_PRIME = 2**61 - 1  # a Mersenne prime
+
+
+class _ZeroDivisorModP(Exception):
+    pass
+
+
+class _Unsupported(Exception):
+    pass
+
+
+def _mod_value(expr: Expr, point: Mapping[str, int]) -> int:
+    p = _PRIME
+    results: dict[int, int] = {}
+    for node in postorder(expr):
+        if isinstance(node, Num):
+            value = Fraction(node.value)
+            if value.denominator % p == 0:
+                raise _Unsupported()
+            r = value.numerator % p * pow(value.denominator, -1, p) % p
+        elif isinstance(node, Var):
+            r = point[node.name]
+        elif isinstance(node, Neg):
+            r = -results[id(node.operand)] % p
+        elif isinstance(node, BinOp):
+            a, b = results[id(node.left)], results[id(node.right)]
+            if node.op == "+":
+                r = (a + b) % p
+            elif node.op == "-":
+                r = (a - b) % p
+            elif node.op == "*":
+                r = a * b % p
+            elif node.op == "/":
+                if b == 0:
+                    raise _ZeroDivisorModP()
+                r = a * pow(b, -1, p) % p
+            else:
+                raise _Unsupported()
+        elif isinstance(node, Pow):
+            exponent = Fraction(node.exponent)
+            if exponent.denominator != 1:
+                raise _Unsupported()
+            base, k = results[id(node.base)], exponent.numerator
+            if k < 0:
+                if base == 0:
+                    raise _ZeroDivisorModP()
+                base, k = pow(base, -1, p), -k
+            r = pow(base, k, p)
+        elif isinstance(node, Call) and node.function == "fma":
+            a, b, c = (results[id(x)] for x in node.args)
+            r = (a * b + c) % p
+        else:
+            raise _Unsupported()
+        results[id(node)] = r
+    return results[id(expr)]
+
+
+def differs_mod_p(left: Expr, right: Expr, *, seed: int = 0, trials: int = 3) -> bool | None:
+    """True when the two rational expressions differ at a random point modulo 2**61-1 (so they differ
+    as rational functions), False when they agree at ``trials`` points, None when an expression uses
+    anything but + - * /, integer powers and fma, or no point with non-zero denominators was found."""
+    rng = random.Random(seed)
+    names = sorted(variables(left) | variables(right))
+    agreed = 0
+    attempts = 0
+    while agreed < trials:
+        attempts += 1
+        if attempts > 4 * trials + 8:
+            return None  # denominators keep vanishing (perhaps identically zero)
+        point = {name: rng.randrange(1, _PRIME) for name in names}
+        try:
+            a = _mod_value(left, point)
+            b = _mod_value(right, point)
+        except _Unsupported:
+            return None
+        except _ZeroDivisorModP:
+            continue
+        if a != b:
+            return True
+        agreed += 1
+    return False
+
+
+# ---------------------------------------------------------------- problem data
+
+_LOW, _HIGH = 60, 120  # the two precisions of the numeric check (decimal digits)
+_MARGIN = mpf(10) ** -20  # relative margin for "clearly different"
+_CONSISTENT = mpf(10) ** -10  # relative agreement of a difference between the two precisions
+_MAX_MOVE = mpf(10) ** -25  # how far (relative) the refinement may move a checked point
+_RANK_TOLERANCE = mpf(10) ** -12  # smallest singular value of the Jacobian, relative to max(1, largest entry)
+_VALUE_DIGITS = 40  # significant digits of an irrational witness value
+_SIDE_DIGITS = 20  # significant digits of the printed sides
+
+
+@dataclass(frozen=True)
+class _Problem:
+    left: Expr
+    right: Expr
+    equations: tuple[Condition, ...]
+    others: tuple[Condition, ...]
+    names: tuple[str, ...]
+    equation_names: tuple[str, ...]  # variables that occur in some non-constant equation
+
+
+def _problem(left: Expr, right: Expr, conditions: Sequence[Condition]) -> _Problem | None:
+    exprs = [left, right] + [e for c in conditions for e in (c.left, c.right)]
+    if any(has_opaque(e) for e in exprs):
+        return None
+    names: set[str] = set()
+    for e in exprs:
+        names |= variables(e)
+    equations: list[Condition] = []
+    seen: set[tuple[Expr, Expr]] = set()
+    for c in conditions:
+        if c.relation != "==":
+            continue
+        key = (c.left, c.right)
+        if key in seen:  # a repeated equation would make the Jacobian singular
+            continue
+        seen.add(key)
+        equations.append(c)
+    equation_names: set[str] = set()
+    for c in equations:
+        equation_names |= variables(c.left) | variables(c.right)
+    return _Problem(left, right, tuple(equations), tuple(c for c in conditions if c.relation != "=="),
+                    tuple(sorted(names)), tuple(sorted(equation_names)))
+
+
+# ---------------------------------------------------------------- exact check
+
+
+def _holds_exactly(relation: str, a: Fraction, b: Fraction) -> bool:
+    return {
+        "==": a == b,
+        "!=": a != b,
+        "<": a < b,
+        "<=": a <= b,
+        ">": a > b,
+        ">=": a >= b,
+    }[relation]
+
+
+def _exact_check(problem: _Problem, point: Mapping[str, Fraction]) -> tuple[str, Witness | None]:
+    """("witness", w) / ("fails", None) / ("numeric", None) when exact arithmetic cannot decide."""
+    undecided = False
+    equations_fail = False
+    for c in problem.equations + problem.others:
+        a = exact_value(c.left, point)
+        b = exact_value(c.right, point)
+        if a is None or b is None:
+            undecided = True
+            continue
+        if not _holds_exactly(c.relation, a, b):
+            if c.relation != "==":
+                return "fails", None
+            equations_fail = True  # a decimal point may lie next to a true solution: refine numerically
+    left = exact_value(problem.left, point)
+    right = exact_value(problem.right, point)
+    if left is None or right is None:
+        undecided = True
+    if undecided or equations_fail:
+        return "numeric", None
+    if left == right:
+        return "fails", None
+    values = tuple((name, _fraction_text(point[name])) for name in problem.names)
+    return "witness", Witness(values, _fraction_text(left), _fraction_text(right), True)
+
+
+def _fraction_text(x: Fraction) -> str:
+    return str(x.numerator) if x.denominator == 1 else f"{x.numerator}/{x.denominator}"
+
+
+# ---------------------------------------------------------------- numeric check
+
+
+def _scale(*xs: mpf) -> mpf:
+    return max([mpf(1)] + [abs(x) for x in xs])
+
+
+def _residuals(equations: Sequence[Condition], point: Mapping[str, Real], prec: int) -> list[tuple[mpf, mpf]]:
+    """(left - right, size) for each equation."""
+    out = []
+    for c in equations:
+        a = numeric_value(c.left, point, prec)
+        b = numeric_value(c.right, point, prec)
+        out.append((a - b, _scale(a, b)))
+    return out
+
+
+def _jacobian(equations: Sequence[Condition], point: dict[str, mpf], unknowns: Sequence[str],
+              prec: int) -> mpmath.matrix:
+    """Central differences with step 10**-(prec/3) (error ~ 10**-(2 prec/3), enough for Newton)."""
+    jac = mpmath.matrix(len(equations), len(unknowns))
+    for j, name in enumerate(unknowns):
+        x = point[name]
+        h = mpf(10) ** (-(prec // 3)) * _scale(x)
+        plus = dict(point)
+        plus[name] = x + h
+        minus = dict(point)
+        minus[name] = x - h
+        rp = _residuals(equations, plus, prec)
+        rm = _residuals(equations, minus, prec)
+        for i in range(len(equations)):
+            jac[i, j] = (rp[i][0] - rm[i][0]) / (2 * h)
+    return jac
+
+
+def _min_singular_ratio(jac: mpmath.matrix) -> mpf:
+    """Smallest singular value over max(1, largest entry): 0 when the rows are dependent, tiny near a
+    singular point such as x = 1e-70 of x**2 == 0 (where no true solution need lie next to the point)."""
+    rows, cols = jac.rows, jac.cols
+    if rows > cols:
+        return mpf(0)
+    largest = max(abs(jac[i, j]) for i in range(rows) for j in range(cols))
+    if largest == 0:
+        return mpf(0)
+    largest = max(largest, mpf(1))
+    singular = mpmath.svd_r(jac, compute_uv=False)
+    return min(abs(singular[i]) for i in range(rows)) / largest
+
+
+def _newton(equations: Sequence[Condition], start: Mapping[str, Real], unknowns: Sequence[str], prec: int,
+            iterations: int = 30, deadline: float | None = None) -> dict[str, mpf] | None:
+    """Minimum-norm Newton steps on ``unknowns`` until the residuals are below 10**-(0.8 prec) (relative);
+    None when that fails or the Jacobian at the end does not have full row rank."""
+    with mp.workdps(prec + 10):
+        point: dict[str, mpf] = {name: to_mpf(v) for name, v in start.items()}
+        eps = tiny(prec)
+        for _ in range(iterations):
+            if deadline is not None and time.monotonic() > deadline:
+                return None
+            try:
+                res = _residuals(equations, point, prec)
+                if all(abs(r) <= eps * s for r, s in res):
+                    jac = _jacobian(equations, point, unknowns, prec)
+                    if _min_singular_ratio(jac) < _RANK_TOLERANCE:
+                        return None
+                    return point
+                jac = _jacobian(equations, point, unknowns, prec)
+                f = mpmath.matrix([r for r, _ in res])
+                gram = jac * jac.T
+                step = jac.T * mpmath.lu_solve(gram, f)
+            except (DomainError, ZeroDivisionError):
+                return None
+            except ValueError:  # singular matrix in lu_solve
+                return None
+            for j, name in enumerate(unknowns):
+                point[name] = point[name] - step[j]
+                if not mpmath.isfinite(point[name]) or abs(point[name]) > mpf(10) ** 12:
+                    return None
+        return None
+
+
+def _numeric_difference(a: mpf, b: mpf) -> tuple[mpf, mpf]:
+    return a - b, max(abs(a), abs(b))
+
+
+def _numeric_pass(problem: _Problem, point: Mapping[str, Real], prec: int
+                  ) -> tuple[list[mpf], mpf, mpf] | None:
+    """At one precision: refine, check equations and non-strict conditions, and return the differences
+    of the strict conditions and of the sides (to be compared across precisions) plus the sides."""
+    current: Mapping[str, Real] = point
+    if problem.equations:
+        unknowns = list(problem.equation_names)
+        refined = _newton(problem.equations, point, unknowns, prec)
+        if refined is None:
+            return None
+        with mp.workdps(prec):
+            for name in unknowns:
+                start = to_mpf(point[name])
+                if abs(refined[name] - start) > _MAX_MOVE * _scale(start):
+                    return None
+        current = refined
+    eps = tiny(prec)
+    strict: list[mpf] = []
+    with mp.workdps(prec):
+        for c in problem.others:
+            a = numeric_value(c.left, current, prec)
+            b = numeric_value(c.right, current, prec)
+            d, size = _numeric_difference(a, b)
+            if c.relation in ("<=", ">="):
+                signed = d if c.relation == ">=" else -d
+                if signed < -eps * _scale(a, b):
+                    return None
+                continue
+            signed = {"!=": abs(d), ">": d, "<": -d}[c.relation]
+            if signed <= _MARGIN * size or signed <= 0:
+                return None
+            strict.append(d)
+        left = numeric_value(problem.left, current, prec)
+        right = numeric_value(problem.right, current, prec)
+        d, size = _numeric_difference(left, right)
+        if d == 0 or abs(d) <= _MARGIN * size:
+            return None
+        strict.append(d)
+    return strict, left, right
+
+
+def _consistent(low: mpf, high: mpf) -> bool:
+    with mp.workdps(_HIGH):
+        return low != 0 and high != 0 and abs(low - high) <= _CONSISTENT * abs(high)
+
+
+def _verify(problem: _Problem, point: Mapping[str, Fraction], texts: Mapping[str, str]) -> Witness | None:
+    try:
+        outcome, witness = _exact_check(problem, point)
+        if outcome == "witness":
+            return witness
+        if outcome == "fails":
+            return None
+        low = _numeric_pass(problem, point, _LOW)
+        if low is None:
+            return None
+        high = _numeric_pass(problem, point, _HIGH)
+        if high is None:
+            return None
+    except (DomainError, NotEvaluable, ZeroDivisionError, KeyError):
+        return None
+    if len(low[0]) != len(high[0]) or not all(_consistent(a, b) for a, b in zip(low[0], high[0])):
+        return None
+    values = tuple((name, texts[name]) for name in problem.names)
+    with mp.workdps(_HIGH):
+        left_text = mpmath.nstr(high[1], _SIDE_DIGITS)
+        right_text = mpmath.nstr(high[2], _SIDE_DIGITS)
+    return Witness(values, left_text, right_text, False)
+
+
+# ---------------------------------------------------------------- parsing witness values
+
+_INTEGER = re.compile(r"[+-]?[0-9]{1,400}")
+_RATIO = re.compile(r"([+-]?[0-9]{1,400})/([0-9]{1,400})")
+_DECIMAL = re.compile(r"([+-]?)([0-9]{0,400})\.?([0-9]{0,400})(?:[eE]([+-]?[0-9]{1,4}))?")
+
+
+def parse_value(text: str) -> Fraction | None:
+    """An integer, "p/q" or a decimal (optionally with an exponent) as an exact Fraction; None otherwise."""
+    text = text.strip()
+    if not text or len(text) > 900:
+        return None
+    if _INTEGER.fullmatch(text):
+        return Fraction(int(text))
+    m = _RATIO.fullmatch(text)
+    if m:
+        denominator = int(m.group(2))
+        if denominator == 0:
+            return None
+        return Fraction(int(m.group(1)), denominator)
+    m = _DECIMAL.fullmatch(text)
+    if m and (m.group(2) or m.group(3)):
+        exponent = int(m.group(4) or 0)
+        if abs(exponent) > 400:
+            return None
+        digits = (m.group(2) or "") + (m.group(3) or "")
+        value = Fraction(int(digits)) / 10 ** len(m.group(3) or "")
+        value *= Fraction(10) ** exponent
+        return -value if m.group(1) == "-" else value
+    return None
+
+
+def check_witness(left: Expr, right: Expr, conditions: Sequence[Condition],
+                  values: Mapping[str, str]) -> Witness | None:
+    """Re-check a witness given as text (integers, "p/q" or decimals; nothing is evaluated as code).
+    Returns the checked Witness, or None when it is malformed, incomplete or does not refute the claim."""
+    problem = _problem(left, right, conditions)
+    if problem is None or set(values) != set(problem.names):
+        return None
+    point: dict[str, Fraction] = {}
+    texts: dict[str, str] = {}
+    for name in problem.names:
+        text = values[name]
+        if not isinstance(text, str):
+            return None
+        parsed = parse_value(text)
+        if parsed is None:
+            return None
+        point[name] = parsed
+        texts[name] = text.strip()
+    return _verify(problem, point, texts)
+
+
+def _witness_from(problem: _Problem, point: Mapping[str, Real]) -> Witness | None:
+    """Print a candidate (exact values as fractions, others with 40 digits) and check what is printed."""
+    texts: dict[str, str] = {}
+    exact: dict[str, Fraction] = {}
+    for name in problem.names:
+        v = point[name]
+        if isinstance(v, Fraction):
+            texts[name] = _fraction_text(v)
+            exact[name] = v
+        else:
+            with mp.workdps(_VALUE_DIGITS + 10):
+                text = mpmath.nstr(v, _VALUE_DIGITS, strip_zeros=True, min_fixed=-6, max_fixed=12)
+            parsed = parse_value(text)
+            if parsed is None:
+                return None
+            texts[name] = text
+            exact[name] = parsed
+    return _verify(problem, exact, texts)
+
+
+# ---------------------------------------------------------------- the search
+
+_SMALL = [Fraction(0), Fraction(1), Fraction(-1), Fraction(2), Fraction(-2), Fraction(1, 2), Fraction(3),
+          Fraction(-1, 2), Fraction(1, 3), Fraction(-3), Fraction(3, 2), Fraction(5), Fraction(-2, 3),
+          Fraction(7), Fraction(1, 5)]
+
+
+def _small_rational(rng: random.Random) -> Fraction:
+    return rng.choice(_SMALL[1:])
+
+
+def _random_rational(rng: random.Random, size: int) -> Fraction:
+    """A random fraction with numerator and denominator up to 10**size, times a random power of 10."""
+    bound = 10**size
+    value = Fraction(rng.randint(1, bound), rng.randint(1, bound))
+    if rng.random() < 0.3:
+        value *= Fraction(10) ** rng.randint(-3, 3)
+    return -value if rng.random() < 0.5 else value
+
+
+def _rational_points(problem: _Problem, rng: random.Random) -> Iterator[dict[str, Fraction]]:
+    names = problem.names
+    n = len(names)
+    if n == 0:
+        yield {}
+        return
+    # (a) every combination of the simplest values first
+    k = 2
+    while (k + 1) ** n <= 256 and k < len(_SMALL):
+        k += 1
+    for combo in islice(product(_SMALL[:k], repeat=n), 256):
+        yield dict(zip(names, combo))
+    # then random small values, then random fractions of growing size with varied signs and scales
+    for _ in range(150):
+        yield {name: rng.choice(_SMALL) for name in names}
+    for size in range(1, 6):
+        for _ in range(40):
+            yield {name: _random_rational(rng, size) for name in names}
+
+
+def _degree(expr: Expr, name: str) -> int | None:
+    """The degree of ``expr`` in ``name`` when it is polynomial in it (an upper bound), else None."""
+    degrees: dict[int, int | None] = {}
+    for node in postorder(expr):
+        if isinstance(node, Num):
+            d: int | None = 0
+        elif isinstance(node, Var):
+            d = 1 if node.name == name else 0
+        elif isinstance(node, Neg):
+            d = degrees[id(node.operand)]
+        elif isinstance(node, BinOp):
+            a, b = degrees[id(node.left)], degrees[id(node.right)]
+            if a is None or b is None:
+                d = None
+            elif node.op in ("+", "-"):
+                d = max(a, b)
+            elif node.op == "*":
+                d = a + b
+            else:
+                d = a if b == 0 else None
+        elif isinstance(node, Pow):
+            base = degrees[id(node.base)]
+            e = Fraction(node.exponent)
+            if base == 0:
+                d = 0
+            elif base is None or e.denominator != 1 or e < 0:
+                d = None
+            else:
+                d = base * int(e)
+        else:
+            d = 0 if all(degrees[id(a)] == 0 for a in node.args) else None
+            if isinstance(node, Call) and node.function == "fma" and d is None:
+                a, b, c = (degrees[id(x)] for x in node.args)
+                d = None if None in (a, b, c) else max(a + b, c)  # type: ignore[operator]
+        degrees[id(node)] = d
+    return degrees[id(expr)]
+
+
+def _choose_unknowns(problem: _Problem, rng: random.Random) -> list[str] | None:
+    """One distinct variable per equation, preferring variables of low degree (linear ones first)."""
+    chosen: list[str] = []
+    for c in problem.equations:
+        candidates = sorted(variables(c.left) | variables(c.right))
+        candidates = [v for v in candidates if v not in chosen]
+        if not candidates:
+            return None
+        rng.shuffle(candidates)
+
+        def rank(v: str) -> int:
+            dl, dr = _degree(c.left, v), _degree(c.right, v)
+            d = None if dl is None or dr is None else max(dl, dr)
+            return 1000 if d is None else d
+
+        candidates.sort(key=rank)
+        chosen.append(candidates[0])
+    return chosen
+
+
+def _exact_solutions(problem: _Problem, rng: random.Random, tries: int) -> Iterator[dict[str, Fraction]]:
+    """Equations affine in their chosen variable, solved exactly by a secant step (Gauss-Seidel rounds)."""
+    for _ in range(tries):
+        unknowns = _choose_unknowns(problem, rng)
+        if unknowns is None:
+            return
+        point = {name: (_small_rational(rng) if rng.random() < 0.6 else _random_rational(rng, 2))
+                 for name in problem.names}
+        ok = True
+        for _round in range(3):
+            for c, name in zip(problem.equations, unknowns):
+                try:
+                    values = []
+                    for t in (Fraction(0), Fraction(1)):
+                        trial = dict(point)
+                        trial[name] = t
+                        a, b = exact_value(c.left, trial), exact_value(c.right, trial)
+                        if a is None or b is None:
+                            raise DomainError("irrational")
+                        values.append(a - b)
+                except (DomainError, ZeroDivisionError):
+                    ok = False
+                    break
+                if values[1] == values[0]:
+                    ok = False
+                    break
+                point[name] = -values[0] / (values[1] - values[0])
+            if not ok:
+                break
+        if ok:
+            yield point
+
+
+def _numeric_solutions(problem: _Problem, rng: random.Random, tries: int,
+                       deadline: float) -> Iterator[dict[str, Real]]:
+    """Equations solved by Newton's method at 50 digits from random starts: square systems in one chosen
+    variable per equation (the others fixed at random rationals), and every other try minimum-norm steps
+    on all the equations' variables.  A root that is a small fraction is offered exactly first."""
+    for attempt in range(tries):
+        if time.monotonic() > deadline:
+            return
+        unknowns = _choose_unknowns(problem, rng)
+        fixed = {name: (_small_rational(rng) if rng.random() < 0.5 else _random_rational(rng, 2))
+                 for name in problem.names}
+        plans: list[list[str]] = []
+        if unknowns is not None:
+            plans.append(unknowns)
+        if attempt % 2 == 1 or unknowns is None:
+            plans.append(list(problem.equation_names))
+        for plan in plans:
+            start: dict[str, Real] = dict(fixed)
+            for name in plan:
+                start[name] = Fraction(rng.uniform(-3, 3) * 10 ** rng.randint(-1, 1)).limit_denominator(10**6)
+            root = _newton(problem.equations, start, plan, 50, iterations=25, deadline=deadline)
+            if root is None:
+                continue
+            candidate: dict[str, Real] = dict(fixed)
+            candidate.update({name: root[name] for name in plan})
+            rounded = dict(candidate)
+            for name in plan:
+                with mp.workdps(50):
+                    rounded[name] = Fraction(mpmath.nstr(root[name], 40, min_fixed=-60, max_fixed=60)
+                                             ).limit_denominator(10**6)
+            yield rounded
+            yield candidate
+
+
+def _plausible(problem: _Problem, point: Mapping[str, Real]) -> bool:
+    """A cheap screen at 30 digits before the full check."""
+    prec = 30
+    try:
+        with mp.workdps(prec):
+            for c in problem.equations:
+                a = numeric_value(c.left, point, prec)
+                b = numeric_value(c.right, point, prec)
+                if abs(a - b) > mpf(10) ** -15 * _scale(a, b):
+                    return False
+            for c in problem.others:
+                a = numeric_value(c.left, point, prec)
+                b = numeric_value(c.right, point, prec)
+                d = a - b
+                ok = {"!=": d != 0, "<": d < 0, "<=": d <= mpf(10) ** -20, ">": d > 0, ">=": d >= -mpf(10) ** -20}
+                if not ok[c.relation]:
+                    return False
+            a = numeric_value(problem.left, point, prec)
+            b = numeric_value(problem.right, point, prec)
+            return a != b and abs(a - b) > mpf(10) ** -25 * max(abs(a), abs(b))
+    except (DomainError, ZeroDivisionError):
+        return False
+
+
+def _try(problem: _Problem, point: Mapping[str, Real]) -> Witness | None:
+    if all(isinstance(v, Fraction) for v in point.values()):
+        exact_point = {k: v for k, v in point.items() if isinstance(v, Fraction)}
+        try:
+            outcome, witness = _exact_check(problem, exact_point)
+        except (DomainError, ZeroDivisionError):
+            return None
+        if outcome == "witness":
+            return witness
+        if outcome == "fails":
+            return None
+    if not _plausible(problem, point):
+        return None
+    return _witness_from(problem, point)
+
+
+def _candidates(problem: _Problem, rng: random.Random, deadline: float) -> Iterator[Mapping[str, Real]]:
+    rational = _rational_points(problem, rng)
+    if problem.equations:
+        # small rational points often satisfy simple equations exactly (s, c = 0, 1); then solve them
+        yield from islice(rational, 300)
+        yield from _exact_solutions(problem, rng, 40)
+        yield from _numeric_solutions(problem, rng, 30, deadline)
+    yield from rational
+
+
+def find_witness(left: Expr, right: Expr, conditions: Sequence[Condition], *, deadline: float,
+                 seed: int = 0) -> Witness | None:
+    """A checked real point where every condition holds and ``left != right``, or None (none found before
+    ``deadline`` (time.monotonic()), or an opaque call is involved)."""
+    problem = _problem(left, right, conditions)
+    if problem is None:
+        return None
+    rng = random.Random(seed)
+    for point in _candidates(problem, rng, deadline):
+        if time.monotonic() > deadline:
+            return None
+        try:
+            witness = _try(problem, point)
+        except (DomainError, NotEvaluable, ZeroDivisionError, KeyError):
+            continue
+        if witness is not None:
+            return witness
+    return None
