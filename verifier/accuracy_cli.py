@@ -1,0 +1,93 @@
+"""Command-line options for ``--accuracy`` (shared by check, audit and explain) and the glue that runs it.
+
+``--accuracy-range`` takes ``LO:HI`` (every variable) or ``NAME=LO:HI`` (one variable) and may be given
+several times; write a negative low end as ``--accuracy-range=-5:5`` so it is not read as an option.
+"""
+from __future__ import annotations
+
+import argparse
+import math
+from collections.abc import Sequence
+
+from verifier.algebra.accuracy import DEFAULT_RANGE, DEFAULT_SAMPLES, AccuracyEstimate, AccuracySettings, estimate_accuracy
+from verifier.algebra.verdict import Verdict
+
+
+def parse_range(text: str) -> tuple[str | None, float, float]:
+    """``LO:HI`` or ``NAME=LO:HI`` -> (name or None, low, high); ArgumentTypeError when malformed."""
+    name: str | None = None
+    body = text
+    if "=" in text:
+        name, body = (part.strip() for part in text.split("=", 1))
+        if not name:
+            raise argparse.ArgumentTypeError(f"--accuracy-range wants NAME=LO:HI or LO:HI, got {text!r}")
+    low_text, sep, high_text = body.partition(":")
+    try:
+        low, high = float(low_text), float(high_text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"--accuracy-range wants numbers LO:HI, got {text!r}") from None
+    if not sep or not (math.isfinite(low) and math.isfinite(high)) or not low < high:
+        raise argparse.ArgumentTypeError(f"--accuracy-range wants finite LO < HI, got {text!r}")
+    return name, low, high
+
+
+def _samples(text: str) -> int:
+    try:
+        value = int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"--accuracy-samples wants a whole number, got {text!r}") from None
+    if value < 1:
+        raise argparse.ArgumentTypeError(f"--accuracy-samples wants a number >= 1, got {text!r}")
+    return value
+
+
+def _seed(text: str) -> int:
+    try:
+        return int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"--accuracy-seed wants a whole number, got {text!r}") from None
+
+
+def add_accuracy_options(parser: argparse.ArgumentParser) -> None:
+    group = parser.add_argument_group("floating-point accuracy (a sampled estimate, not a bound)")
+    group.add_argument("--accuracy", action="store_true",
+                       help="for proved claims, estimate the rounding error of each side in IEEE double")
+    group.add_argument("--accuracy-samples", type=_samples, default=DEFAULT_SAMPLES, metavar="N",
+                       help=f"points per claim (default {DEFAULT_SAMPLES})")
+    group.add_argument("--accuracy-seed", type=_seed, default=0, metavar="S", help="random seed (default 0)")
+    group.add_argument("--accuracy-range", type=parse_range, action="append", default=[], metavar="[NAME=]LO:HI",
+                       help=f"sampling range, for every variable or one (default {DEFAULT_RANGE[0]:g}:{DEFAULT_RANGE[1]:g});"
+                            " repeatable")
+
+
+def accuracy_settings(args: argparse.Namespace) -> AccuracySettings | None:
+    """The settings asked for on the command line, or None without ``--accuracy``."""
+    if not getattr(args, "accuracy", False):
+        return None
+    default = DEFAULT_RANGE
+    per_variable: list[tuple[str, float, float]] = []
+    for name, low, high in getattr(args, "accuracy_range", []) or []:
+        if name is None:
+            default = (low, high)
+        else:
+            per_variable.append((name, low, high))
+    return AccuracySettings(samples=args.accuracy_samples, seed=args.accuracy_seed, default_range=default,
+                            ranges=tuple(per_variable))
+
+
+def estimates_for(verdicts: Sequence[Verdict], settings: AccuracySettings) -> list[tuple[str, list[AccuracyEstimate]]]:
+    """(heading, estimates) for every proved verdict, one estimate per obligation."""
+    items: list[tuple[str, list[AccuracyEstimate]]] = []
+    for verdict in verdicts:
+        if verdict.verdict != "proved":
+            continue
+        claim = verdict.claim
+        estimates = [estimate_accuracy(ob, settings) for ob in claim.obligations]
+        items.append((f"{claim.location}: {claim.text}", estimates))
+    return items
+
+
+def accuracy_report(verdicts: Sequence[Verdict], settings: AccuracySettings) -> str:
+    from verifier.report.accuracy_text import render_accuracy_section
+
+    return render_accuracy_section(estimates_for(verdicts, settings))

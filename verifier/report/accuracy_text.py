@@ -1,0 +1,54 @@
+"""Text of sampled floating-point accuracy estimates (``--accuracy``)."""
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+from verifier.algebra.accuracy import AccuracyEstimate, SideAccuracy
+
+ACCURACY_DISCLAIMER = (
+    "note: accuracy figures are a sampled estimate at random points, not a bound; rounding can be worse "
+    "elsewhere. Safety-critical code needs the project's own numerical review."
+)
+
+
+def _ulps(value: float) -> str:
+    if value == float("inf"):
+        return "inf (overflow or undefined in double)"
+    if value >= 1e6:
+        return f"{value:.3g} ulp"
+    return f"{value:.3g} ulp" if value < 100 else f"{value:.0f} ulp"
+
+
+def _point(side: SideAccuracy) -> str:
+    return ", ".join(f"{name} = {value!r}" for name, value in side.worst_point)
+
+
+def accuracy_lines(estimate: AccuracyEstimate, indent: str = "    ") -> list[str]:
+    """Lines for one obligation's estimate (the obligation label leads when there is one)."""
+    head = f"{indent}accuracy" + (f" ({estimate.label})" if estimate.label else "") + ":"
+    if estimate.problem is not None or estimate.left is None or estimate.right is None:
+        return [f"{head} not measured: {estimate.problem or 'no samples'}"]
+    lines = [f"{head} {estimate.samples} sampled points ({estimate.rejected} drawn points rejected by the conditions)"]
+    if estimate.equations_solved:
+        lines.append(f"{indent}  solved the equation conditions for: {', '.join(estimate.equations_solved)}")
+    for name, side in (("left ", estimate.left), ("right", estimate.right)):
+        lines.append(f"{indent}  {name}: median {_ulps(side.median_ulps)}, worst {_ulps(side.worst_ulps)} at {_point(side)}")
+        lines.append(f"{indent}         (double result {side.worst_computed!r}, exact {side.worst_exact})")
+    if estimate.more_accurate is None:
+        lines.append(f"{indent}  both sides are equally accurate on these samples")
+    else:
+        lines.append(f"{indent}  the {estimate.more_accurate} side is more accurate on these samples")
+    return lines
+
+
+def render_accuracy_section(items: Sequence[tuple[str, Sequence[AccuracyEstimate]]]) -> str:
+    """A report section: for each (heading, estimates) the estimate lines, then the disclaimer."""
+    lines: list[str] = ["floating-point accuracy (IEEE double, in the order the source writes each side):"]
+    if not items:
+        lines.append("    no proved claim to measure")
+    for heading, estimates in items:
+        lines.append(f"  {heading}")
+        for estimate in estimates:
+            lines.extend(accuracy_lines(estimate))
+    lines.append(ACCURACY_DISCLAIMER)
+    return "\n".join(lines) + "\n"
