@@ -800,3 +800,16 @@ def _equation_sides(body: str, lead: int) -> tuple[Expr, ...]:
             raise exc.shifted(lead + start) from None
         start = after
     return tuple(sides)
+
+
+def equation_side_texts(text: str) -> tuple[list[str], str | None]:
+    """The side texts of an equation claim as written and its conditions text (for chain-link texts)."""
+    head, given_text, _ = split_given(_one_line(text))
+    links = _top_level_positions(head, re.compile(r"(?<![=!<>])==(?!=)"))
+    sides: list[str] = []
+    start = 0
+    for match in links:
+        sides.append(head[start : match.start()].strip())
+        start = match.end()
+    sides.append(head[start:].strip())
+    return sides, None if given_text is None else given_text.strip()
