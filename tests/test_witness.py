@@ -230,3 +230,22 @@ def test_exact_witness_sides_match_exact_evaluation():
     x = F(values_of(w)["x"])
     assert x > 1
     assert F(w.left) == exact_value(expr("x**3 - x"), {"x": x}) == x**3 - x
+
+
+def test_repeated_and_scaled_equations_do_not_block_numeric_witnesses():
+    # the same circle stated twice (as a named set and again by hand, say) and once scaled
+    conditions = ["s**2 + c**2 == 1", "c**2 + s**2 == 1", "2*s**2 + 2*c**2 == 2", "s > 0.3", "c > 0.1"]
+    w = search("2*s*c", "s", *conditions)
+    assert w is not None
+    with mp.workdps(60):
+        p = high_precision_point(w)
+        assert abs(p["s"] ** 2 + p["c"] ** 2 - 1) < mpf(10) ** -35
+        assert p["s"] > 0.3 and p["c"] > 0.1
+        assert abs(2 * p["s"] * p["c"] - p["s"]) > mpf(10) ** -10
+    # a genuinely different second equation is kept: no real point has both
+    assert search("s", "c", "s**2 + c**2 == 1", "s**2 + c**2 == 2", seconds=5) is None
+
+
+def test_constant_equations_are_checked():
+    assert search("x", "x + 1", "sqrt(2)**2 == 2") is not None
+    assert search("x", "x + 1", "sqrt(2)**2 == 2.000001", seconds=5) is None

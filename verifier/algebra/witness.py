@@ -26,6 +26,7 @@ from mpmath import mp, mpf
 
 from verifier.algebra.evaluate import (
     DomainError,
+    children,
     NotEvaluable,
     exact_value,
     has_opaque,
@@ -140,10 +141,66 @@ _SIDE_DIGITS = 20  # significant digits of the printed sides
 class _Problem:
     left: Expr
     right: Expr
-    equations: tuple[Condition, ...]
+    equations: tuple[Condition, ...]  # the system that Newton refines: distinct and not proportional
+    extra_equations: tuple[Condition, ...]  # repeats, multiples of a kept equation, constant equations
     others: tuple[Condition, ...]
     names: tuple[str, ...]
     equation_names: tuple[str, ...]  # variables that occur in some non-constant equation
+
+
+def _proportional(first: Condition, second: Condition, rng: random.Random) -> bool:
+    """True when second's difference is a constant multiple of first's as rational functions (tested at
+    random points modulo 2**61-1): it then vanishes exactly wherever the first one does."""
+    a_expr = BinOp("-", first.left, first.right)
+    b_expr = BinOp("-", second.left, second.right)
+    names = sorted(variables(a_expr) | variables(b_expr))
+    ratio: int | None = None
+    agreed = 0
+    for _ in range(12):
+        point = {name: rng.randrange(1, _PRIME) for name in names}
+        try:
+            a = _mod_value(a_expr, point)
+            b = _mod_value(b_expr, point)
+        except _Unsupported:
+            return False
+        except _ZeroDivisorModP:
+            continue
+        if a == 0:
+            if b != 0:
+                return False
+            continue
+        r = b * pow(a, -1, _PRIME) % _PRIME
+        if ratio is None:
+            ratio = r
+        elif r != ratio:
+            return False
+        agreed += 1
+        if agreed == 4:
+            return True
+    return False
+
+
+def _fingerprint(expr: Expr) -> int:
+    """A structural hash computed bottom-up once per node (dataclass hashing of a shared DAG is exponential)."""
+    prints: dict[int, int] = {}
+    for node in postorder(expr):
+        kids = tuple(prints[id(child)] for child in children(node))
+        if isinstance(node, Num):
+            own: object = ("num", node.value)
+        elif isinstance(node, Var):
+            own = ("var", node.name)
+        elif isinstance(node, BinOp):
+            own = ("bin", node.op)
+        elif isinstance(node, Pow):
+            own = ("pow", node.exponent)
+        elif isinstance(node, Call):
+            own = ("call", node.function)
+        elif isinstance(node, Opaque):
+            own = ("opaque", node.name)
+        else:
+            own = (type(node).__name__,)
+        prints[id(node)] = hash((own, kids))
+    return prints[id(expr)]
 
 
 def _problem(left: Expr, right: Expr, conditions: Sequence[Condition]) -> _Problem | None:
@@ -153,20 +210,27 @@ def _problem(left: Expr, right: Expr, conditions: Sequence[Condition]) -> _Probl
     names: set[str] = set()
     for e in exprs:
         names |= variables(e)
+    rng = random.Random(12345)
     equations: list[Condition] = []
-    seen: set[tuple[Expr, Expr]] = set()
+    extra: list[Condition] = []
+    seen: set[tuple[int, int]] = set()
     for c in conditions:
         if c.relation != "==":
             continue
-        key = (c.left, c.right)
-        if key in seen:  # a repeated equation would make the Jacobian singular
+        key = (_fingerprint(c.left), _fingerprint(c.right))
+        if key in seen or not (variables(c.left) | variables(c.right)):
+            extra.append(c)  # a repeat or a constant equation would make the Jacobian singular
             continue
         seen.add(key)
+        if any(_proportional(kept, c, rng) for kept in equations):
+            extra.append(c)
+            continue
         equations.append(c)
     equation_names: set[str] = set()
     for c in equations:
         equation_names |= variables(c.left) | variables(c.right)
-    return _Problem(left, right, tuple(equations), tuple(c for c in conditions if c.relation != "=="),
+    return _Problem(left, right, tuple(equations), tuple(extra),
+                    tuple(c for c in conditions if c.relation != "=="),
                     tuple(sorted(names)), tuple(sorted(equation_names)))
 
 
@@ -188,7 +252,7 @@ def _exact_check(problem: _Problem, point: Mapping[str, Fraction]) -> tuple[str,
     """("witness", w) / ("fails", None) / ("numeric", None) when exact arithmetic cannot decide."""
     undecided = False
     equations_fail = False
-    for c in problem.equations + problem.others:
+    for c in problem.equations + problem.extra_equations + problem.others:
         a = exact_value(c.left, point)
         b = exact_value(c.right, point)
         if a is None or b is None:
@@ -299,10 +363,19 @@ def _numeric_difference(a: mpf, b: mpf) -> tuple[mpf, mpf]:
     return a - b, max(abs(a), abs(b))
 
 
-def _numeric_pass(problem: _Problem, point: Mapping[str, Real], prec: int
-                  ) -> tuple[list[mpf], mpf, mpf] | None:
-    """At one precision: refine, check equations and non-strict conditions, and return the differences
-    of the strict conditions and of the sides (to be compared across precisions) plus the sides."""
+@dataclass
+class _Pass:
+    """What one precision saw: signed differences to compare across precisions, and the sides."""
+
+    strict: list[mpf]  # strict inequalities and != (left - right), then the sides' difference last
+    loose: list[mpf]  # non-strict inequalities (left - right, sign-normalized so that >= 0 is wanted)
+    left: mpf
+    right: mpf
+
+
+def _numeric_pass(problem: _Problem, point: Mapping[str, Real], prec: int) -> _Pass | None:
+    """At one precision: refine onto the equations, check them and the conditions, return the differences
+    (to be compared across precisions) and the sides."""
     current: Mapping[str, Real] = point
     if problem.equations:
         unknowns = list(problem.equation_names)
@@ -316,8 +389,11 @@ def _numeric_pass(problem: _Problem, point: Mapping[str, Real], prec: int
                     return None
         current = refined
     eps = tiny(prec)
-    strict: list[mpf] = []
+    result = _Pass([], [], mpf(0), mpf(0))
     with mp.workdps(prec):
+        for residual, size in _residuals(problem.extra_equations, current, prec):
+            if abs(residual) > eps * size:
+                return None
         for c in problem.others:
             a = numeric_value(c.left, current, prec)
             b = numeric_value(c.right, current, prec)
@@ -326,18 +402,20 @@ def _numeric_pass(problem: _Problem, point: Mapping[str, Real], prec: int
                 signed = d if c.relation == ">=" else -d
                 if signed < -eps * _scale(a, b):
                     return None
+                result.loose.append(signed)
                 continue
             signed = {"!=": abs(d), ">": d, "<": -d}[c.relation]
             if signed <= _MARGIN * size or signed <= 0:
                 return None
-            strict.append(d)
+            result.strict.append(d)
         left = numeric_value(problem.left, current, prec)
         right = numeric_value(problem.right, current, prec)
         d, size = _numeric_difference(left, right)
         if d == 0 or abs(d) <= _MARGIN * size:
             return None
-        strict.append(d)
-    return strict, left, right
+        result.strict.append(d)
+        result.left, result.right = left, right
+    return result
 
 
 def _consistent(low: mpf, high: mpf) -> bool:
@@ -360,13 +438,21 @@ def _verify(problem: _Problem, point: Mapping[str, Fraction], texts: Mapping[str
             return None
     except (DomainError, NotEvaluable, ZeroDivisionError, KeyError):
         return None
-    if len(low[0]) != len(high[0]) or not all(_consistent(a, b) for a, b in zip(low[0], high[0])):
+    if not all(_consistent(a, b) for a, b in zip(low.strict, high.strict)):
+        return None
+    # a non-strict condition may be 0 up to rounding, but not negative by the same amount at both precisions
+    if any(b < 0 and _consistent(a, b) for a, b in zip(low.loose, high.loose)):
         return None
     values = tuple((name, texts[name]) for name in problem.names)
     with mp.workdps(_HIGH):
-        left_text = mpmath.nstr(high[1], _SIDE_DIGITS)
-        right_text = mpmath.nstr(high[2], _SIDE_DIGITS)
+        left_text = _side_text(high.left)
+        right_text = _side_text(high.right)
     return Witness(values, left_text, right_text, False)
+
+
+def _side_text(x: mpf) -> str:
+    text = mpmath.nstr(x, _SIDE_DIGITS)
+    return text[:-2] if text.endswith(".0") else text
 
 
 # ---------------------------------------------------------------- parsing witness values
