@@ -561,11 +561,15 @@ def _rational_points(problem: _Problem, rng: random.Random) -> Iterator[dict[str
     for combo in islice(product(_SMALL[:k], repeat=n), 256):
         yield dict(zip(names, combo))
     # then random small values, then random fractions of growing size with varied signs and scales
-    for _ in range(150):
-        yield {name: rng.choice(_SMALL) for name in names}
+    for i in range(150):
+        if i % 3 == 2:  # all positive: sign hypotheses such as x > 0, y > 0 are common
+            yield {name: abs(_small_rational(rng)) for name in names}
+        else:
+            yield {name: rng.choice(_SMALL) for name in names}
     for size in range(1, 6):
-        for _ in range(40):
-            yield {name: _random_rational(rng, size) for name in names}
+        for i in range(40):
+            point = {name: _random_rational(rng, size) for name in names}
+            yield {name: abs(v) for name, v in point.items()} if i % 3 == 2 else point
 
 
 def _degree(expr: Expr, name: str) -> int | None:
@@ -668,8 +672,9 @@ def _numeric_solutions(problem: _Problem, rng: random.Random, tries: int,
         if time.monotonic() > deadline:
             return
         unknowns = _choose_unknowns(problem, rng)
-        fixed = {name: (_small_rational(rng) if rng.random() < 0.5 else _random_rational(rng, 2))
-                 for name in problem.names}
+        # fixed values mostly of size about 1, where equations such as unit norms have real solutions
+        fixed = {name: (_small_rational(rng) / rng.choice((1, 2, 4, 8)) if rng.random() < 0.6
+                        else _random_rational(rng, 2)) for name in problem.names}
         plans: list[list[str]] = []
         if unknowns is not None:
             plans.append(unknowns)
