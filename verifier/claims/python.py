@@ -1,0 +1,570 @@
+"""Python files: function claims (``same as``, ``returns``) and statement claims (``== EXPR``).
+
+Plain ``LEFT == RIGHT`` comments go to the expression reader like in any file.  The other forms are tied
+to the code: a function claim sits in the comment lines directly above a ``def`` (decorators may sit in
+between), a statement claim trails an assignment, augmented or annotated assignment, or a return.  The
+code is read with libcst and executed symbolically (``symexec``); it is never imported or run.
+"""
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+
+import libcst as cst
+
+from verifier.claims.comments import CommentClaim
+from verifier.claims.expression import error_claim, expression_claims
+from verifier.claims.language import ClaimSyntaxError, ParsedClaim, parse_claim_text
+from verifier.claims.model import (
+    BinOp,
+    Call,
+    Claim,
+    ClaimKind,
+    Condition,
+    Expr,
+    ExtractionContext,
+    Location,
+    Neg,
+    Num,
+    Obligation,
+    Opaque,
+    Pow,
+    Problem,
+    Var,
+)
+from verifier.claims.symexec import (
+    NONE,
+    Executor,
+    FunctionRef,
+    ModuleInfo,
+    ModuleLoader,
+    NoneValue,
+    Outcome,
+    Seq,
+    State,
+    Unknown,
+    Value,
+    first_unknown,
+    is_expr,
+    parse_module_text,
+    positional_parameters,
+)
+
+MAX_OBLIGATIONS = 2048  # more paths x components than this is inconclusive rather than slow
+
+
+class _ClaimProblem(Exception):
+    def __init__(self, verdict: str, message: str):
+        super().__init__(message)
+        self.verdict = verdict
+        self.message = message
+
+
+@dataclass(frozen=True)
+class _StatementSite:
+    node: cst.CSTNode  # the small statement (Assign, AugAssign, AnnAssign, Return)
+    function: FunctionRef | None
+    line: int
+    loops: tuple[tuple[int, int], ...]  # line ranges of the for loops around it
+
+
+def extract_python(path: str, text: str, comments: list[CommentClaim], context: ExtractionContext) -> list[Claim]:
+    """Every claim of the Python file ``path`` (content ``text``) from its ``idealcheck:`` comments."""
+    per_comment: list[list[Claim]] = [[] for _ in comments]
+    pending: list[tuple[int, CommentClaim, ParsedClaim]] = []
+    for index, comment in enumerate(comments):
+        try:
+            parsed = parse_claim_text(comment.text, context)
+        except ClaimSyntaxError as error:
+            kind: ClaimKind = "statement" if comment.text.lstrip().startswith("==") else "expression"
+            if re.match(r"\s*(same\s+as|returns)\b", comment.text):
+                kind = "function"
+            per_comment[index] = [error_claim(comment, path, error, kind)]
+            continue
+        if parsed.form == "equation":
+            per_comment[index] = expression_claims(comment, path, context)
+        else:
+            pending.append((index, comment, parsed))
+    if pending:
+        try:
+            module = parse_module_text(path, text)
+        except cst.ParserSyntaxError as exc:
+            line, column = exc.raw_line, exc.raw_column + 1
+            message = f"cannot parse Python: {exc.message} (line {line}, column {column})"
+            first = pending[0]
+            per_comment[first[0]] = [_file_error(path, line, column, message, _kind_of(first[2]))]
+            pending = []
+        except RecursionError:
+            first = pending[0]
+            per_comment[first[0]] = [_file_error(path, 1, 1, "cannot parse Python: the file is nested too deeply",
+                                                 _kind_of(first[2]))]
+            pending = []
+        else:
+            reader = _FileReader(path, text, module, context)
+            for index, comment, parsed in pending:
+                per_comment[index] = [reader.claim(comment, parsed)]
+    return [claim for claims in per_comment for claim in claims]
+
+
+def _kind_of(parsed: ParsedClaim) -> ClaimKind:
+    return "statement" if parsed.form == "statement" else "function"
+
+
+def _file_error(path: str, line: int, column: int, message: str, kind: ClaimKind) -> Claim:
+    return Claim(id=f"{path}:{line}:{column}", location=Location(path, line, column), kind=kind,
+                 text="(the Python file could not be parsed)", problem=Problem("error", message),
+                 dependencies=(path,))
+
+
+class _FileReader:
+    """One parsed file: finds the code each claim is about and turns it into obligations."""
+
+    def __init__(self, path: str, text: str, module: ModuleInfo, context: ExtractionContext):
+        self.path = path
+        self.lines = text.splitlines()
+        self.module = module
+        self.context = context
+        self.loader = ModuleLoader(context.roots)
+        self.loader.add(module)
+        self.defs_by_line: dict[int, FunctionRef] = {}
+        self.sites: list[_StatementSite] = []
+        self._index()
+        self._visits_cache: dict[tuple, tuple[Executor, list[Outcome]]] = {}
+
+    # -- indexing the file
+
+    def _index(self) -> None:
+        reader = self
+
+        class Visitor(cst.CSTVisitor):
+            def __init__(self) -> None:
+                self.functions: list[FunctionRef] = []
+                self.classes: list[str] = []
+                self.loops: list[tuple[int, int]] = []
+
+            def visit_ClassDef(self, node: cst.ClassDef) -> None:
+                self.classes.append(node.name.value)
+
+            def leave_ClassDef(self, node: cst.ClassDef) -> None:
+                self.classes.pop()
+
+            def visit_FunctionDef(self, node: cst.FunctionDef) -> None:
+                outer = self.functions[-1].qualname + ".<locals>." if self.functions else ""
+                cls = self.classes[-1] if self.classes and not self.functions else None
+                qualname = outer + (f"{cls}." if cls else "") + node.name.value
+                ref = FunctionRef(reader.module, node, qualname, cls)
+                self.functions.append(ref)
+                first = node.decorators[0] if node.decorators else node
+                reader.defs_by_line[reader.module.line(first)] = ref
+                self.saved_loops = getattr(self, "saved_loops", []) + [self.loops]
+                self.loops = []
+
+            def leave_FunctionDef(self, node: cst.FunctionDef) -> None:
+                self.functions.pop()
+                self.loops = self.saved_loops.pop()
+
+            def visit_For(self, node: cst.For) -> None:
+                pos = reader.module.positions.get(node)
+                if pos is not None:
+                    self.loops.append((pos.start.line, pos.end.line))
+
+            def leave_For(self, node: cst.For) -> None:
+                if reader.module.positions.get(node) is not None:
+                    self.loops.pop()
+
+            def visit_SimpleStatementLine(self, node: cst.SimpleStatementLine) -> None:
+                self._smalls(node.body)
+
+            def visit_SimpleStatementSuite(self, node: cst.SimpleStatementSuite) -> None:
+                self._smalls(node.body)
+
+            def _smalls(self, body: tuple) -> None:
+                function = self.functions[-1] if self.functions else None
+                for small in body:
+                    reader.sites.append(_StatementSite(small, function, reader.module.line(small), tuple(self.loops)))
+
+        self.module.module.visit(Visitor())
+
+    def _site_for(self, line: int) -> _StatementSite | None:
+        best: _StatementSite | None = None
+        for site in self.sites:
+            pos = self.module.positions.get(site.node)
+            if pos is None or not pos.start.line <= line <= pos.end.line:
+                continue
+            if best is None or self.module.positions[best.node].start.line <= pos.start.line:
+                best = site
+        return best
+
+    def _def_below(self, comment: CommentClaim) -> FunctionRef | None:
+        number = comment.end_line + 1
+        while number <= len(self.lines) and self.lines[number - 1].lstrip().startswith("#"):
+            number += 1
+        return self.defs_by_line.get(number)
+
+    # -- claims
+
+    def claim(self, comment: CommentClaim, parsed: ParsedClaim) -> Claim:
+        kind = _kind_of(parsed)
+        location = Location(self.path, comment.line, comment.column)
+        claim_id = f"{self.path}:{comment.line}:{comment.column}"
+        try:
+            if parsed.form == "statement":
+                obligations, notes, dependencies = self._statement(comment, parsed)
+            else:
+                obligations, notes, dependencies = self._function(comment, parsed)
+        except _ClaimProblem as problem:
+            return Claim(claim_id, location, kind, comment.text,
+                         problem=Problem(problem.verdict, problem.message),  # type: ignore[arg-type]
+                         dependencies=(self.path,))
+        except RecursionError:
+            return Claim(claim_id, location, kind, comment.text,
+                         problem=Problem("inconclusive", "the code is nested too deeply to follow"),
+                         dependencies=(self.path,))
+        deps = tuple(dict.fromkeys([self.path] + dependencies))
+        return Claim(claim_id, location, kind, comment.text, tuple(obligations), None, tuple(notes), deps)
+
+    def _executor(self, claim_targets: dict | None = None) -> Executor:
+        return Executor(self.loader, unroll_limit=self.context.unroll_limit,
+                        inline_depth=self.context.inline_depth, claim_targets=claim_targets)
+
+    # -- function claims
+
+    def _function(self, comment: CommentClaim, parsed: ParsedClaim
+                  ) -> tuple[list[Obligation], list[str], list[str]]:
+        form = "`same as`" if parsed.form == "same_as" else "`returns`"
+        ref = None if comment.trailing else self._def_below(comment)
+        if ref is None:
+            raise _ClaimProblem("error", f"a {form} claim must be in the comment lines directly above a `def` "
+                                         "(decorators may sit in between); none follows this comment")
+        name = ref.node.name.value
+        executor = self._executor()
+        outcomes = executor.run_function(ref)
+        paths = self._returned(outcomes, name)
+        obligations: list[Obligation] = []
+        if parsed.form == "returns":
+            target: Value = parsed.sides[0] if len(parsed.sides) == 1 else Seq(tuple(parsed.sides))
+            for state, value in paths:
+                for left, right, label in _components(value, target, name, "the claim"):
+                    obligations.append(_obligation(left, right, parsed.conditions, state.conditions, label,
+                                                   state.notes))
+        else:
+            other_name = parsed.other or ""
+            other = self._find_function(other_name, self.module, 0, executor)
+            if other is None:
+                raise _ClaimProblem("error", f"cannot find the function `{other_name}` among the functions and "
+                                             f"imports of {self.path}")
+            mine = positional_parameters(ref.node)
+            theirs = positional_parameters(other.node)
+            if len(mine) != len(theirs):
+                raise _ClaimProblem("error", f"{name} takes {len(mine)} positional arguments, {other_name} takes "
+                                             f"{len(theirs)}: `same as` compares them for the same arguments")
+            other_outcomes = executor.run_function(other, args=[Var(p) for p in mine])
+            other_paths = self._returned(other_outcomes, other_name)
+            for state, value in paths:
+                for other_state, other_value in other_paths:
+                    conditions = state.conditions + tuple(c for c in other_state.conditions
+                                                          if c not in state.conditions)
+                    notes = state.notes + tuple(n for n in other_state.notes if n not in state.notes)
+                    for left, right, label in _components(value, other_value, name, other_name):
+                        obligations.append(_obligation(left, right, parsed.conditions, conditions, label, notes))
+                        if len(obligations) > MAX_OBLIGATIONS:
+                            raise _ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
+        obligations = _unique(obligations)
+        if len(obligations) > MAX_OBLIGATIONS:
+            raise _ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
+        notes = list(executor.inlined) + list(dict.fromkeys(n for ob in obligations for n in ob.notes))
+        return obligations, notes, executor.dependencies
+
+    def _returned(self, outcomes: list[Outcome], name: str) -> list[tuple[State, Value]]:
+        stuck = [o for o in outcomes if o.status == "stuck"]
+        if stuck:
+            first = min(stuck, key=lambda o: o.line)
+            raise _ClaimProblem("inconclusive", f"{first.reason} (in {name})" if name not in first.reason
+                                else first.reason)
+        paths: list[tuple[State, Value]] = []
+        for outcome in outcomes:
+            if outcome.status == "return":
+                paths.append((outcome.state, outcome.value if outcome.value is not None else NONE))
+            elif outcome.status == "next":
+                paths.append((outcome.state, NONE))
+        if not paths:
+            raise _ClaimProblem("inconclusive", f"{name} never returns a value: every path raises")
+        for state, value in paths:
+            unknown = first_unknown(value)
+            if unknown is not None:
+                raise _ClaimProblem("inconclusive", f"{name} returns a value the tool cannot follow: "
+                                                    f"{unknown.reason}")
+            if _contains_none(value):
+                where = _path_label(state.conditions) or "a path"
+                raise _ClaimProblem("inconclusive", f"{name} returns None on {where} (no return statement "
+                                                    "or `return None`), which is not a number")
+        return paths
+
+    def _find_function(self, dotted: str, module: ModuleInfo, depth: int, executor: Executor) -> FunctionRef | None:
+        if depth > 8:
+            return None
+        head, _, rest = dotted.partition(".")
+        if not rest:
+            if head in module.functions:
+                return FunctionRef(module, module.functions[head], head)
+            target = module.imports.get(head)
+            if target is not None and target[0] == "member":
+                other = self.loader.find(target[1], module)
+                if other is not None:
+                    executor.depend(other.path)
+                    return self._find_function(target[2], other, depth + 1, executor)
+            return None
+        if head in module.classes and "." not in rest:
+            method = module.classes[head].get(rest)
+            return FunctionRef(module, method, dotted, head) if method is not None else None
+        target = module.imports.get(head)
+        if target is None:
+            return None
+        if target[0] == "module":
+            full = target[1]
+        else:
+            full = target[1] + target[2] if target[1].endswith(".") else f"{target[1]}.{target[2]}"
+        segments = rest.split(".")
+        for k in range(len(segments) - 1, -1, -1):
+            module_name = full + ("." + ".".join(segments[:k]) if k else "")
+            other = self.loader.find(module_name, module)
+            if other is not None:
+                executor.depend(other.path)
+                return self._find_function(".".join(segments[k:]), other, depth + 1, executor)
+        return None
+
+    # -- statement claims
+
+    def _statement(self, comment: CommentClaim, parsed: ParsedClaim
+                   ) -> tuple[list[Obligation], list[str], list[str]]:
+        site = self._site_for(comment.line) if comment.trailing else None
+        if site is None or not isinstance(site.node, (cst.Assign, cst.AugAssign, cst.AnnAssign, cst.Return)):
+            raise _ClaimProblem("error", "a `== EXPR` claim must trail an assignment, augmented assignment, "
+                                         "annotated assignment or return statement on the same line")
+        if isinstance(site.node, cst.AnnAssign) and site.node.value is None:
+            raise _ClaimProblem("error", "a `== EXPR` claim must trail a statement that assigns a value")
+        if site.function is None:
+            raise _ClaimProblem("inconclusive", "statement claims are checked inside functions only; this "
+                                                "statement is at module level")
+        executor, outcomes = self._run_for_sites(site.function)
+        relevant = [o for o in outcomes if o.status == "stuck" and _stuck_matters(o, site)]
+        if relevant:
+            first = min(relevant, key=lambda o: o.line)
+            raise _ClaimProblem("inconclusive", first.reason)
+        visits = executor.visits.get(site.node, [])
+        if not visits:
+            raise _ClaimProblem("inconclusive", f"no path of {site.function.qualname} reaches the statement at "
+                                                f"line {site.line}")
+        target = parsed.sides[0] if len(parsed.sides) == 1 else None
+        obligations: list[Obligation] = []
+        what = "the statement"
+        for number, visit in enumerate(visits, start=1):
+            unknown = first_unknown(visit.value)
+            if unknown is not None:
+                raise _ClaimProblem("inconclusive", f"the value at line {site.line} cannot be followed: "
+                                                    f"{unknown.reason}")
+            if _contains_none(visit.value):
+                raise _ClaimProblem("inconclusive", f"the value at line {site.line} is None, not a number")
+            substituted: Value
+            if target is not None:
+                substituted = executor_substitute(executor, target, visit.state, self.module)
+            else:
+                substituted = Seq(tuple(executor_substitute(executor, side, visit.state, self.module)
+                                        for side in parsed.sides))
+            unknown = first_unknown(substituted)
+            if unknown is not None:
+                raise _ClaimProblem("inconclusive", f"the claim's expression cannot be followed: {unknown.reason}")
+            conditions = tuple(_substitute_condition(executor, c, visit.state, self.module)
+                               for c in parsed.conditions)
+            for left, right, label in _components(visit.value, substituted, what, "the claim"):
+                if len(visits) > 1 and not visit.state.conditions:
+                    label = ", ".join(p for p in (f"visit {number}", label) if p)
+                obligations.append(_obligation(left, right, conditions, visit.state.conditions, label,
+                                               visit.state.notes))
+            if len(obligations) > MAX_OBLIGATIONS:
+                raise _ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
+        obligations = _unique(obligations)
+        notes = list(executor.inlined) + list(dict.fromkeys(n for ob in obligations for n in ob.notes))
+        return obligations, notes, executor.dependencies
+
+    def _run_for_sites(self, function: FunctionRef) -> tuple[Executor, list[Outcome]]:
+        key = function.key
+        if key not in self._visits_cache:
+            targets = {site.node: site.node for site in self.sites if site.function == function}
+            executor = self._executor(targets)
+            outcomes = executor.run_function(function)
+            self._visits_cache[key] = (executor, outcomes)
+        return self._visits_cache[key]
+
+
+# ---------------------------------------------------------------- helpers
+
+
+def _stuck_matters(outcome: Outcome, site: _StatementSite) -> bool:
+    """A path stopped by an unsupported construct matters unless it stopped after the claimed statement."""
+    if outcome.line <= site.line:
+        return True
+    return any(start <= site.line <= end for start, end in outcome.loops)
+
+
+def _contains_none(value: Value) -> bool:
+    if isinstance(value, NoneValue):
+        return True
+    if isinstance(value, Seq):
+        return any(_contains_none(item) for item in value.items)
+    return False
+
+
+def _arity(value: Value) -> int:
+    return len(value.items) if isinstance(value, Seq) else 1
+
+
+def _components(left: Value, right: Value, left_name: str, right_name: str,
+                prefix: str = "") -> list[tuple[Expr, Expr, str]]:
+    """Pairs of scalar components to compare, with labels ("component 2", "component 1.3")."""
+    if isinstance(left, Seq) or isinstance(right, Seq):
+        if _arity(left) != _arity(right) or not (isinstance(left, Seq) and isinstance(right, Seq)):
+            where = f" (component {prefix})" if prefix else ""
+            raise _ClaimProblem("error", f"{left_name} returns {_count(left)}{where}, {right_name} "
+                                         f"{'returns' if right_name != 'the claim' else 'gives'} {_count(right)}")
+        pairs: list[tuple[Expr, Expr, str]] = []
+        for index, (a, b) in enumerate(zip(left.items, right.items), start=1):
+            label = f"{prefix}.{index}" if prefix else str(index)
+            pairs.extend(_components(a, b, left_name, right_name, label))
+        return pairs
+    if not (is_expr(left) and is_expr(right)):
+        raise _ClaimProblem("inconclusive", f"a compared value is not a number ({left!r} vs {right!r})")
+    return [(left, right, f"component {prefix}" if prefix else "")]  # type: ignore[list-item]
+
+
+def _count(value: Value) -> str:
+    n = _arity(value)
+    return "1 value" if n == 1 else f"{n} values"
+
+
+def _path_label(conditions: tuple[Condition, ...]) -> str:
+    if not conditions:
+        return ""
+    return "path where " + " and ".join(c.text for c in conditions)
+
+
+def _obligation(left: Expr, right: Expr, given: tuple[Condition, ...], branch: tuple[Condition, ...],
+                component: str, notes: tuple[str, ...]) -> Obligation:
+    label = ", ".join(part for part in (_path_label(branch), component) if part)
+    return Obligation(left, right, tuple(given) + tuple(branch), label, tuple(notes))
+
+
+def _unique(obligations: list[Obligation]) -> list[Obligation]:
+    seen: set = set()
+    out = []
+    for ob in obligations:
+        key = (ob.left, ob.right, ob.conditions)
+        if key in seen:
+            continue
+        seen.add(key)
+        out.append(ob)
+    return out
+
+
+_SPELLING = re.compile(r"[A-Za-z_][A-Za-z_0-9]*")
+_ACCESSOR = re.compile(r"\.([A-Za-z_][A-Za-z_0-9]*)|\[(-?[0-9]+)\]|\[([^\]]*)\]")
+
+
+def _resolve_spelling(executor: Executor, name: str, state: State, module: ModuleInfo) -> Value:
+    """The value a claim's variable spelling (``x``, ``q.w``, ``v[0]``) has in ``state``."""
+    head = _SPELLING.match(name)
+    if head is None:
+        return Var(name)
+    base_name = head.group(0)
+    value = state.get(base_name)
+    if value is None:
+        if base_name in module.constants and base_name not in module.rebound:
+            value = executor._module_constant(module, base_name, 0)
+        else:
+            return Var(name)
+    position = head.end()
+    spelled = base_name
+    while position < len(name):
+        match = _ACCESSOR.match(name, position)
+        if match is None:
+            return Unknown(f"cannot read the name {name}")
+        position = match.end()
+        spelled += match.group(0)
+        if isinstance(value, Unknown):
+            return value
+        if match.group(1) is not None:
+            if isinstance(value, Var):
+                value = Var(f"{value.name}.{match.group(1)}")
+            elif isinstance(value, Opaque):
+                value = Opaque(f"{value.name}.{match.group(1)}", value.args)
+            else:
+                return Unknown(f"{spelled} is not a variable at this point")
+        elif match.group(2) is not None:
+            index = int(match.group(2))
+            if isinstance(value, Seq):
+                if not -len(value.items) <= index < len(value.items):
+                    return Unknown(f"{spelled} is out of range")
+                value = value.items[index]
+            elif isinstance(value, Var):
+                value = Var(f"{value.name}[{index}]")
+            elif isinstance(value, Opaque):
+                value = Opaque(f"{value.name}[{index}]", value.args)
+            else:
+                return Unknown(f"{spelled} is not a variable at this point")
+        else:
+            if isinstance(value, Var):
+                value = Var(f"{value.name}[{match.group(3)}]")
+            else:
+                return Unknown(f"{spelled} is not a variable at this point")
+    return value
+
+
+def executor_substitute(executor: Executor, expr: Expr, state: State, module: ModuleInfo) -> Value:
+    """``expr`` (claim text) with the parameters and locals replaced by their values in ``state``."""
+    if isinstance(expr, Var):
+        return _resolve_spelling(executor, expr.name, state, module)
+    if isinstance(expr, Num):
+        return expr
+    if isinstance(expr, Neg):
+        inner = executor_substitute(executor, expr.operand, state, module)
+        return Neg(inner) if is_expr(inner) else _not_number(inner)  # type: ignore[arg-type]
+    if isinstance(expr, BinOp):
+        left = executor_substitute(executor, expr.left, state, module)
+        right = executor_substitute(executor, expr.right, state, module)
+        for side in (left, right):
+            if not is_expr(side):
+                return _not_number(side)
+        return BinOp(expr.op, left, right)  # type: ignore[arg-type]
+    if isinstance(expr, Pow):
+        base = executor_substitute(executor, expr.base, state, module)
+        return Pow(base, expr.exponent) if is_expr(base) else _not_number(base)  # type: ignore[arg-type]
+    if isinstance(expr, (Call, Opaque)):
+        args = [executor_substitute(executor, a, state, module) for a in expr.args]
+        for arg in args:
+            if not is_expr(arg):
+                return _not_number(arg)
+        if isinstance(expr, Call):
+            return Call(expr.function, tuple(args))  # type: ignore[arg-type]
+        return Opaque(expr.name, tuple(args))  # type: ignore[arg-type]
+    return Unknown(f"cannot read {expr!r}")
+
+
+def _not_number(value: Value) -> Unknown:
+    if isinstance(value, Unknown):
+        return value
+    return Unknown("the claim uses a tuple, list or None inside arithmetic")
+
+
+def _substitute_condition(executor: Executor, condition: Condition, state: State, module: ModuleInfo) -> Condition:
+    left = executor_substitute(executor, condition.left, state, module)
+    right = executor_substitute(executor, condition.right, state, module)
+    for side in (left, right):
+        if not is_expr(side):
+            reason = side.reason if isinstance(side, Unknown) else "not a number"
+            raise _ClaimProblem("inconclusive", f"the condition {condition.text} cannot be followed: {reason}")
+    if left == condition.left and right == condition.right:
+        return condition
+    return Condition(condition.relation, left, right, condition.text, condition.origin)  # type: ignore[arg-type]
+
+
+__all__ = ["extract_python"]
