@@ -87,7 +87,9 @@ def estimates_for(verdicts: Sequence[Verdict], settings: AccuracySettings) -> li
     return items
 
 
-def accuracy_report(verdicts: Sequence[Verdict], settings: AccuracySettings) -> str:
+def accuracy_report(
+    verdicts: Sequence[Verdict], settings: AccuracySettings, side_names: tuple[str, str] = ("left", "right")
+) -> str:
     from verifier.report.accuracy_text import render_accuracy_section
 
-    return render_accuracy_section(estimates_for(verdicts, settings))
+    return render_accuracy_section(estimates_for(verdicts, settings), side_names)

@@ -86,7 +86,7 @@ def run_audit_command(args: argparse.Namespace) -> int:
     verdicts = list(result.verdicts)
     table = render_audit_text(result)
     settings = accuracy_settings(args)
-    accuracy_text = accuracy_report(verdicts, settings) if settings is not None else ""
+    accuracy_text = accuracy_report(verdicts, settings, ("optimized", "reference")) if settings is not None else ""
     if args.output:
         report = table if args.format == "text" else render(verdicts, args.format, version=__version__,
                                                             on_inconclusive=on_inconclusive)

@@ -114,6 +114,9 @@ def _register_check(subparsers: Any) -> None:
     parser.add_argument("--on-inconclusive", choices=("fail", "warn"), help="whether an inconclusive claim fails the run (config: on_inconclusive)")
     parser.add_argument("--in-process", action="store_true", help=argparse.SUPPRESS)  # debugging: no workers, no limits
     add_config_option(parser)
+    from verifier.accuracy_cli import add_accuracy_options
+
+    add_accuracy_options(parser)  # --accuracy and its sampling settings
     parser.set_defaults(handler=run_check)
 
 
@@ -170,6 +173,15 @@ def run_check(args: argparse.Namespace) -> int:
             raise UsageError(f"--output: cannot write {args.output}: {exc.strerror or exc}") from exc
         if args.format != "text":
             report = render(verdicts, "text", version=__version__, on_inconclusive=on_inconclusive)
+    from verifier.accuracy_cli import accuracy_report, accuracy_settings
+
+    settings = accuracy_settings(args)
+    if settings is not None:  # a text section: after the text report, else on stderr beside machine output
+        section = accuracy_report(verdicts, settings)
+        if args.format == "text" or args.output:
+            report += section
+        else:
+            sys.stderr.write(section)
     sys.stdout.write(report)
     sys.stdout.flush()
     return EXIT_FINDINGS if any(fails_run(v, on_inconclusive) for v in verdicts) else EXIT_OK

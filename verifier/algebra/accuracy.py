@@ -23,7 +23,7 @@ from verifier.algebra.evaluate import DomainError, NotEvaluable, exact_value, nu
 from verifier.claims.model import BinOp, Call, Condition, Expr, Neg, Num, Obligation, Opaque, Pow, Var
 
 EXACT_DIGITS = 60  # decimal digits of the reference value when it is irrational
-DEFAULT_SAMPLES = 2000
+DEFAULT_SAMPLES = 1000
 DEFAULT_RANGE = (-10.0, 10.0)
 _ATTEMPTS_PER_SAMPLE = 20
 

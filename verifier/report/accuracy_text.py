@@ -23,7 +23,9 @@ def _point(side: SideAccuracy) -> str:
     return ", ".join(f"{name} = {value!r}" for name, value in side.worst_point)
 
 
-def accuracy_lines(estimate: AccuracyEstimate, indent: str = "    ") -> list[str]:
+def accuracy_lines(
+    estimate: AccuracyEstimate, indent: str = "    ", side_names: tuple[str, str] = ("left", "right")
+) -> list[str]:
     """Lines for one obligation's estimate (the obligation label leads when there is one)."""
     head = f"{indent}accuracy" + (f" ({estimate.label})" if estimate.label else "") + ":"
     if estimate.problem is not None or estimate.left is None or estimate.right is None:
@@ -31,17 +33,21 @@ def accuracy_lines(estimate: AccuracyEstimate, indent: str = "    ") -> list[str
     lines = [f"{head} {estimate.samples} sampled points ({estimate.rejected} drawn points rejected by the conditions)"]
     if estimate.equations_solved:
         lines.append(f"{indent}  solved the equation conditions for: {', '.join(estimate.equations_solved)}")
-    for name, side in (("left ", estimate.left), ("right", estimate.right)):
-        lines.append(f"{indent}  {name}: median {_ulps(side.median_ulps)}, worst {_ulps(side.worst_ulps)} at {_point(side)}")
-        lines.append(f"{indent}         (double result {side.worst_computed!r}, exact {side.worst_exact})")
+    width = max(len(n) for n in side_names)
+    for name, side in ((side_names[0], estimate.left), (side_names[1], estimate.right)):
+        lines.append(f"{indent}  {name:<{width}}: median {_ulps(side.median_ulps)}, worst {_ulps(side.worst_ulps)} at {_point(side)}")
+        lines.append(f"{indent}  {'':<{width}}  (double result {side.worst_computed!r}, exact {side.worst_exact})")
     if estimate.more_accurate is None:
         lines.append(f"{indent}  both sides are equally accurate on these samples")
     else:
-        lines.append(f"{indent}  the {estimate.more_accurate} side is more accurate on these samples")
+        better = side_names[0] if estimate.more_accurate == "left" else side_names[1]
+        lines.append(f"{indent}  the {better} side is more accurate on these samples")
     return lines
 
 
-def render_accuracy_section(items: Sequence[tuple[str, Sequence[AccuracyEstimate]]]) -> str:
+def render_accuracy_section(
+    items: Sequence[tuple[str, Sequence[AccuracyEstimate]]], side_names: tuple[str, str] = ("left", "right")
+) -> str:
     """A report section: for each (heading, estimates) the estimate lines, then the disclaimer."""
     lines: list[str] = ["floating-point accuracy (IEEE double, in the order the source writes each side):"]
     if not items:
@@ -49,6 +55,6 @@ def render_accuracy_section(items: Sequence[tuple[str, Sequence[AccuracyEstimate
     for heading, estimates in items:
         lines.append(f"  {heading}")
         for estimate in estimates:
-            lines.extend(accuracy_lines(estimate))
+            lines.extend(accuracy_lines(estimate, side_names=side_names))
     lines.append(ACCURACY_DISCLAIMER)
     return "\n".join(lines) + "\n"
