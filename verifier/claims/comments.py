@@ -315,6 +315,8 @@ def _strip_backslash(text: str) -> tuple[str, bool]:
 
 def find_comments(path: str, text: str) -> list[CommentClaim]:
     """The ``idealcheck:`` claims in the comments of ``text``; ``path`` selects the comment syntax."""
+    if text.startswith("\ufeff"):  # a byte-order mark is not a column
+        text = text[1:]
     segments = comment_segments(path, text)
     by_line: dict[int, _Segment] = {}
     for segment in segments:
