@@ -249,3 +249,36 @@ def test_repeated_and_scaled_equations_do_not_block_numeric_witnesses():
 def test_constant_equations_are_checked():
     assert search("x", "x + 1", "sqrt(2)**2 == 2") is not None
     assert search("x", "x + 1", "sqrt(2)**2 == 2.000001", seconds=5) is None
+
+
+def test_equation_affine_in_a_variable_is_solved_exactly():
+    # no combination of small values satisfies this equation, a secant step in s does exactly
+    w = search("s", "a", "7*s == a + b + 3*c + 1/11")
+    assert w is not None and w.exact
+    v = {name: F(text) for name, text in w.values}
+    assert 7 * v["s"] == v["a"] + v["b"] + 3 * v["c"] + F(1, 11)
+    assert v["s"] != v["a"]
+
+
+def test_equation_with_an_irrational_root_is_solved_numerically():
+    # x**3 + x - 1 has exactly one real root, about 0.6823 (common practice: it is increasing)
+    w = search("x", "7/10", "x**3 + x == 1")
+    assert w is not None and not w.exact
+    with mp.workdps(60):
+        x = high_precision_point(w)["x"]
+        assert abs(x**3 + x - 1) < mpf(10) ** -35
+        assert abs(x - mpmath.findroot(lambda t: t**3 + t - 1, 0.7)) < mpf(10) ** -35
+    w = search("x", "7/10", "exp(x) == 2")
+    assert w is not None
+    with mp.workdps(60):
+        assert abs(high_precision_point(w)["x"] - mpmath.log(2)) < mpf(10) ** -35
+
+
+def test_long_exact_sides_are_shown_with_twenty_digits():
+    w = search("(x + 1)**300", "x**300", "x > 1")
+    assert w is not None and w.exact
+    x = F(values_of(w)["x"])
+    left = (x + 1) ** 300
+    assert len(str(left.numerator)) > 60  # too long to print exactly
+    with mp.workdps(40):
+        assert abs(mpf(w.left) / (mpf(left.numerator) / left.denominator) - 1) < mpf(10) ** -18

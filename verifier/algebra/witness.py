@@ -271,7 +271,16 @@ def _exact_check(problem: _Problem, point: Mapping[str, Fraction]) -> tuple[str,
     if left == right:
         return "fails", None
     values = tuple((name, _fraction_text(point[name])) for name in problem.names)
-    return "witness", Witness(values, _fraction_text(left), _fraction_text(right), True)
+    return "witness", Witness(values, _exact_side_text(left), _exact_side_text(right), True)
+
+
+def _exact_side_text(x: Fraction) -> str:
+    """The exact value, or 20 significant digits when the fraction is too long to read."""
+    text = _fraction_text(x)
+    if len(text) <= 60:
+        return text
+    with mp.workdps(_SIDE_DIGITS + 10):
+        return mpmath.nstr(to_mpf(x), _SIDE_DIGITS)
 
 
 def _fraction_text(x: Fraction) -> str:
@@ -348,7 +357,7 @@ def _newton(equations: Sequence[Condition], start: Mapping[str, Real], unknowns:
                 f = mpmath.matrix([r for r, _ in res])
                 gram = jac * jac.T
                 step = jac.T * mpmath.lu_solve(gram, f)
-            except (DomainError, ZeroDivisionError):
+            except ArithmeticError:  # DomainError, ZeroDivisionError, overflow
                 return None
             except ValueError:  # singular matrix in lu_solve
                 return None
@@ -436,7 +445,8 @@ def _verify(problem: _Problem, point: Mapping[str, Fraction], texts: Mapping[str
         high = _numeric_pass(problem, point, _HIGH)
         if high is None:
             return None
-    except (DomainError, NotEvaluable, ZeroDivisionError, KeyError):
+    except (ArithmeticError, NotEvaluable, KeyError, ValueError, TypeError):
+        # undefined at the point, or numerically unusable (mpmath gave up): not a witness
         return None
     if not all(_consistent(a, b) for a, b in zip(low.strict, high.strict)):
         return None
@@ -761,7 +771,7 @@ def find_witness(left: Expr, right: Expr, conditions: Sequence[Condition], *, de
             return None
         try:
             witness = _try(problem, point)
-        except (DomainError, NotEvaluable, ZeroDivisionError, KeyError):
+        except (ArithmeticError, NotEvaluable, KeyError, ValueError, TypeError):
             continue
         if witness is not None:
             return witness
