@@ -532,7 +532,7 @@ def _show(expr: Expr, context: int) -> str:
         level = _PRECEDENCE[expr.op]
         left = _show(expr.left, level)
         right = _show(expr.right, level + 1)
-        text = f"{left} {expr.op} {right}"
+        text = f"{left} {expr.op} {right}" if level == 1 else f"{left}{expr.op}{right}"
         return f"({text})" if context > level else text
     if isinstance(expr, Pow):
         exponent = expr.exponent
