@@ -49,7 +49,7 @@ def render_accuracy_section(
     items: Sequence[tuple[str, Sequence[AccuracyEstimate]]], side_names: tuple[str, str] = ("left", "right")
 ) -> str:
     """A report section: for each (heading, estimates) the estimate lines, then the disclaimer."""
-    lines: list[str] = ["floating-point accuracy (IEEE double, in the order the source writes each side):"]
+    lines: list[str] = ["", "floating-point accuracy (IEEE double, in the order the source writes each side):"]
     if not items:
         lines.append("    no proved claim to measure")
     for heading, estimates in items:
