@@ -288,7 +288,9 @@ def changed_since(ref: str, cwd: Path | str) -> set[str]:
 
 
 def _under(path: str, argument: str) -> bool:
-    return argument in ("", ".") or path == argument or path.startswith(argument.rstrip("/") + "/")
+    if argument in ("", "."):
+        return path != ".." and not path.startswith("../")
+    return path == argument or path.startswith(argument.rstrip("/") + "/")
 
 
 def _in_skipped_dir(path: str, argument: str) -> bool:
