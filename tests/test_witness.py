@@ -282,3 +282,11 @@ def test_long_exact_sides_are_shown_with_twenty_digits():
     assert len(str(left.numerator)) > 60  # too long to print exactly
     with mp.workdps(40):
         assert abs(mpf(w.left) / (mpf(left.numerator) / left.denominator) - 1) < mpf(10) ** -18
+
+
+def test_a_slightly_negative_radicand_is_not_rounded_to_zero():
+    # sqrt(x)**2 == x holds wherever sqrt(x) is real; at x = -1e-100 it is undefined, whatever the
+    # precision would round it to.  The sin term keeps the check away from exact arithmetic.
+    left, right = expr("sqrt(x + 0*sin(y))**2"), expr("x")
+    assert check_witness(left, right, [], {"x": "-1e-100", "y": "1"}) is None
+    assert check_witness(left, right, [], {"x": "1e-100", "y": "1"}) is None  # true there

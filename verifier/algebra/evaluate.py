@@ -217,13 +217,14 @@ def _check_finite(x: mpf) -> mpf:
 
 def _numeric_sqrt(x: mpf, eps: mpf) -> mpf:
     if x < 0:
-        if x < -eps:
+        if x < -eps or eps == 0:
             raise DomainError("square root of a negative number")
         return mpf(0)
     return mpmath.sqrt(x)
 
 
-def _numeric_node(node: Expr, value: Callable[[Expr], mpf], point: Mapping[str, Real], eps: mpf) -> mpf:
+def _numeric_node(node: Expr, value: Callable[[Expr], mpf], point: Mapping[str, Real], eps: mpf,
+                  radicand_eps: mpf) -> mpf:
     if isinstance(node, Num):
         return to_mpf(Fraction(node.value))
     if isinstance(node, Var):
@@ -247,7 +248,7 @@ def _numeric_node(node: Expr, value: Callable[[Expr], mpf], point: Mapping[str, 
         base = value(node.base)
         exponent = Fraction(node.exponent)
         if exponent.denominator == 2:
-            base = _numeric_sqrt(base, eps)
+            base = _numeric_sqrt(base, radicand_eps)
         elif exponent.denominator != 1:
             raise ValueError(f"unsupported exponent {exponent}")
         k = exponent.numerator
@@ -262,7 +263,7 @@ def _numeric_node(node: Expr, value: Callable[[Expr], mpf], point: Mapping[str, 
         args = [value(a) for a in node.args]
         f = node.function
         if f == "sqrt":
-            return _numeric_sqrt(args[0], eps)
+            return _numeric_sqrt(args[0], radicand_eps)
         if f == "hypot":
             return mpmath.sqrt(args[0] ** 2 + args[1] ** 2)
         if f == "fma":
@@ -290,19 +291,23 @@ def _numeric_node(node: Expr, value: Callable[[Expr], mpf], point: Mapping[str, 
     raise ValueError(f"unknown expression node {type(node).__name__}")
 
 
-def numeric_value(expr: Expr, values: Mapping[str, Real], prec_digits: int) -> mpf:
+def numeric_value(expr: Expr, values: Mapping[str, Real], prec_digits: int, *,
+                  strict_radicands: bool = False) -> mpf:
     """The value of ``expr`` with mpmath at ``prec_digits`` decimal digits (principal square roots).
 
     Raises DomainError where the expression is undefined at this precision (a denominator, a cos under
     tan or a log argument within 10**-(0.8*digits) of 0, a radicand below minus that), or overflows.
+    With ``strict_radicands`` every negative radicand is an error, even one that may be rounding noise
+    (a witness must not borrow sqrt(0) for a radicand that is truly slightly negative).
     """
     with mp.workdps(prec_digits):
         eps = tiny(prec_digits)
+        radicand_eps = mpf(0) if strict_radicands else eps
         results: dict[int, mpf] = {}
 
         def value(node: Expr) -> mpf:
             return results[id(node)]
 
         for node in postorder(expr):
-            results[id(node)] = _check_finite(_numeric_node(node, value, values, eps))
+            results[id(node)] = _check_finite(_numeric_node(node, value, values, eps, radicand_eps))
         return +results[id(expr)]

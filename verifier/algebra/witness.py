@@ -294,12 +294,13 @@ def _scale(*xs: mpf) -> mpf:
     return max([mpf(1)] + [abs(x) for x in xs])
 
 
-def _residuals(equations: Sequence[Condition], point: Mapping[str, Real], prec: int) -> list[tuple[mpf, mpf]]:
+def _residuals(equations: Sequence[Condition], point: Mapping[str, Real], prec: int,
+               strict: bool = False) -> list[tuple[mpf, mpf]]:
     """(left - right, size) for each equation."""
     out = []
     for c in equations:
-        a = numeric_value(c.left, point, prec)
-        b = numeric_value(c.right, point, prec)
+        a = numeric_value(c.left, point, prec, strict_radicands=strict)
+        b = numeric_value(c.right, point, prec, strict_radicands=strict)
         out.append((a - b, _scale(a, b)))
     return out
 
@@ -397,15 +398,19 @@ def _numeric_pass(problem: _Problem, point: Mapping[str, Real], prec: int) -> _P
                 if abs(refined[name] - start) > _MAX_MOVE * _scale(start):
                     return None
         current = refined
+        # the equations themselves, now with every radicand >= 0 for real
+        for residual, size in _residuals(problem.equations, current, prec, strict=True):
+            if abs(residual) > tiny(prec) * size:
+                return None
     eps = tiny(prec)
     result = _Pass([], [], mpf(0), mpf(0))
     with mp.workdps(prec):
-        for residual, size in _residuals(problem.extra_equations, current, prec):
+        for residual, size in _residuals(problem.extra_equations, current, prec, strict=True):
             if abs(residual) > eps * size:
                 return None
         for c in problem.others:
-            a = numeric_value(c.left, current, prec)
-            b = numeric_value(c.right, current, prec)
+            a = numeric_value(c.left, current, prec, strict_radicands=True)
+            b = numeric_value(c.right, current, prec, strict_radicands=True)
             d, size = _numeric_difference(a, b)
             if c.relation in ("<=", ">="):
                 signed = d if c.relation == ">=" else -d
@@ -417,8 +422,8 @@ def _numeric_pass(problem: _Problem, point: Mapping[str, Real], prec: int) -> _P
             if signed <= _MARGIN * size or signed <= 0:
                 return None
             result.strict.append(d)
-        left = numeric_value(problem.left, current, prec)
-        right = numeric_value(problem.right, current, prec)
+        left = numeric_value(problem.left, current, prec, strict_radicands=True)
+        right = numeric_value(problem.right, current, prec, strict_radicands=True)
         d, size = _numeric_difference(left, right)
         if d == 0 or abs(d) <= _MARGIN * size:
             return None
