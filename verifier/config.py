@@ -55,11 +55,16 @@ def _read_toml(path: Path) -> dict[str, Any]:
     except OSError as exc:
         raise ConfigError(f"{path}: cannot read the file: {exc.strerror or exc}") from None
     try:
-        return tomllib.loads(data.decode("utf-8"))
+        text = data.decode("utf-8")
     except UnicodeDecodeError:
         raise ConfigError(f"{path}: not UTF-8 text") from None
+    try:
+        return tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
-        raise ConfigError(f"{path}: invalid TOML: {exc}") from None
+        message = str(exc)
+        if "line" not in message:  # "at end of document": say which line that is
+            message += f" (line {text.count(chr(10)) + 1}, the end of the file)"
+        raise ConfigError(f"{path}: invalid TOML: {message}") from None
 
 
 def _our_table(document: dict[str, Any], path: Path) -> dict[str, Any] | None:
