@@ -7,6 +7,7 @@ code is read with libcst and executed symbolically (``symexec``); it is never im
 """
 from __future__ import annotations
 
+import ast
 import re
 from dataclasses import dataclass
 
@@ -89,8 +90,8 @@ def extract_python(path: str, text: str, comments: list[CommentClaim], context: 
         try:
             module = parse_module_text(path, text)
         except cst.ParserSyntaxError as exc:
-            line, column = exc.raw_line, exc.raw_column + 1
-            message = f"cannot parse Python: {exc.message} (line {line}, column {column})"
+            line, column, reason = _syntax_error_place(text, exc)
+            message = f"cannot parse Python: {reason} (line {line}, column {column})"
             first = pending[0]
             per_comment[first[0]] = [_file_error(path, line, column, message, _kind_of(first[2]))]
             pending = []
@@ -104,6 +105,18 @@ def extract_python(path: str, text: str, comments: list[CommentClaim], context: 
             for index, comment, parsed in pending:
                 per_comment[index] = [reader.claim(comment, parsed)]
     return [claim for claims in per_comment for claim in claims]
+
+
+def _syntax_error_place(text: str, exc: cst.ParserSyntaxError) -> tuple[int, int, str]:
+    """Where and why the file does not parse; Python's own parser (parse only) names the place best."""
+    try:
+        ast.parse(text)
+    except SyntaxError as error:
+        if error.lineno:
+            return error.lineno, max(1, error.offset or 1), error.msg
+    except (ValueError, RecursionError, MemoryError):
+        pass
+    return exc.raw_line, exc.raw_column + 1, exc.message
 
 
 def _kind_of(parsed: ParsedClaim) -> ClaimKind:

@@ -87,42 +87,11 @@ class Stuck(Exception):
 
 # ---------------------------------------------------------------- printing expressions
 
-_PREC = {"+": 1, "-": 1, "*": 2, "/": 2}
-
-
 def expr_text(e: Expr) -> str:
-    """A readable Python-like spelling of an expression (for condition texts and labels)."""
-    return _text(e, 0)
+    """The claim-language spelling of an expression (for condition texts and labels)."""
+    from verifier.claims.language import expression_text
 
-
-def _frac(value: Fraction) -> str:
-    return str(value.numerator) if value.denominator == 1 else f"{value.numerator}/{value.denominator}"
-
-
-def _text(e: Expr, outer: int) -> str:
-    if isinstance(e, Num):
-        text = _frac(e.value)
-        return f"({text})" if (outer >= 2 and (e.value < 0 or e.value.denominator != 1)) else text
-    if isinstance(e, Var):
-        return e.name
-    if isinstance(e, BinOp):
-        prec = _PREC[e.op]
-        right_outer = prec + 1 if e.op in ("-", "/") else prec
-        text = f"{_text(e.left, prec)} {e.op} {_text(e.right, right_outer)}"
-        return f"({text})" if prec < outer else text
-    if isinstance(e, Neg):
-        text = f"-{_text(e.operand, 3)}"
-        return f"({text})" if outer >= 2 else text
-    if isinstance(e, Pow):
-        exp = _frac(e.exponent)
-        if e.exponent.denominator != 1 or e.exponent < 0:
-            exp = f"({exp})"
-        return f"{_text(e.base, 4)}**{exp}"
-    if isinstance(e, Call):
-        return f"{e.function}({', '.join(_text(a, 0) for a in e.args)})"
-    if isinstance(e, Opaque):
-        return f"{e.name}({', '.join(_text(a, 0) for a in e.args)})"
-    return repr(e)
+    return expression_text(e)
 
 
 # ---------------------------------------------------------------- modules
@@ -1218,7 +1187,10 @@ class Executor:
         line = module.line(func)
         if isinstance(func, cst.Name):
             name = func.value
-            if state.get(name) is not None:
+            bound = state.get(name)
+            if isinstance(bound, Unknown):
+                return ("unknown", bound.reason)
+            if bound is not None:
                 return ("unknown", f"calling the local value {name} at line {line} is not supported")
             return self._resolve_global_callee(name, module, line, depth=0)
         if isinstance(func, cst.Attribute):
@@ -1397,6 +1369,9 @@ class Executor:
                 if len(bounds) == 3 and bounds[2] == 0:
                     return Unknown(f"range with step 0 at line {line}")
                 r = range(*bounds)
+                if len(r) > self.unroll_limit and iterable:
+                    raise Stuck(f"the for loop at line {line} runs {len(r)} iterations, more than the unroll "
+                                f"limit of {self.unroll_limit}")
                 if len(r) > self.unroll_limit:
                     return Unknown(f"the range at line {line} has {len(r)} elements, more than the unroll limit "
                                    f"of {self.unroll_limit}")
