@@ -1,7 +1,12 @@
 """Sampled floating-point accuracy of the two sides of an identity (algebra/accuracy.py)."""
 from __future__ import annotations
 
+import json
 import math
+import os
+import subprocess
+import sys
+from pathlib import Path
 from claim_exprs import cond, expr
 
 from verifier.algebra.accuracy import (
@@ -86,3 +91,43 @@ def test_impossible_conditions_measure_nothing():
     ob = Obligation(expr("x"), expr("x"), (cond("x > 5"),))
     estimate = estimate_accuracy(ob, AccuracySettings(samples=5, seed=0, default_range=(0.0, 1.0)))
     assert estimate.samples == 0 and estimate.problem
+
+
+# ---------------------------------------------------------------- through the command line
+
+
+ROOT = Path(__file__).resolve().parents[1]
+QUADRATIC_RANGES = ("--accuracy-range", "a=0.5:2", "--accuracy-range", "b=1e3:1e6", "--accuracy-range", "c=0.5:2")
+
+
+def _check(*args: str) -> subprocess.CompletedProcess:
+    return subprocess.run([sys.executable, "-m", "verifier", "check", "fixtures/explain/accuracy", "--no-cache", *args],
+                          cwd=ROOT, capture_output=True, text=True, timeout=120, env=dict(os.environ))
+
+
+def test_check_accuracy_ranks_the_naive_root_as_less_accurate():
+    # Goldberg (ACM Computing Surveys 23(1), 1991, section 1.4): the function body is the naive root (the
+    # claim's left side), the claim is the conjugate form (its right side)
+    result = _check("--accuracy", "--accuracy-samples", "200", *QUADRATIC_RANGES)
+    assert result.returncode == 0, result.stdout + result.stderr
+    out = result.stdout
+    assert "proved" in out
+    assert "the right side is more accurate on these samples" in out
+    assert "sampled estimate" in out and "not a bound" in out and "numerical review" in out
+    left_line = next(line for line in out.splitlines() if line.strip().startswith("left"))
+    assert "ulp" in left_line and "b = " in left_line
+
+
+def test_check_accuracy_keeps_machine_output_clean():
+    result = _check("--accuracy", "--accuracy-samples", "20", "--format", "json", *QUADRATIC_RANGES)
+    assert result.returncode == 0, result.stderr
+    data = json.loads(result.stdout)
+    assert data["summary"]["proved"] == 1
+    assert "more accurate" in result.stderr
+
+
+def test_accuracy_options_are_validated():
+    for bad in (("--accuracy-range", "5:1"), ("--accuracy-range", "x=a:b"), ("--accuracy-samples", "0")):
+        result = _check("--accuracy", *bad)
+        assert result.returncode == 2, bad
+        assert bad[0] in result.stderr

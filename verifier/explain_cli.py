@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 import argparse
+import os
 import sys
 from pathlib import Path
 from typing import Any
@@ -35,8 +36,8 @@ def run_explain(args: argparse.Namespace) -> int:
     cwd = Path.cwd()
     config = load_config_or_exit(args, cwd)
     timeout = args.timeout if args.timeout is not None else float(getattr(config, "timeout", 10.0))
-    context = ExtractionContext(named_conditions=tuple(getattr(config, "conditions", ()) or ()),
-                                roots=(str(getattr(config, "root", ".") or "."),))
+    root = os.path.relpath(os.path.abspath(str(getattr(config, "root", None) or cwd)), cwd).replace(os.sep, "/")
+    context = ExtractionContext(named_conditions=tuple(getattr(config, "conditions", ()) or ()), roots=(root,))
     try:
         explanation = explain(args.target, context, cwd=str(cwd), timeout=timeout, accuracy=accuracy_settings(args))
     except ExplainError as exc:
