@@ -290,3 +290,16 @@ def test_a_slightly_negative_radicand_is_not_rounded_to_zero():
     left, right = expr("sqrt(x + 0*sin(y))**2"), expr("x")
     assert check_witness(left, right, [], {"x": "-1e-100", "y": "1"}) is None
     assert check_witness(left, right, [], {"x": "1e-100", "y": "1"}) is None  # true there
+
+
+def test_bounds_on_single_variables_steer_the_search():
+    # a unit quaternion confined to a corner of the sphere; a false rotation-norm rewrite
+    conditions = ["w**2 + x**2 + y**2 + z**2 == 1", "w > 0.1", "x > 0.5", "y > 0.3", "z < -0.2",
+                  "a > 0", "b > 0"]
+    w = search("(w*a - x*b)**2 + (x*a + w*b)**2", "a**2 + b**2 + w*x*a*b", *conditions)
+    assert w is not None
+    with mp.workdps(60):
+        p = high_precision_point(w)
+        assert abs(p["w"] ** 2 + p["x"] ** 2 + p["y"] ** 2 + p["z"] ** 2 - 1) < mpf(10) ** -35
+        assert p["w"] > 0.1 and p["x"] > 0.5 and p["y"] > 0.3 and p["z"] < -0.2
+        assert p["a"] > 0 and p["b"] > 0

@@ -19,7 +19,7 @@ import time
 from dataclasses import dataclass
 from fractions import Fraction
 from itertools import islice, product
-from typing import Iterator, Mapping, Sequence, Union
+from typing import Callable, Iterator, Mapping, Sequence, Union
 
 import mpmath
 from mpmath import mp, mpf
@@ -563,7 +563,76 @@ def _random_rational(rng: random.Random, size: int) -> Fraction:
     return -value if rng.random() < 0.5 else value
 
 
-def _rational_points(problem: _Problem, rng: random.Random) -> Iterator[dict[str, Fraction]]:
+@dataclass(frozen=True)
+class _Bound:
+    """Bounds on one variable read from conditions such as ``x > 0`` or ``1/2 <= x``."""
+
+    low: Fraction | None = None
+    low_strict: bool = True
+    high: Fraction | None = None
+    high_strict: bool = True
+
+    def tightened(self, relation: str, value: Fraction) -> "_Bound":
+        """With ``variable RELATION value`` added (RELATION one of < <= > >=)."""
+        strict = relation in ("<", ">")
+        if relation in (">", ">="):
+            if self.low is None or value > self.low or (value == self.low and strict):
+                return _Bound(value, strict, self.high, self.high_strict)
+            return self
+        if self.high is None or value < self.high or (value == self.high and strict):
+            return _Bound(self.low, self.low_strict, value, strict)
+        return self
+
+    def inside(self, raw: Fraction, rng: random.Random) -> Fraction:
+        """A value within the bounds, built from ``raw`` (a random value of any sign)."""
+        low, high = self.low, self.high
+        if low is not None and high is not None:
+            if low >= high:
+                return raw  # contradictory bounds: nothing to aim at
+            if not self.low_strict and rng.random() < 0.1:
+                return low
+            if not self.high_strict and rng.random() < 0.1:
+                return high
+            return low + (high - low) * Fraction(rng.randint(1, 99), 100)
+        offset = abs(raw) if raw != 0 else Fraction(1)
+        if low is not None:
+            return low if (not self.low_strict and rng.random() < 0.1) else low + offset
+        if high is not None:
+            return high if (not self.high_strict and rng.random() < 0.1) else high - offset
+        return raw
+
+
+_FLIPPED = {"<": ">", "<=": ">=", ">": "<", ">=": "<="}
+
+
+def _bounds(problem: _Problem) -> dict[str, _Bound]:
+    bounds: dict[str, _Bound] = {}
+    for c in problem.others:
+        if c.relation not in _FLIPPED:
+            continue
+        if isinstance(c.left, Var) and not variables(c.right):
+            name, relation, other = c.left.name, c.relation, c.right
+        elif isinstance(c.right, Var) and not variables(c.left):
+            name, relation, other = c.right.name, _FLIPPED[c.relation], c.left
+        else:
+            continue
+        try:
+            value = exact_value(other, {})
+        except (ArithmeticError, NotEvaluable):
+            continue
+        if value is None:
+            continue
+        bounds[name] = bounds.get(name, _Bound()).tightened(relation, value)
+    return bounds
+
+
+def _bounded(problem: _Problem, bounds: Mapping[str, _Bound], rng: random.Random,
+             raw: Callable[[], Fraction]) -> dict[str, Fraction]:
+    return {name: bounds[name].inside(raw(), rng) if name in bounds else raw() for name in problem.names}
+
+
+def _rational_points(problem: _Problem, rng: random.Random,
+                     bounds: Mapping[str, _Bound]) -> Iterator[dict[str, Fraction]]:
     names = problem.names
     n = len(names)
     if n == 0:
@@ -575,14 +644,21 @@ def _rational_points(problem: _Problem, rng: random.Random) -> Iterator[dict[str
         k += 1
     for combo in islice(product(_SMALL[:k], repeat=n), 256):
         yield dict(zip(names, combo))
-    # then random small values, then random fractions of growing size with varied signs and scales
+    # then random small values, then random fractions of growing size with varied signs and scales;
+    # every third point is all positive (sign hypotheses such as x > 0, y > 0 are common) and another
+    # third keeps within the bounds that conditions such as x > 1/2 put on single variables
     for i in range(150):
-        if i % 3 == 2:  # all positive: sign hypotheses such as x > 0, y > 0 are common
+        if i % 3 == 2:
             yield {name: abs(_small_rational(rng)) for name in names}
+        elif i % 3 == 1 and bounds:
+            yield _bounded(problem, bounds, rng, lambda: _small_rational(rng))
         else:
             yield {name: rng.choice(_SMALL) for name in names}
     for size in range(1, 6):
         for i in range(40):
+            if i % 3 == 1 and bounds:
+                yield _bounded(problem, bounds, rng, lambda: _random_rational(rng, size))
+                continue
             point = {name: _random_rational(rng, size) for name in names}
             yield {name: abs(v) for name, v in point.items()} if i % 3 == 2 else point
 
@@ -645,14 +721,15 @@ def _choose_unknowns(problem: _Problem, rng: random.Random) -> list[str] | None:
     return chosen
 
 
-def _exact_solutions(problem: _Problem, rng: random.Random, tries: int) -> Iterator[dict[str, Fraction]]:
+def _exact_solutions(problem: _Problem, rng: random.Random, tries: int,
+                     bounds: Mapping[str, _Bound]) -> Iterator[dict[str, Fraction]]:
     """Equations affine in their chosen variable, solved exactly by a secant step (Gauss-Seidel rounds)."""
     for _ in range(tries):
         unknowns = _choose_unknowns(problem, rng)
         if unknowns is None:
             return
-        point = {name: (_small_rational(rng) if rng.random() < 0.6 else _random_rational(rng, 2))
-                 for name in problem.names}
+        point = _bounded(problem, bounds, rng,
+                         lambda: _small_rational(rng) if rng.random() < 0.6 else _random_rational(rng, 2))
         ok = True
         for _round in range(3):
             for c, name in zip(problem.equations, unknowns):
@@ -678,8 +755,8 @@ def _exact_solutions(problem: _Problem, rng: random.Random, tries: int) -> Itera
             yield point
 
 
-def _numeric_solutions(problem: _Problem, rng: random.Random, tries: int,
-                       deadline: float) -> Iterator[dict[str, Real]]:
+def _numeric_solutions(problem: _Problem, rng: random.Random, tries: int, deadline: float,
+                       bounds: Mapping[str, _Bound]) -> Iterator[dict[str, Real]]:
     """Equations solved by Newton's method at 50 digits from random starts: square systems in one chosen
     variable per equation (the others fixed at random rationals), and every other try minimum-norm steps
     on all the equations' variables.  A root that is a small fraction is offered exactly first."""
@@ -688,8 +765,9 @@ def _numeric_solutions(problem: _Problem, rng: random.Random, tries: int,
             return
         unknowns = _choose_unknowns(problem, rng)
         # fixed values mostly of size about 1, where equations such as unit norms have real solutions
-        fixed = {name: (_small_rational(rng) / rng.choice((1, 2, 4, 8)) if rng.random() < 0.6
-                        else _random_rational(rng, 2)) for name in problem.names}
+        fixed = _bounded(problem, bounds, rng,
+                         lambda: _small_rational(rng) / rng.choice((1, 2, 4, 8)) if rng.random() < 0.6
+                         else _random_rational(rng, 2))
         plans: list[list[str]] = []
         if unknowns is not None:
             plans.append(unknowns)
@@ -698,7 +776,8 @@ def _numeric_solutions(problem: _Problem, rng: random.Random, tries: int,
         for plan in plans:
             start: dict[str, Real] = dict(fixed)
             for name in plan:
-                start[name] = Fraction(rng.uniform(-3, 3) * 10 ** rng.randint(-1, 1)).limit_denominator(10**6)
+                raw = Fraction(rng.uniform(-3, 3) * 10 ** rng.randint(-1, 1)).limit_denominator(10**6)
+                start[name] = bounds[name].inside(raw, rng) if name in bounds else raw
             root = _newton(problem.equations, start, plan, 50, iterations=25, deadline=deadline)
             if root is None:
                 continue
@@ -754,12 +833,13 @@ def _try(problem: _Problem, point: Mapping[str, Real]) -> Witness | None:
 
 
 def _candidates(problem: _Problem, rng: random.Random, deadline: float) -> Iterator[Mapping[str, Real]]:
-    rational = _rational_points(problem, rng)
+    bounds = _bounds(problem)
+    rational = _rational_points(problem, rng, bounds)
     if problem.equations:
         # small rational points often satisfy simple equations exactly (s, c = 0, 1); then solve them
         yield from islice(rational, 300)
-        yield from _exact_solutions(problem, rng, 40)
-        yield from _numeric_solutions(problem, rng, 30, deadline)
+        yield from _exact_solutions(problem, rng, 40, bounds)
+        yield from _numeric_solutions(problem, rng, 30, deadline, bounds)
     yield from rational
 
 
