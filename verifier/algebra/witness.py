@@ -594,7 +594,8 @@ class _Bound:
             if not self.high_strict and rng.random() < 0.1:
                 return high
             return low + (high - low) * Fraction(rng.randint(1, 99), 100)
-        offset = abs(raw) if raw != 0 else Fraction(1)
+        # offsets of several scales: bounds near a unit sphere leave little room
+        offset = (abs(raw) if raw != 0 else Fraction(1)) / rng.choice((1, 1, 4, 16))
         if low is not None:
             return low if (not self.low_strict and rng.random() < 0.1) else low + offset
         if high is not None:
