@@ -624,3 +624,48 @@ def test_claim_text_errors_are_reported_with_their_column(tmp_path, monkeypatch)
             return x
         """))
     assert claim.kind == "function" and claim.problem.verdict == "error"
+
+
+def test_methods_constants_and_module_state(tmp_path, monkeypatch):
+    claims = claims_in(tmp_path, monkeypatch, """\
+        import math
+
+        SCALE = 0.5
+        COUNTER = 0
+
+
+        def bump():
+            global COUNTER
+            COUNTER = COUNTER + 1
+
+
+        class Attitude:
+            def norm2(self):
+                return self.w * self.w + self.x * self.x
+
+            # idealcheck: returns 2*pi*r*(self.w**2 + self.x**2)/2
+            def scaled(self, r):
+                return math.tau * r * self.norm2() * SCALE
+
+
+        # idealcheck: returns x
+        def uses_counter(x):
+            return x + COUNTER
+
+
+        # idealcheck: returns x
+        def squares(x):
+            for _ in range(40):
+                x = x * x
+            return x
+        """)
+    method, counter, squares = claims
+    (ob,) = method.obligations
+    # tau = 2 pi (common practice); the bound method self.norm2() is inlined with the same receiver
+    assert ob.left == BinOp("*", BinOp("*", BinOp("*", BinOp("*", Num(Fraction(2)), Var("pi")), Var("r")),
+                                           BinOp("+", BinOp("*", Var("self.w"), Var("self.w")),
+                                                 BinOp("*", Var("self.x"), Var("self.x")))),
+                            Num(Fraction(1, 2)))
+    assert counter.problem.verdict == "inconclusive" and "COUNTER" in counter.problem.message
+    # 2**40 factors as a tree: refused instead of hanging
+    assert squares.problem.verdict == "inconclusive" and "grows beyond" in squares.problem.message

@@ -23,8 +23,9 @@ from libcst.metadata import MetadataWrapper, PositionProvider
 from verifier.claims.model import BinOp, Call, Condition, Expr, Neg, Num, Opaque, Pow, Var
 
 MAX_PATHS = 512  # live paths at once; more is inconclusive rather than slow
+MAX_TREE_SIZE = 50000  # nodes of an expression counted as a tree (shared parts counted each time)
 MAX_CONSTANT_EXPONENT = 64  # folding n**k of constants beyond this is left symbolic
-MATH_MODULES = ("math", "numpy", "np", "cmath")
+MATH_MODULES = ("math", "numpy", "np")
 # Decorators known not to change what a function computes (JIT compilers, caches, method kinds).
 NEUTRAL_DECORATORS = frozenset(
     {"njit", "jit", "vectorize", "lru_cache", "cache", "staticmethod", "wraps", "profile", "cfunc", "guvectorize"}
@@ -124,7 +125,20 @@ def build_module_info(path: str, module: cst.Module, positions: dict) -> ModuleI
                       relative_base=directory)
     for stmt in module.body:
         _index_statement(info, stmt, top=True)
+    info.rebound.update(_global_names(module))
     return info
+
+
+def _global_names(module: cst.Module) -> set[str]:
+    """Names some function rebinds with ``global``: their module-level value is not a constant."""
+    names: set[str] = set()
+
+    class Visitor(cst.CSTVisitor):
+        def visit_Global(self, node: cst.Global) -> None:
+            names.update(item.name.value for item in node.names)
+
+    module.visit(Visitor())
+    return names
 
 
 def _dotted(node: cst.BaseExpression) -> str | None:
@@ -422,6 +436,7 @@ class Executor:
         self._counter = 0
         self._constant_cache: dict[tuple[str, str], Value] = {}
         self._constant_busy: set[tuple[str, str]] = set()
+        self._sizes: dict[int, tuple[Value, int]] = {}
 
     # -- bookkeeping
 
@@ -864,7 +879,7 @@ class Executor:
         if isinstance(node, cst.UnaryOperation):
             result = []
             for s1, operand in self.eval(node.expression, state, frame):
-                result.append((s1, self._unary(node, operand, line)))
+                result.append((s1, self._bounded(self._unary(node, operand, line), line)))
             return result
         if isinstance(node, cst.IfExp):
             result = []
@@ -912,7 +927,7 @@ class Executor:
                 _, dotted, member = target
                 base = dotted.lstrip(".")
                 if base in MATH_MODULES:
-                    return Var("pi") if member == "pi" else Var(f"{'numpy' if base == 'np' else base}.{member}")
+                    return math_constant(base, member, line)
                 other = None if base.split(".")[0] in MATH_MODULES else self.loader.find(dotted, module)
                 if other is not None:
                     self.depend(other.path)
@@ -957,9 +972,7 @@ class Executor:
         if module_target is not None:
             dotted_module, info = module_target
             if dotted_module in MATH_MODULES:
-                if attr == "pi":
-                    return [(state, Var("pi"))]
-                return [(state, Var(f"{dotted_module}.{attr}"))]
+                return [(state, math_constant(dotted_module, attr, line))]
             if info is not None:
                 self.depend(info.path)
                 return [(state, self._global(attr, info, line))]
@@ -1085,8 +1098,36 @@ class Executor:
             return Unknown(f"the bit operation `~` at line {line} is not supported")
         return Unknown(f"`not` used as a value at line {line} is not supported")
 
+    def tree_size(self, value: Value) -> int:
+        """Size of an expression as a tree; values built from shared parts can be exponentially large."""
+        if not is_expr(value):
+            return 1
+        cached = self._sizes.get(id(value))
+        if cached is not None and cached[0] is value:
+            return cached[1]
+        if isinstance(value, BinOp):
+            size = 1 + self.tree_size(value.left) + self.tree_size(value.right)
+        elif isinstance(value, (Neg,)):
+            size = 1 + self.tree_size(value.operand)
+        elif isinstance(value, Pow):
+            size = 1 + self.tree_size(value.base)
+        elif isinstance(value, (Call, Opaque)):
+            size = 1 + sum(self.tree_size(a) for a in value.args)
+        else:
+            size = 1
+        self._sizes[id(value)] = (value, size)
+        return size
+
+    def _bounded(self, value: Value, line: int) -> Value:
+        if self.tree_size(value) > MAX_TREE_SIZE:
+            return Unknown(f"the expression at line {line} grows beyond {MAX_TREE_SIZE} terms as a tree")
+        return value
+
     def binary(self, op: str, left: Value, right: Value, line: int) -> Value:
         """``left op right`` for + - * / ** (constants folded, sequences concatenated/repeated)."""
+        return self._bounded(self._binary(op, left, right, line), line)
+
+    def _binary(self, op: str, left: Value, right: Value, line: int) -> Value:
         for v in (left, right):
             if isinstance(v, Unknown):
                 return v
@@ -1162,6 +1203,9 @@ class Executor:
         if kind == "function":
             ref: FunctionRef = target[1]
             return self._inline(ref, node, state, frame, line, receiver=None)
+        if kind == "bound":
+            receiver = state.get(target[2])
+            return self._inline(target[1], node, state, frame, line, receiver=receiver)
         if kind == "method":
             # `value.name(...)` on a variable or unknown value: opaque in the receiver and arguments
             receiver_node = func.value  # type: ignore[union-attr]
@@ -1204,6 +1248,9 @@ class Executor:
                     self.depend(info.path)
                     return self._resolve_global_callee(attr, info, line, depth=0)
                 return ("opaque", f"{dotted}.{attr}")
+            bound = self._bound_method(func, frame)
+            if bound is not None:
+                return bound
             if isinstance(func.value, cst.Name) and state.get(func.value.value) is None:
                 cls = module.classes.get(func.value.value)
                 if cls is not None and func.value.value not in module.rebound:
@@ -1213,6 +1260,22 @@ class Executor:
                     return ("opaque", f"{func.value.value}.{attr}")
             return ("method",)
         return ("unknown", f"the call at line {line} is not supported")
+
+    def _bound_method(self, func: cst.Attribute, frame: Frame) -> tuple | None:
+        """``self.method(...)`` inside a method of a class of this module: that class's method."""
+        ref = frame.function
+        if ref is None or ref.class_name is None or not isinstance(func.value, cst.Name):
+            return None
+        params = positional_parameters(ref.node)
+        if not params or func.value.value != params[0] or ref.class_name in ref.module.rebound:
+            return None
+        method = ref.module.classes.get(ref.class_name, {}).get(func.attr.value)
+        if method is None or not _neutral_decorators(method):
+            return None
+        target = FunctionRef(ref.module, method, f"{ref.class_name}.{func.attr.value}", ref.class_name)
+        if _static_like(method):
+            return ("function", target)
+        return ("bound", target, func.value.value)
 
     def _resolve_global_callee(self, name: str, module: ModuleInfo, line: int, depth: int) -> tuple:
         if depth > 8:
@@ -1299,6 +1362,8 @@ class Executor:
                                Unknown(f"{name} of a tuple, list or None at line {line} is not supported")))
                 continue
             value = self._math_value(name, args, line)  # type: ignore[arg-type]
+            if value is not None:
+                value = self._bounded(value, line)
             if value is None:
                 note = f"opaque call {name}(...) at line {line}"
                 result.extend([(after.with_note(note), Opaque(name, tuple(args)))])  # type: ignore[arg-type]
@@ -1471,6 +1536,17 @@ class Executor:
 
 
 # ---------------------------------------------------------------- helpers
+
+
+def math_constant(module: str, name: str, line: int) -> Value:
+    """``math.pi`` and friends: pi is the claim language's variable ``pi``; e is exp(1)."""
+    if name == "pi":
+        return Var("pi")
+    if name == "tau":
+        return BinOp("*", Num(Fraction(2)), Var("pi"))
+    if name == "e":
+        return Call("exp", (Num(Fraction(1)),))
+    return Unknown(f"the constant {module}.{name} at line {line} is not supported")
 
 
 def _parameters(node: cst.FunctionDef) -> list[tuple[str, cst.Param]]:
