@@ -7,6 +7,7 @@ import os
 import subprocess
 import sys
 from pathlib import Path
+import pytest
 from claim_exprs import cond, expr
 
 from verifier.algebra.accuracy import (
@@ -17,6 +18,7 @@ from verifier.algebra.accuracy import (
     ulp_error,
 )
 from verifier.claims.model import Obligation
+from verifier.cli import main
 
 NAIVE_ROOT = "(-b + sqrt(b*b - 4*a*c))/(2*a)"
 CONJUGATE_ROOT = "2*c/(-b - sqrt(b*b - 4*a*c))"
@@ -118,16 +120,25 @@ def test_check_accuracy_ranks_the_naive_root_as_less_accurate():
     assert "ulp" in left_line and "b = " in left_line
 
 
-def test_check_accuracy_keeps_machine_output_clean():
-    result = _check("--accuracy", "--accuracy-samples", "20", "--format", "json", *QUADRATIC_RANGES)
-    assert result.returncode == 0, result.stderr
-    data = json.loads(result.stdout)
+def _check_here(capsys, monkeypatch, *args: str) -> tuple[int, str, str]:
+    monkeypatch.chdir(ROOT)
+    code = main(["check", "fixtures/explain/accuracy", "--no-cache", "--in-process", *args])
+    captured = capsys.readouterr()
+    return code, captured.out, captured.err
+
+
+def test_check_accuracy_keeps_machine_output_clean(capsys, monkeypatch):
+    code, out, err = _check_here(capsys, monkeypatch, "--accuracy", "--accuracy-samples", "20", "--format", "json",
+                                 *QUADRATIC_RANGES)
+    assert code == 0, err
+    data = json.loads(out)
     assert data["summary"]["proved"] == 1
-    assert "more accurate" in result.stderr
+    assert "more accurate" in err
 
 
-def test_accuracy_options_are_validated():
+def test_accuracy_options_are_validated(capsys, monkeypatch):
     for bad in (("--accuracy-range", "5:1"), ("--accuracy-range", "x=a:b"), ("--accuracy-samples", "0")):
-        result = _check("--accuracy", *bad)
-        assert result.returncode == 2, bad
-        assert bad[0] in result.stderr
+        with pytest.raises(SystemExit) as stop:
+            _check_here(capsys, monkeypatch, "--accuracy", *bad)
+        assert stop.value.code == 2, bad
+        assert bad[0] in capsys.readouterr().err
