@@ -669,3 +669,32 @@ def test_methods_constants_and_module_state(tmp_path, monkeypatch):
     assert counter.problem.verdict == "inconclusive" and "COUNTER" in counter.problem.message
     # 2**40 factors as a tree: refused instead of hanging
     assert squares.problem.verdict == "inconclusive" and "grows beyond" in squares.problem.message
+
+
+def test_numpy_arrays_are_elementwise_not_concatenated(tmp_path, monkeypatch):
+    # numpy broadcasting and `@` (numpy documentation, common practice): [x, y] + array([1, 0]) is
+    # elementwise, while two Python lists concatenate
+    claims = claims_in(tmp_path, monkeypatch, """\
+        import numpy as np
+
+
+        # idealcheck: returns (x + 1, y, x, y, 1, 0)
+        def mixed(x, y):
+            v = [x, y] + np.array([1, 0])
+            w = [x, y] + [1, 0]
+            return v[0], v[1], w[0], w[1], w[2], w[3]
+
+
+        # idealcheck: returns (a*x + b*y, c*x + d*y, a*d - b*c)
+        def matvec(a, b, c, d, x, y):
+            m = np.array([[a, b], [c, d]])
+            r = m @ np.array([x, y])
+            out = np.zeros(3)
+            out[0] = r[0]
+            out[1] = r[1]
+            out[2] = m[0, 0] * m[1, 1] - m[0][1] * m[1][0]
+            return out[0], out[1], out[2]
+        """)
+    for claim in claims:
+        assert claim.problem is None
+        assert all(vanishes(ob.left, ob.right) for ob in claim.obligations)

@@ -22,6 +22,7 @@ from libcst.metadata import MetadataWrapper, PositionProvider
 
 from verifier.claims.model import BinOp, Call, Condition, Expr, Neg, Num, Opaque, Pow, Var
 
+MUTABLE = ("list", "array")
 MAX_PATHS = 512  # live paths at once; more is inconclusive rather than slow
 MAX_TREE_SIZE = 50000  # nodes of an expression counted as a tree (shared parts counted each time)
 MAX_CONSTANT_EXPONENT = 64  # folding n**k of constants beyond this is left symbolic
@@ -48,7 +49,7 @@ class Seq:
     """A tuple or list of known length (``ident`` tells lists apart for in-place changes)."""
 
     items: tuple["Value", ...]
-    kind: str = "tuple"  # "tuple" | "list"
+    kind: str = "tuple"  # "tuple" | "list" | "array" (numpy: arithmetic is elementwise)
     ident: int = 0
     owner: int = 0  # the frame that created a list; only it may change the list in place
 
@@ -579,7 +580,7 @@ class Executor:
                 for arg in node.args:
                     if isinstance(arg.value, cst.Name) and isinstance(after.get(arg.value.value), Seq):
                         bound = after.get(arg.value.value)
-                        if isinstance(bound, Seq) and bound.kind == "list":
+                        if isinstance(bound, Seq) and bound.kind in MUTABLE:
                             raise Stuck(f"the call at line {line} may change the list {arg.value.value}; "
                                         "calls for their side effects are not supported")
                 outcomes.append(Outcome(after, "next"))
@@ -592,7 +593,7 @@ class Executor:
             raise Stuck(f"changing a list passed in from elsewhere at line {line} is not supported")
         env = []
         for name, value in state.env:
-            if isinstance(value, Seq) and value.kind == "list" and value.ident == old.ident:
+            if isinstance(value, Seq) and value.kind in MUTABLE and value.ident == old.ident:
                 env.append((name, new))
             else:
                 if _contains_list(value, old.ident):
@@ -629,12 +630,12 @@ class Executor:
         if isinstance(target, cst.Subscript) and isinstance(target.value, cst.Name):
             current = state.get(target.value.value)
             index = self._constant_index(target, state, frame)
-            if isinstance(current, Seq) and current.kind == "list" and isinstance(index, int):
+            if isinstance(current, Seq) and current.kind in MUTABLE and isinstance(index, int):
                 items = list(current.items)
                 if not -len(items) <= index < len(items):
                     raise Stuck(f"index {index} out of range at line {line}")
                 items[index] = value
-                updated = Seq(tuple(items), "list", current.ident, current.owner)
+                updated = Seq(tuple(items), current.kind, current.ident, current.owner)
                 return self._replace_list(state, current, updated, frame, line)
             raise Stuck(f"assignment to a subscript at line {line} is not supported")
         if isinstance(target, cst.Attribute):
@@ -958,8 +959,8 @@ class Executor:
             value: Value = Unknown(f"the module-level constant {name} depends on a condition")
         else:
             value = alternatives[0][1]
-            if isinstance(value, Seq) and value.kind == "list":
-                value = Seq(value.items, "list", value.ident, -1)  # module lists must not be changed here
+            if isinstance(value, Seq) and value.kind in MUTABLE:
+                value = Seq(value.items, value.kind, value.ident, -1)  # module lists must not be changed here
         self._constant_cache[key] = value
         if module.path not in self.dependencies:
             self.depend(module.path)
@@ -1038,6 +1039,13 @@ class Executor:
                     indices.append(int(alts[0][1].value))  # type: ignore[union-attr]
                 if indices is not None and isinstance(base, Var):
                     result.append((after, Var(f"{base.name}[{', '.join(str(i) for i in indices)}]")))
+                elif indices is not None and isinstance(base, Seq):
+                    current: Value = base
+                    for i in indices:
+                        if not isinstance(current, Seq) or not -len(current.items) <= i < len(current.items):
+                            raise Stuck(f"the subscript at line {line} is out of range or too deep")
+                        current = current.items[i]
+                    result.append((after, current))
                 else:
                     result.append((after, Unknown(f"the subscript at line {line} is not supported")))
                 continue
@@ -1078,12 +1086,14 @@ class Executor:
         if bounds[2] == 0:
             return Unknown(f"a slice with step 0 at line {line}")
         items = base.items[slice(*bounds)]
-        ident = self._new_ident() if base.kind == "list" else 0
-        return Seq(tuple(items), base.kind, ident, frame.ident if base.kind == "list" else 0)
+        ident = self._new_ident() if base.kind in MUTABLE else 0
+        return Seq(tuple(items), base.kind, ident, frame.ident if base.kind in MUTABLE else 0)
 
     def _unary(self, node: cst.UnaryOperation, operand: Value, line: int) -> Value:
         if isinstance(operand, Unknown):
             return operand
+        if isinstance(node.operator, cst.Minus) and _is_array(operand):
+            return self._elementwise("*", Num(Fraction(-1)), operand, line)
         if isinstance(node.operator, cst.Minus):
             if isinstance(operand, Num):
                 return Num(-operand.value)
@@ -1131,6 +1141,8 @@ class Executor:
         for v in (left, right):
             if isinstance(v, Unknown):
                 return v
+        if _is_array(left) or _is_array(right):
+            return self._elementwise(op, left, right, line)
         if isinstance(left, Seq) or isinstance(right, Seq):
             if op == "+" and isinstance(left, Seq) and isinstance(right, Seq) and left.kind == right.kind:
                 ident = self._new_ident() if left.kind == "list" else 0
@@ -1167,8 +1179,49 @@ class Executor:
             return Num(a / b)
         return BinOp(op, left, right)  # type: ignore[arg-type]
 
+    def _elementwise(self, op: str, left: Value, right: Value, line: int) -> Value:
+        """numpy arithmetic: arrays (and lists or tuples beside them) elementwise, scalars broadcast."""
+        if isinstance(left, Seq) and isinstance(right, Seq):
+            if len(left.items) != len(right.items):
+                return Unknown(f"arrays of different lengths at line {line}")
+            items = tuple(self.binary(op, a, b, line) for a, b in zip(left.items, right.items))
+        elif isinstance(left, Seq):
+            items = tuple(self.binary(op, a, right, line) for a in left.items)
+        elif isinstance(right, Seq):
+            items = tuple(self.binary(op, left, b, line) for b in right.items)
+        else:
+            return self.binary(op, left, right, line)
+        return Seq(tuple(_as_array(i) for i in items), "array", self._new_ident(), 0)
+
+    def matmul(self, left: Value, right: Value, line: int) -> Value:
+        """``left @ right`` (also ``np.dot``) for vectors and matrices of known shape."""
+        if not (isinstance(left, Seq) and isinstance(right, Seq)) or not left.items or not right.items:
+            return Unknown(f"`@` or dot of values that are not arrays at line {line} is not supported")
+        left_matrix = isinstance(left.items[0], Seq)
+        right_matrix = isinstance(right.items[0], Seq)
+        if not left_matrix and not right_matrix:
+            if len(left.items) != len(right.items):
+                return Unknown(f"dot product of vectors of different lengths at line {line}")
+            total: Value = Num(Fraction(0))
+            for a, b in zip(left.items, right.items):
+                total = self.binary("+", total, self.binary("*", a, b, line), line)
+            return total
+        if left_matrix and not right_matrix:
+            return Seq(tuple(self.matmul(row, right, line) for row in left.items), "array", self._new_ident(), 0)
+        columns = _transpose(right)
+        if columns is None:
+            return Unknown(f"a ragged matrix at line {line} is not supported")
+        if not left_matrix:
+            return Seq(tuple(self.matmul(left, col, line) for col in columns), "array", self._new_ident(), 0)
+        rows = tuple(Seq(tuple(self.matmul(row, col, line) for col in columns), "array", self._new_ident(), 0)
+                     for row in left.items)
+        return Seq(rows, "array", self._new_ident(), 0)
+
     def _other_binary(self, node: cst.BinaryOperation, left: Value, right: Value, line: int) -> Value:
         symbol = _OTHER_OPERATORS.get(type(node.operator), type(node.operator).__name__)
+        if symbol == "@":
+            return self._bounded(self.matmul(left, right, line), line) if not _first_unknown(left, right) \
+                else _first_unknown(left, right)  # type: ignore[return-value]
         if isinstance(left, Unknown):
             return left
         if isinstance(right, Unknown):
@@ -1356,6 +1409,15 @@ class Executor:
             if keywords:
                 result.append((after, Unknown(f"keyword arguments to {name} at line {line} are not supported")))
                 continue
+            if any(isinstance(a, Seq) for a in args):
+                value = self._bounded(self._array_call(name, args, line), line)
+                result.append((after, _owned(value, frame.ident)))
+                continue
+            if name in ("zeros", "ones") and len(args) == 1 and _is_int(args[0]) and 0 <= int(args[0].value) <= 4096:
+                fill = Num(Fraction(0 if name == "zeros" else 1))
+                count = int(args[0].value)  # type: ignore[union-attr]
+                result.append((after, Seq((fill,) * count, "array", self._new_ident(), frame.ident)))
+                continue
             bad = next((a for a in args if not is_expr(a)), None)
             if bad is not None:
                 result.append((after, bad if isinstance(bad, Unknown) else
@@ -1370,6 +1432,43 @@ class Executor:
             else:
                 result.append((after, value))
         return result
+
+    def _array_call(self, name: str, args: list[Value], line: int) -> Value:
+        """numpy functions of arrays (``np.array``, ``np.dot``, ``np.sum``, ``np.cross``, elementwise math)."""
+        for a in args:
+            if isinstance(a, Unknown):
+                return a
+        if name in ("array", "asarray") and len(args) == 1 and isinstance(args[0], Seq):
+            return _as_array(args[0], fresh=self._new_ident)
+        if name in ("dot", "matmul", "inner") and len(args) == 2:
+            return self.matmul(_as_array(args[0]), _as_array(args[1]), line)
+        if name == "sum" and len(args) == 1 and isinstance(args[0], Seq) and not any(
+                isinstance(i, Seq) for i in args[0].items):
+            total: Value = Num(Fraction(0))
+            for item in args[0].items:
+                total = self.binary("+", total, item, line)
+            return total
+        if name == "cross" and len(args) == 2 and all(isinstance(a, Seq) and len(a.items) == 3 for a in args):
+            (ax, ay, az), (bx, by, bz) = args[0].items, args[1].items  # type: ignore[union-attr]
+            b = self.binary
+
+            def minus(p: Value, q: Value) -> Value:
+                return b("-", p, q, line)
+
+            items = (minus(b("*", ay, bz, line), b("*", az, by, line)),
+                     minus(b("*", az, bx, line), b("*", ax, bz, line)),
+                     minus(b("*", ax, by, line), b("*", ay, bx, line)))
+            return Seq(items, "array", self._new_ident(), 0)
+        if len(args) == 1 and isinstance(args[0], Seq) and name in ("sqrt", "sin", "cos", "tan", "exp", "log",
+                                                                      "square"):
+            items = []
+            for item in args[0].items:
+                if not is_expr(item):
+                    return Unknown(f"{name} of a nested array at line {line} is not supported")
+                value = self._math_value(name, [item], line)  # type: ignore[list-item]
+                items.append(value if value is not None else Unknown(f"{name} at line {line}"))
+            return Seq(tuple(items), "array", self._new_ident(), 0)
+        return Unknown(f"{name}(...) of a tuple, list or array at line {line} is not supported")
 
     def _math_value(self, name: str, args: list[Expr], line: int) -> Value | None:
         n = len(args)
@@ -1608,9 +1707,43 @@ def _is_generator(node: cst.FunctionDef) -> bool:
     return bool(found)
 
 
+def _owned(value: Value, owner: int) -> Value:
+    if isinstance(value, Seq) and value.kind == "array":
+        return Seq(value.items, value.kind, value.ident, owner)
+    return value
+
+
+def _is_array(value: object) -> bool:
+    return isinstance(value, Seq) and value.kind == "array"
+
+
+def _as_array(value: Value, fresh=None) -> Value:
+    """A tuple or list (nested too) as a numpy array; other values unchanged."""
+    if not isinstance(value, Seq):
+        return value
+    ident = fresh() if fresh is not None else value.ident
+    return Seq(tuple(_as_array(item, fresh) for item in value.items), "array", ident, 0)
+
+
+def _transpose(matrix: Seq) -> tuple[Seq, ...] | None:
+    rows = matrix.items
+    if not all(isinstance(r, Seq) and len(r.items) == len(rows[0].items) for r in rows):  # type: ignore[union-attr]
+        return None
+    width = len(rows[0].items)  # type: ignore[union-attr]
+    return tuple(Seq(tuple(r.items[j] for r in rows), "array") for j in range(width))  # type: ignore[union-attr]
+
+
+def _first_unknown(*values: Value) -> Unknown | None:
+    for v in values:
+        found = first_unknown(v)
+        if found is not None:
+            return found
+    return None
+
+
 def _contains_list(value: Value, ident: int) -> bool:
     if isinstance(value, Seq):
-        return any((isinstance(i, Seq) and i.kind == "list" and i.ident == ident) or _contains_list(i, ident)
+        return any((isinstance(i, Seq) and i.kind in MUTABLE and i.ident == ident) or _contains_list(i, ident)
                    for i in value.items)
     return False
 
