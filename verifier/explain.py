@@ -43,6 +43,8 @@ class GeneratorText:
 class CertificateText:
     power: int
     terms: tuple[tuple[str, str], ...]  # (cofactor, generator) pairs with a non-zero cofactor
+    multiplier: str | None = None  # a sign-argument proof: (LEFT - RIGHT) * multiplier is in the ideal
+    sign_note: str | None = None  # what else the sign argument shows
 
 
 @dataclass(frozen=True)
@@ -136,9 +138,23 @@ def certificate_polys(certificate: Certificate) -> tuple[PolyRing, PolyElement, 
 
 
 def _certificate_text(certificate: Certificate) -> CertificateText:
-    _, _, generators, cofactors = certificate_polys(certificate)
+    ring, _, generators, cofactors = certificate_polys(certificate)
     terms = tuple((format_poly(c), format_poly(g)) for c, g in zip(cofactors, generators) if c)
-    return CertificateText(certificate.power, terms)
+    sign = getattr(certificate, "sign", None)  # the conjugate (sign) argument, when the proof used one
+    if sign is None:
+        return CertificateText(certificate.power, terms)
+    multiplier = certificate_polys(_with_target(certificate, sign.multiplier))[1]
+    nonnegative = certificate_polys(_with_target(certificate, sign.nonnegative))[1]
+    note = (f"with LEFT - RIGHT = A*{sign.root} + B and the multiplier A*{sign.root} - B, -A*B - P is in the "
+            f"ideal too, where P = {format_poly(nonnegative)} has positive coefficients and odd powers only of "
+            f"{', '.join(sign.nonnegative_symbols) or 'no variable'} (so it is not negative)")
+    return CertificateText(certificate.power, terms, format_poly(multiplier), note)
+
+
+def _with_target(certificate: Certificate, target) -> Certificate:
+    from dataclasses import replace
+
+    return replace(certificate, target=target)
 
 
 def explain_obligation(

@@ -62,12 +62,16 @@ def _obligation_lines(item: ObligationExplanation, several: bool) -> list[str]:
     if item.certificate is not None:
         power = item.certificate.power
         target = "LEFT - RIGHT" if power == 1 else f"(LEFT - RIGHT)**{power}"
+        if item.certificate.multiplier is not None:
+            target = f"(LEFT - RIGHT) * ({item.certificate.multiplier})"
         if not item.certificate.terms:
             lines.append(f"{ind}certificate: {target} expands to 0")
         else:
             lines.append(f"{ind}certificate: {target} = sum of cofactor * generator:")
             for cofactor, generator in item.certificate.terms:
                 lines.append(f"{ind}  ({cofactor}) * ({generator})")
+        if item.certificate.sign_note is not None:
+            lines.append(f"{ind}  sign argument: {item.certificate.sign_note}")
     if result is not None and result.witness is not None:
         w = result.witness
         how = "checked exactly" if w.exact else "checked with high-precision arithmetic"
