@@ -82,6 +82,16 @@ def test_equation_conditions_are_met_by_solving():
     assert abs(point["s"] - (point["a"] + point["b"] + point["c"]) / 2) <= 4 * math.ulp(point["s"])
 
 
+def test_points_on_a_unit_sphere_inside_wide_ranges():
+    # a rotation-matrix entry of a unit quaternion, two ways (common practice): with the default ranges
+    # [-10, 10] most draws have no real solution, so the sampler narrows the ranges and solves for z
+    ob = Obligation(expr("1 - 2*(y*y + z*z)"), expr("w*w + x*x - y*y - z*z"), (cond("w*w + x*x + y*y + z*z == 1"),))
+    estimate = estimate_accuracy(ob, AccuracySettings(samples=40, seed=5))
+    assert estimate.samples == 40 and estimate.equations_solved == ("z",)
+    point = dict(estimate.left.worst_point)
+    assert abs(sum(v * v for v in point.values()) - 1) < 1e-12
+
+
 def test_sign_conditions_reject_points():
     ob = Obligation(expr("sqrt(x)**2"), expr("x"), (cond("x > 1"),))
     estimate = estimate_accuracy(ob, AccuracySettings(samples=30, seed=0, default_range=(-4.0, 4.0)))

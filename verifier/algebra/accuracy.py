@@ -26,6 +26,7 @@ EXACT_DIGITS = 60  # decimal digits of the reference value when it is irrational
 DEFAULT_SAMPLES = 1000
 DEFAULT_RANGE = (-10.0, 10.0)
 _ATTEMPTS_PER_SAMPLE = 20
+_NEWTON_STEPS = 60
 
 
 class NotMeasurable(Exception):
@@ -199,33 +200,84 @@ def _plan_equations(equations: Sequence[Condition], names: Sequence[str]) -> lis
     return chosen
 
 
+def _linear_solve(matrix: list[list[float]], rhs: list[float]) -> list[float] | None:
+    """Gaussian elimination with partial pivoting; None when the matrix is (numerically) singular."""
+    n = len(rhs)
+    a = [row[:] + [b] for row, b in zip(matrix, rhs)]
+    for col in range(n):
+        pivot = max(range(col, n), key=lambda r: abs(a[r][col]))
+        if abs(a[pivot][col]) < 1e-300:
+            return None
+        a[col], a[pivot] = a[pivot], a[col]
+        for r in range(col + 1, n):
+            factor = a[r][col] / a[col][col]
+            for k in range(col, n + 1):
+                a[r][k] -= factor * a[col][k]
+    x = [0.0] * n
+    for r in range(n - 1, -1, -1):
+        x[r] = (a[r][n] - sum(a[r][k] * x[k] for k in range(r + 1, n))) / a[r][r]
+    return x
+
+
 def _solve(equations: Sequence[Condition], unknowns: Sequence[str], point: dict[str, float], rng: random.Random,
            settings: AccuracySettings) -> bool:
-    """Complete ``point`` with values of ``unknowns`` that satisfy ``equations`` (numerically, then rounded)."""
+    """Complete ``point`` with values of ``unknowns`` that satisfy ``equations``.
+
+    Damped Newton's method in double arithmetic with a finite-difference Jacobian: the point is rounded to
+    doubles anyway, so solving more precisely would buy nothing.
+    """
     if not equations:
         return True
 
-    def residuals(*xs):
+    def residuals(xs: list[float]) -> tuple[list[float], list[float]]:
         values = dict(point)
-        values.update({u: x for u, x in zip(unknowns, xs)})
-        return [numeric_value(c.left, values, 30) - numeric_value(c.right, values, 30) for c in equations]
+        values.update(zip(unknowns, xs))
+        out, scales = [], []
+        for c in equations:
+            left, right = float_value(c.left, values), float_value(c.right, values)
+            out.append(left - right)
+            scales.append(max(1.0, abs(left), abs(right)))
+        if not all(math.isfinite(v) for v in out):
+            raise OverflowError("non-finite residual")
+        return out, scales
 
-    start = [rng.uniform(*settings.range_of(u)) for u in unknowns]
+    xs = [rng.uniform(*settings.range_of(u)) for u in unknowns]
     try:
-        with mp.workdps(30):
-            if len(unknowns) == 1:
-                roots = [mpmath.findroot(lambda x: residuals(x)[0], start[0])]
+        r, scales = residuals(xs)
+        for _ in range(_NEWTON_STEPS):
+            if all(abs(v) <= 1e-13 * sc for v, sc in zip(r, scales)):
+                break
+            jacobian_columns = []
+            for j in range(len(xs)):
+                h = 1e-7 * max(1.0, abs(xs[j]))
+                shifted = xs[:]
+                shifted[j] += h
+                jacobian_columns.append([(a - b) / h for a, b in zip(residuals(shifted)[0], r)])
+            matrix = [[jacobian_columns[j][i] for j in range(len(xs))] for i in range(len(r))]
+            step = _linear_solve(matrix, [-v for v in r])
+            if step is None:
+                return False
+            norm = sum(v * v for v in r)
+            damping = 1.0
+            for _ in range(20):
+                trial = [x + damping * d for x, d in zip(xs, step)]
+                try:
+                    trial_r, trial_scales = residuals(trial)
+                except (ValueError, ZeroDivisionError, OverflowError, ArithmeticError):
+                    trial_r = None
+                if trial_r is not None and sum(v * v for v in trial_r) < norm:
+                    xs, r, scales = trial, trial_r, trial_scales
+                    break
+                damping /= 2
             else:
-                roots = list(mpmath.findroot(lambda *xs: residuals(*xs), start))
-    except (ValueError, ZeroDivisionError, DomainError, OverflowError, ArithmeticError, NotEvaluable):
+                return False
+        else:
+            return False
+    except (ValueError, ZeroDivisionError, OverflowError, ArithmeticError, NotEvaluable):
         return False
-    for u, root in zip(unknowns, roots):
-        if mpmath.im(root) != 0:
-            return False
-        value = float(mpmath.re(root))
-        if not math.isfinite(value):
-            return False
-        point[u] = value
+    if not all(math.isfinite(x) for x in xs):
+        return False
+    point.update(zip(unknowns, xs))
     return True
 
 
@@ -233,8 +285,20 @@ def _sample_point(
     names: Sequence[str], equations: Sequence[Condition], unknowns: Sequence[str], others: Sequence[Condition],
     rng: random.Random, settings: AccuracySettings,
 ) -> dict[str, float] | None:
-    point = {n: rng.uniform(*settings.range_of(n)) for n in names if n not in unknowns}
-    if not _solve(equations, unknowns, point, rng, settings):
+    free = [n for n in names if n not in unknowns]
+    point = {n: rng.uniform(*settings.range_of(n)) for n in free}
+    solved = _solve(equations, unknowns, point, rng, settings)
+    # an equation often has real solutions only near the middle of the ranges (a unit sphere inside
+    # [-10, 10]): draw the free variables again from ranges shrunk towards their midpoints
+    shrink = 1.0
+    while not solved and equations and shrink > 1e-3:
+        shrink /= 4
+        for n in free:
+            low, high = settings.range_of(n)
+            middle, half = (low + high) / 2, (high - low) / 2 * shrink
+            point[n] = rng.uniform(middle - half, middle + half)
+        solved = _solve(equations, unknowns, point, rng, settings)
+    if not solved:
         return None
     try:
         for condition in others:
