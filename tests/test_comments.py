@@ -205,3 +205,18 @@ def test_unknown_named_condition_is_an_error_naming_it() -> None:
     (claim,) = extract("k.jl", "# idealcheck: a == a given no_such_set\n", _context())
     assert claim.problem is not None and "`no_such_set`" in claim.problem.message
     assert claim.location.column == len("# idealcheck: a == a given ") + 1
+
+
+def test_escaped_quote_char_literal_does_not_open_a_string() -> None:
+    # C: '\'' is one character literal (ISO C, character constants; common practice).
+    (claim,) = find_comments("q.c", "char q = '\\''; // idealcheck: a == a\n")
+    assert claim.column == len("char q = '\\''; // ") + 1
+
+
+def test_objective_c_m_files_use_c_comments() -> None:
+    text = "#import <Foundation/Foundation.h>\n// idealcheck: a == a\n% idealcheck: not_a_claim == 1\n"
+    assert [c.text for c in find_comments("view.m", text)] == ["a == a"]
+
+
+def test_files_without_the_marker_are_skipped_quickly() -> None:
+    assert find_comments("big.c", "/* no claims */\n" * 1000) == []

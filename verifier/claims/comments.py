@@ -139,7 +139,7 @@ def _python_segments(text: str) -> list[_Segment] | None:
     return segments
 
 
-_STRICT_CHAR = re.compile(r"'(?:\\[^'\n]{1,10}|[^\\'\n])'")
+_STRICT_CHAR = re.compile(r"'(?:\\.[^'\n]{0,9}|[^\\'\n])'")
 
 
 def _string_end(line: str, start: int, quote: str, escapes: bool) -> int:
@@ -157,6 +157,11 @@ def _string_end(line: str, start: int, quote: str, escapes: bool) -> int:
 
 def _scan_segments(text: str, syntax: CommentSyntax) -> list[_Segment]:
     segments: list[_Segment] = []
+    starts = {token[0] for token in (*syntax.line_leaders, *syntax.quotes, *syntax.multiline_quotes)}
+    starts |= {opener[0] for opener, _ in syntax.blocks}
+    if syntax.char_quote:
+        starts.add("'")
+    interesting = re.compile("[" + re.escape("".join(sorted(starts))) + "]")
     block_close: str | None = None  # inside a block comment
     open_quote: str | None = None  # inside a multi-line string
     for number, line in enumerate(text.splitlines(), start=1):
@@ -181,10 +186,14 @@ def _scan_segments(text: str, syntax: CommentSyntax) -> list[_Segment]:
             open_quote = None
             code_before = True
         while i < len(line):
+            # jump over plain code to the next character that may start a comment or a string
+            match = interesting.search(line, i)
+            if match is None:
+                break
+            if match.start() > i:
+                code_before = code_before or bool(line[i : match.start()].strip())
+                i = match.start()
             char = line[i]
-            if char.isspace():
-                i += 1
-                continue
             handled = False
             for opener, closer in syntax.blocks:
                 if line.startswith(opener, i):
@@ -260,6 +269,9 @@ def _generic_segments(text: str) -> list[_Segment]:
     return segments
 
 
+_OBJECTIVE_C = re.compile(r"^\s*(?:#import|#include|@interface|@implementation|@protocol)\b", re.MULTILINE)
+
+
 def comment_segments(path: str, text: str) -> list[_Segment]:
     """Every comment piece of ``text`` (one per line of a block comment), in file order."""
     extension = os.path.splitext(path)[1].lower()
@@ -269,6 +281,8 @@ def comment_segments(path: str, text: str) -> list[_Segment]:
             return found
         return _scan_segments(text, HASH)
     syntax = syntax_for(path)
+    if syntax is MATLAB and _OBJECTIVE_C.search(text):
+        syntax = C_LIKE  # .m is also Objective-C
     if syntax is None:
         return _generic_segments(text)
     return _scan_segments(text, syntax)
@@ -315,6 +329,8 @@ def _strip_backslash(text: str) -> tuple[str, bool]:
 
 def find_comments(path: str, text: str) -> list[CommentClaim]:
     """The ``idealcheck:`` claims in the comments of ``text``; ``path`` selects the comment syntax."""
+    if MARKER not in text:
+        return []
     if text.startswith("\ufeff"):  # a byte-order mark is not a column
         text = text[1:]
     segments = comment_segments(path, text)
