@@ -23,7 +23,7 @@ from verifier.algebra.evaluate import DomainError, NotEvaluable, exact_value, nu
 from verifier.claims.model import BinOp, Call, Condition, Expr, Neg, Num, Obligation, Opaque, Pow, Var
 
 EXACT_DIGITS = 60  # decimal digits of the reference value when it is irrational
-DEFAULT_SAMPLES = 1000
+DEFAULT_SAMPLES = 500
 DEFAULT_RANGE = (-10.0, 10.0)
 _ATTEMPTS_PER_SAMPLE = 20
 _NEWTON_STEPS = 60
@@ -290,10 +290,13 @@ def _sample_point(
     solved = _solve(equations, unknowns, point, rng, settings)
     # an equation often has real solutions only near the middle of the ranges (a unit sphere inside
     # [-10, 10]): draw the free variables again from ranges shrunk towards their midpoints
+    involved = set().union(*(variables(c.left) | variables(c.right) for c in equations)) if equations else set()
     shrink = 1.0
     while not solved and equations and shrink > 1e-3:
         shrink /= 4
         for n in free:
+            if n not in involved:
+                continue
             low, high = settings.range_of(n)
             middle, half = (low + high) / 2, (high - low) / 2 * shrink
             point[n] = rng.uniform(middle - half, middle + half)

@@ -34,7 +34,8 @@ def _obligation_lines(item: ObligationExplanation, several: bool) -> list[str]:
     else:
         lines.append(f"{ind}condition ideal: the zero ideal (no conditions)")
     if item.basis:
-        lines.append(f"{ind}reduced Groebner basis ({len(item.basis)} polynomials):")
+        count = len(item.basis)
+        lines.append(f"{ind}reduced Groebner basis ({count} polynomial{'' if count == 1 else 's'}):")
         for b in item.basis:
             lines.append(f"{ind}  {b}")
         lines.append(f"{ind}leading-term ideal, minimal generators: " + ", ".join(item.leading_generators))
