@@ -303,3 +303,21 @@ def test_bounds_on_single_variables_steer_the_search():
         assert abs(p["w"] ** 2 + p["x"] ** 2 + p["y"] ** 2 + p["z"] ** 2 - 1) < mpf(10) ** -35
         assert p["w"] > 0.1 and p["x"] > 0.5 and p["y"] > 0.3 and p["z"] < -0.2
         assert p["a"] > 0 and p["b"] > 0
+
+
+def test_dependent_equations_still_give_numeric_witnesses():
+    # s**2 + c**2 == 1 follows from the other three (not a multiple of any one of them); with
+    # h**2 == 3*k**2 the point is t = 2*pi/3: s = sqrt(3)/2, c = -1/2 (common practice)
+    conditions = ["s**2 + c**2 == 1", "h**2 + k**2 == 1", "s == 2*h*k", "c == k**2 - h**2", "h**2 == 3*k**2",
+                  "h > 0", "k > 0"]
+    w = search("s", "c", *conditions)
+    assert w is not None and not w.exact
+    with mp.workdps(60):
+        p = high_precision_point(w)
+        assert abs(p["s"] - mpmath.sqrt(3) / 2) < mpf(10) ** -35
+        assert abs(p["c"] + mpf(1) / 2) < mpf(10) ** -35
+    # a point 1e-20 off the solution is not accepted (the check moves it by no more than 1e-25)
+    values = {name: text for name, text in w.values}
+    assert check_witness(expr("s"), expr("c"), [cond(c) for c in conditions], values) == w
+    values["c"] = "-0.50000000000000000001"
+    assert check_witness(expr("s"), expr("c"), [cond(c) for c in conditions], values) is None

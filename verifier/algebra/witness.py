@@ -135,6 +135,7 @@ _MAX_MOVE = mpf(10) ** -25  # how far (relative) the refinement may move a check
 _RANK_TOLERANCE = mpf(10) ** -12  # smallest singular value of the Jacobian, relative to max(1, largest entry)
 _VALUE_DIGITS = 40  # significant digits of an irrational witness value
 _SIDE_DIGITS = 20  # significant digits of the printed sides
+_SEARCH_DIGITS = 30  # working precision of the search (the check refines at 60 and 120 digits)
 
 
 @dataclass(frozen=True)
@@ -337,36 +338,104 @@ def _min_singular_ratio(jac: mpmath.matrix) -> mpf:
     return min(abs(singular[i]) for i in range(rows)) / largest
 
 
+def _minimum_norm_step(jac: mpmath.matrix, f: mpmath.matrix) -> list[mpf]:
+    """step = J^T (J J^T + lambda I)^-1 f: the minimum-norm Newton step, with a tiny damping lambda (relative
+    10**-(dps/3)) so that dependent equations (a circle stated twice in different forms) do not make the
+    linear system singular."""
+    gram = jac * jac.T
+    size = max([abs(gram[i, i]) for i in range(gram.rows)] + [mpf(0)])
+    if size == 0:
+        raise ZeroDivisionError("zero Jacobian")
+    damping = size * mpf(10) ** (-(mp.dps // 3))
+    for i in range(gram.rows):
+        gram[i, i] += damping
+    y = mpmath.lu_solve(gram, f)
+    step = jac.T * y
+    return [step[j] for j in range(jac.cols)]
+
+
 def _newton(equations: Sequence[Condition], start: Mapping[str, Real], unknowns: Sequence[str], prec: int,
             iterations: int = 30, deadline: float | None = None) -> dict[str, mpf] | None:
-    """Minimum-norm Newton steps on ``unknowns`` until the residuals are below 10**-(0.8 prec) (relative);
-    None when that fails or the Jacobian at the end does not have full row rank."""
+    """Gauss-Newton steps (minimum norm) on ``unknowns`` until every residual is below 10**-(0.8 prec)
+    relative to the size of its sides; None when that does not happen."""
     with mp.workdps(prec + 10):
         point: dict[str, mpf] = {name: to_mpf(v) for name, v in start.items()}
         eps = tiny(prec)
-        for _ in range(iterations):
+        history: list[mpf] = []
+        for iteration in range(iterations):
             if deadline is not None and time.monotonic() > deadline:
                 return None
             try:
                 res = _residuals(equations, point, prec)
                 if all(abs(r) <= eps * s for r, s in res):
-                    jac = _jacobian(equations, point, unknowns, prec)
-                    if _min_singular_ratio(jac) < _RANK_TOLERANCE:
-                        return None
                     return point
+                history.append(max(abs(r) / s for r, s in res))
+                if iteration >= 6 and history[-1] > history[-4] / 2:
+                    return None  # not converging (no real solution nearby, or a singular one)
                 jac = _jacobian(equations, point, unknowns, prec)
-                f = mpmath.matrix([r for r, _ in res])
-                gram = jac * jac.T
-                step = jac.T * mpmath.lu_solve(gram, f)
-            except ArithmeticError:  # DomainError, ZeroDivisionError, overflow
-                return None
-            except ValueError:  # singular matrix in lu_solve
+                step = _minimum_norm_step(jac, mpmath.matrix([r for r, _ in res]))
+            except (ArithmeticError, ValueError):  # undefined on the way, or mpmath gave up
                 return None
             for j, name in enumerate(unknowns):
                 point[name] = point[name] - step[j]
                 if not mpmath.isfinite(point[name]) or abs(point[name]) > mpf(10) ** 12:
                     return None
         return None
+
+
+def _independent_rows(jac: mpmath.matrix) -> list[int]:
+    """A maximal set of rows of full rank, chosen greedily in order."""
+    chosen: list[int] = []
+    for i in range(jac.rows):
+        trial = chosen + [i]
+        sub = mpmath.matrix(len(trial), jac.cols)
+        for r, row in enumerate(trial):
+            for c in range(jac.cols):
+                sub[r, c] = jac[row, c]
+        if _min_singular_ratio(sub) >= _RANK_TOLERANCE:
+            chosen = trial
+    return chosen
+
+
+def _refine(problem: _Problem, point: Mapping[str, Real], prec: int
+            ) -> tuple[dict[str, Real], list[mpf]] | None:
+    """Move the point onto the equations: Newton on a maximal set of equations whose Jacobian has full
+    row rank (a regular point: a true solution lies within about residual/singular value), only over
+    their variables.  The other equations must then hold to the precision; their residuals are returned
+    so that the caller can reject residuals that are the same at both precisions (real, not rounding)."""
+    equations = list(problem.equations)
+    names = list(problem.equation_names)
+    with mp.workdps(prec + 10):
+        start = {name: to_mpf(v) for name, v in point.items()}
+        rows = _independent_rows(_jacobian(equations, start, names, prec))
+    system = [equations[i] for i in rows]
+    dependent = [c for i, c in enumerate(equations) if i not in rows]
+    unknowns = sorted(set().union(*(variables(c.left) | variables(c.right) for c in system))) if system else []
+    current: dict[str, Real] = dict(point)
+    if system:
+        refined = _newton(system, point, unknowns, prec)
+        if refined is None:
+            return None
+        with mp.workdps(prec + 10):
+            if _min_singular_ratio(_jacobian(system, refined, unknowns, prec)) < _RANK_TOLERANCE:
+                return None
+            for name in unknowns:
+                begin = to_mpf(point[name])
+                if abs(refined[name] - begin) > _MAX_MOVE * _scale(begin):
+                    return None
+        current.update({name: refined[name] for name in unknowns})
+    eps = tiny(prec)
+    with mp.workdps(prec):
+        # every equation, now with every radicand >= 0 for real
+        for residual, size in _residuals(system, current, prec, strict=True):
+            if abs(residual) > eps * size:
+                return None
+        leftovers = []
+        for residual, size in _residuals(dependent, current, prec, strict=True):
+            if abs(residual) > eps * size:
+                return None
+            leftovers.append(residual)
+    return current, leftovers
 
 
 def _numeric_difference(a: mpf, b: mpf) -> tuple[mpf, mpf]:
@@ -379,6 +448,7 @@ class _Pass:
 
     strict: list[mpf]  # strict inequalities and != (left - right), then the sides' difference last
     loose: list[mpf]  # non-strict inequalities (left - right, sign-normalized so that >= 0 is wanted)
+    dependent: list[mpf]  # residuals of equations left out of the Newton system (must be rounding noise)
     left: mpf
     right: mpf
 
@@ -387,23 +457,14 @@ def _numeric_pass(problem: _Problem, point: Mapping[str, Real], prec: int) -> _P
     """At one precision: refine onto the equations, check them and the conditions, return the differences
     (to be compared across precisions) and the sides."""
     current: Mapping[str, Real] = point
+    dependent: list[mpf] = []
     if problem.equations:
-        unknowns = list(problem.equation_names)
-        refined = _newton(problem.equations, point, unknowns, prec)
+        refined = _refine(problem, point, prec)
         if refined is None:
             return None
-        with mp.workdps(prec):
-            for name in unknowns:
-                start = to_mpf(point[name])
-                if abs(refined[name] - start) > _MAX_MOVE * _scale(start):
-                    return None
-        current = refined
-        # the equations themselves, now with every radicand >= 0 for real
-        for residual, size in _residuals(problem.equations, current, prec, strict=True):
-            if abs(residual) > tiny(prec) * size:
-                return None
+        current, dependent = refined
     eps = tiny(prec)
-    result = _Pass([], [], mpf(0), mpf(0))
+    result = _Pass([], [], dependent, mpf(0), mpf(0))
     with mp.workdps(prec):
         for residual, size in _residuals(problem.extra_equations, current, prec, strict=True):
             if abs(residual) > eps * size:
@@ -457,6 +518,12 @@ def _verify(problem: _Problem, point: Mapping[str, Fraction], texts: Mapping[str
         return None
     # a non-strict condition may be 0 up to rounding, but not negative by the same amount at both precisions
     if any(b < 0 and _consistent(a, b) for a, b in zip(low.loose, high.loose)):
+        return None
+    # an equation left out as dependent must vanish up to rounding: a residual that is the same at both
+    # precisions is real (x = 1e-70 does not solve x**2 == 0)
+    if len(low.dependent) != len(high.dependent):
+        return None
+    if any(b != 0 and _consistent(a, b) for a, b in zip(low.dependent, high.dependent)):
         return None
     values = tuple((name, texts[name]) for name in problem.names)
     with mp.workdps(_HIGH):
@@ -525,6 +592,13 @@ def check_witness(left: Expr, right: Expr, conditions: Sequence[Condition],
 
 def _witness_from(problem: _Problem, point: Mapping[str, Real]) -> Witness | None:
     """Print a candidate (exact values as fractions, others with 40 digits) and check what is printed."""
+    moving = [name for name in problem.equation_names if not isinstance(point[name], Fraction)]
+    if problem.equations and moving:
+        # the search works at 30 digits: polish its solution before printing 40 (exact values stay put)
+        polished = _newton(problem.equations, point, moving, _LOW)
+        if polished is None:
+            return None
+        point = {name: (polished[name] if name in moving else point[name]) for name in problem.names}
     texts: dict[str, str] = {}
     exact: dict[str, Fraction] = {}
     for name in problem.names:
@@ -779,16 +853,16 @@ def _numeric_solutions(problem: _Problem, rng: random.Random, tries: int, deadli
             for name in plan:
                 raw = Fraction(rng.uniform(-3, 3) * 10 ** rng.randint(-1, 1)).limit_denominator(10**6)
                 start[name] = bounds[name].inside(raw, rng) if name in bounds else raw
-            root = _newton(problem.equations, start, plan, 50, iterations=25, deadline=deadline)
+            root = _newton(problem.equations, start, plan, _SEARCH_DIGITS, iterations=20, deadline=deadline)
             if root is None:
                 continue
             candidate: dict[str, Real] = dict(fixed)
             candidate.update({name: root[name] for name in plan})
             rounded = dict(candidate)
             for name in plan:
-                with mp.workdps(50):
-                    rounded[name] = Fraction(mpmath.nstr(root[name], 40, min_fixed=-60, max_fixed=60)
-                                             ).limit_denominator(10**6)
+                with mp.workdps(_SEARCH_DIGITS):
+                    rounded[name] = Fraction(mpmath.nstr(root[name], _SEARCH_DIGITS, min_fixed=-60,
+                                                         max_fixed=60)).limit_denominator(10**6)
             yield rounded
             yield candidate
 
