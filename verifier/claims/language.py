@@ -539,7 +539,8 @@ def _show(expr: Expr, context: int) -> str:
         shown = str(exponent.numerator) if exponent.denominator == 1 else f"({exponent})"
         if exponent < 0 and exponent.denominator == 1:
             shown = f"({exponent})"
-        return f"{_show(expr.base, 4)}**{shown}"
+        text = f"{_show(expr.base, 5)}**{shown}"
+        return f"({text})" if context > 4 else text
     if isinstance(expr, (Call, Opaque)):
         name = expr.function if isinstance(expr, Call) else expr.name
         return f"{name}({', '.join(_show(arg, 0) for arg in expr.args)})"
