@@ -152,3 +152,26 @@ def test_accuracy_options_are_validated(capsys, monkeypatch):
             _check_here(capsys, monkeypatch, "--accuracy", *bad)
         assert stop.value.code == 2, bad
         assert bad[0] in capsys.readouterr().err
+
+
+def test_accuracy_settings_from_the_config(tmp_path, capsys, monkeypatch):
+    (tmp_path / "pyproject.toml").write_text(
+        "[tool.idealcheck.accuracy]\nsamples = 30\nseed = 4\n"
+        "ranges = { a = [0.5, 2.0], b = [1e3, 1e6], c = [0.5, 2.0] }\n")
+    (tmp_path / "roots.py").write_text((ROOT / "fixtures/explain/accuracy/quadratic.py").read_text())
+    monkeypatch.chdir(tmp_path)
+    assert main(["check", "roots.py", "--no-cache", "--in-process", "--accuracy"]) == 0
+    out = capsys.readouterr().out
+    assert "30 sampled points" in out
+    assert "the right side is more accurate on these samples" in out
+    # the command line overrides the config
+    assert main(["check", "roots.py", "--no-cache", "--in-process", "--accuracy", "--accuracy-samples", "7"]) == 0
+    assert "7 sampled points" in capsys.readouterr().out
+
+
+@pytest.mark.parametrize("table", ["samples = 0", "range = [2, 1]", "ranges = { b = [1] }", "colour = 1", "seed = 1.5"])
+def test_bad_accuracy_config_is_a_usage_error(tmp_path, capsys, monkeypatch, table):
+    (tmp_path / "pyproject.toml").write_text(f"[tool.idealcheck.accuracy]\n{table}\n")
+    monkeypatch.chdir(tmp_path)
+    assert main(["check", ".", "--no-cache", "--in-process"]) == 2
+    assert "tool.idealcheck.accuracy" in capsys.readouterr().err

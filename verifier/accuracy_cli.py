@@ -8,6 +8,7 @@ from __future__ import annotations
 import argparse
 import math
 from collections.abc import Sequence
+from typing import Any
 
 from verifier.algebra.accuracy import DEFAULT_RANGE, DEFAULT_SAMPLES, AccuracyEstimate, AccuracySettings, estimate_accuracy
 from verifier.algebra.verdict import Verdict
@@ -52,27 +53,34 @@ def add_accuracy_options(parser: argparse.ArgumentParser) -> None:
     group = parser.add_argument_group("floating-point accuracy (a sampled estimate, not a bound)")
     group.add_argument("--accuracy", action="store_true",
                        help="for proved claims, estimate the rounding error of each side in IEEE double")
-    group.add_argument("--accuracy-samples", type=_samples, default=DEFAULT_SAMPLES, metavar="N",
-                       help=f"points per claim (default {DEFAULT_SAMPLES})")
-    group.add_argument("--accuracy-seed", type=_seed, default=0, metavar="S", help="random seed (default 0)")
+    group.add_argument("--accuracy-samples", type=_samples, metavar="N",
+                       help=f"points per claim (config: accuracy.samples; default {DEFAULT_SAMPLES})")
+    group.add_argument("--accuracy-seed", type=_seed, metavar="S", help="random seed (config: accuracy.seed; default 0)")
     group.add_argument("--accuracy-range", type=parse_range, action="append", default=[], metavar="[NAME=]LO:HI",
-                       help=f"sampling range, for every variable or one (default {DEFAULT_RANGE[0]:g}:{DEFAULT_RANGE[1]:g});"
-                            " repeatable")
+                       help="sampling range for every variable or one, repeatable (config: accuracy.range and "
+                            f"accuracy.ranges; default {DEFAULT_RANGE[0]:g}:{DEFAULT_RANGE[1]:g})")
 
 
-def accuracy_settings(args: argparse.Namespace) -> AccuracySettings | None:
-    """The settings asked for on the command line, or None without ``--accuracy``."""
+def accuracy_settings(args: argparse.Namespace, config: Any = None) -> AccuracySettings | None:
+    """The settings for ``--accuracy`` (None without it): command line over ``[tool.idealcheck.accuracy]``."""
     if not getattr(args, "accuracy", False):
         return None
-    default = DEFAULT_RANGE
-    per_variable: list[tuple[str, float, float]] = []
+    configured = getattr(config, "accuracy", None)
+    samples = getattr(args, "accuracy_samples", None) or getattr(configured, "samples", None) or DEFAULT_SAMPLES
+    seed = getattr(args, "accuracy_seed", None)
+    if seed is None:
+        seed = getattr(configured, "seed", None) or 0
+    default = getattr(configured, "range", None) or DEFAULT_RANGE
+    per_variable: dict[str, tuple[float, float]] = {
+        name: (low, high) for name, low, high in (getattr(configured, "ranges", ()) or ())
+    }
     for name, low, high in getattr(args, "accuracy_range", []) or []:
         if name is None:
             default = (low, high)
         else:
-            per_variable.append((name, low, high))
-    return AccuracySettings(samples=args.accuracy_samples, seed=args.accuracy_seed, default_range=default,
-                            ranges=tuple(per_variable))
+            per_variable[name] = (low, high)
+    return AccuracySettings(samples=samples, seed=seed, default_range=default,
+                            ranges=tuple((name, low, high) for name, (low, high) in per_variable.items()))
 
 
 def estimates_for(verdicts: Sequence[Verdict], settings: AccuracySettings) -> list[tuple[str, list[AccuracyEstimate]]]:

@@ -85,7 +85,7 @@ def run_audit_command(args: argparse.Namespace) -> int:
     result = run_audit(plan, options)
     verdicts = list(result.verdicts)
     table = render_audit_text(result)
-    settings = accuracy_settings(args)
+    settings = accuracy_settings(args, config)
     accuracy_text = accuracy_report(verdicts, settings, ("optimized", "reference")) if settings is not None else ""
     if args.output:
         report = table if args.format == "text" else render(verdicts, args.format, version=__version__,

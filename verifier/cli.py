@@ -175,7 +175,7 @@ def run_check(args: argparse.Namespace) -> int:
             report = render(verdicts, "text", version=__version__, on_inconclusive=on_inconclusive)
     from verifier.accuracy_cli import accuracy_report, accuracy_settings
 
-    settings = accuracy_settings(args)
+    settings = accuracy_settings(args, config)
     if settings is not None:  # a text section: after the text report, else on stderr beside machine output
         section = accuracy_report(verdicts, settings)
         if args.format == "text" or args.output:

@@ -21,12 +21,24 @@ else:  # pragma: no cover - exercised on Python 3.10 only
     import tomli as tomllib
 
 TABLE = "tool.idealcheck"
-KNOWN_KEYS = ("include", "exclude", "conditions", "on_inconclusive", "timeout", "memory_mb", "jobs", "cache_dir")
+KNOWN_KEYS = ("include", "exclude", "conditions", "on_inconclusive", "timeout", "memory_mb", "jobs", "cache_dir",
+              "accuracy")
 CONDITION_KEYS = ("vars", "given")
+ACCURACY_KEYS = ("samples", "seed", "range", "ranges")
 
 
 class ConfigError(Exception):
     """A bad configuration; the message names the key and the file."""
+
+
+@dataclass(frozen=True)
+class AccuracyConfig:
+    """``[tool.idealcheck.accuracy]``: sampling for ``--accuracy`` (command-line options override it)."""
+
+    samples: int | None = None
+    seed: int | None = None
+    range: tuple[float, float] | None = None  # for every variable
+    ranges: tuple[tuple[str, float, float], ...] = ()  # per variable: ranges = { b = [1e3, 1e6] }
 
 
 @dataclass(frozen=True)
@@ -41,6 +53,7 @@ class Config:
     memory_mb: int = 2048  # per worker process
     jobs: int | None = None  # worker processes; None: one per core
     cache_dir: str = ".idealcheck_cache"
+    accuracy: AccuracyConfig = AccuracyConfig()
 
     def named(self, name: str) -> NamedConditionSet | None:
         return next((item for item in self.conditions if item.name == name), None)
@@ -169,7 +182,43 @@ def _build(table: dict[str, Any], path: Path, root: Path) -> Config:
         values["cache_dir"] = value
     if "conditions" in table:
         values["conditions"] = _condition_sets(table["conditions"], path)
+    if "accuracy" in table:
+        values["accuracy"] = _accuracy(table["accuracy"], path)
     return Config(path=path, root=root, **values)
+
+
+def _interval(value: Any, key: str, path: Path) -> tuple[float, float]:
+    if (
+        not isinstance(value, list) or len(value) != 2
+        or any(isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v) for v in value)
+        or not value[0] < value[1]
+    ):
+        raise ConfigError(f"{path}: `{key}` must be an array [low, high] of two finite numbers with low < high, "
+                          f"found {value!r}")
+    return float(value[0]), float(value[1])
+
+
+def _accuracy(value: Any, path: Path) -> AccuracyConfig:
+    key = f"{TABLE}.accuracy"
+    if not isinstance(value, dict):
+        raise ConfigError(f"{path}: `{key}` must be a table, found {_type_name(value)}")
+    for item in value:
+        if item not in ACCURACY_KEYS:
+            raise ConfigError(f"{path}: unknown key `{key}.{item}` (known: {', '.join(ACCURACY_KEYS)})")
+    samples = _positive_int(value["samples"], f"{key}.samples", path) if "samples" in value else None
+    seed = value.get("seed")
+    if seed is not None and (isinstance(seed, bool) or not isinstance(seed, int)):
+        raise ConfigError(f"{path}: `{key}.seed` must be an integer, found {seed!r}")
+    default = _interval(value["range"], f"{key}.range", path) if "range" in value else None
+    ranges: list[tuple[str, float, float]] = []
+    per_variable = value.get("ranges", {})
+    if not isinstance(per_variable, dict):
+        raise ConfigError(f"{path}: `{key}.ranges` must be a table of variable = [low, high], "
+                          f"found {_type_name(per_variable)}")
+    for name, interval in per_variable.items():
+        low, high = _interval(interval, f"{key}.ranges.{name}", path)
+        ranges.append((name, low, high))
+    return AccuracyConfig(samples, seed, default, tuple(ranges))
 
 
 def _condition_sets(value: Any, path: Path) -> tuple[NamedConditionSet, ...]:

@@ -39,7 +39,7 @@ def run_explain(args: argparse.Namespace) -> int:
     root = os.path.relpath(os.path.abspath(str(getattr(config, "root", None) or cwd)), cwd).replace(os.sep, "/")
     context = ExtractionContext(named_conditions=tuple(getattr(config, "conditions", ()) or ()), roots=(root,))
     try:
-        explanation = explain(args.target, context, cwd=str(cwd), timeout=timeout, accuracy=accuracy_settings(args))
+        explanation = explain(args.target, context, cwd=str(cwd), timeout=timeout, accuracy=accuracy_settings(args, config))
     except ExplainError as exc:
         raise UsageError(str(exc)) from exc
     sys.stdout.write(render_explanation(explanation))
