@@ -202,3 +202,15 @@ def test_git_errors_are_clear(repo: Path, tmp_path_factory: pytest.TempPathFacto
         staged_paths(outside)
     with pytest.raises(DiscoveryError, match="not inside a git repository"):
         collect(["."], cwd=outside, source="staged")
+
+
+def test_symbolic_links_to_folders_are_not_followed(tmp_path: Path) -> None:
+    write(tmp_path, "src/a.c")
+    try:
+        (tmp_path / "src" / "loop").symlink_to(tmp_path / "src", target_is_directory=True)
+        (tmp_path / "src" / "link.c").symlink_to(tmp_path / "src" / "a.c")
+        (tmp_path / "src" / "broken.c").symlink_to(tmp_path / "nowhere.c")
+    except OSError:
+        pytest.skip("symbolic links are not available here")
+    discovery = collect(["."], cwd=tmp_path)
+    assert paths(discovery) == ["src/a.c", "src/link.c"] and discovery.problems == ()

@@ -179,7 +179,7 @@ def _walk(directory: Path) -> Iterable[Path]:
         if is_dir:
             if not _skipped_dir(directory, entry.name):
                 yield from _walk(Path(entry.path))
-        elif entry.is_file() or entry.is_symlink():
+        elif entry.is_file():  # follows a link to a file; links to folders and broken links are left out
             yield Path(entry.path)
 
 
