@@ -446,7 +446,8 @@ def _components(left: Value, right: Value, left_name: str, right_name: str,
             pairs.extend(_components(a, b, left_name, right_name, label))
         return pairs
     if not (is_expr(left) and is_expr(right)):
-        raise _ClaimProblem("inconclusive", f"a compared value is not a number ({left!r} vs {right!r})")
+        raise _ClaimProblem("inconclusive", f"a compared value is not a number ({type(left).__name__} against "
+                                            f"{type(right).__name__})")
     return [(left, right, f"component {prefix}" if prefix else "")]  # type: ignore[list-item]
 
 
@@ -492,7 +493,7 @@ def _resolve_spelling(executor: Executor, name: str, state: State, module: Modul
     value = state.get(base_name)
     if value is None:
         if base_name in module.constants and base_name not in module.rebound:
-            value = executor._module_constant(module, base_name, 0)
+            value = executor.module_constant(module, base_name, 0)
         else:
             return Var(name)
     position = head.end()

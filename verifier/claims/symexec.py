@@ -921,7 +921,7 @@ class Executor:
         if name in module.rebound:
             return Unknown(f"the module-level name {name} (line {line}) is bound in a way the tool does not follow")
         if name in module.constants:
-            return self._module_constant(module, name, line)
+            return self.module_constant(module, name, line)
         if name in module.imports:
             target = module.imports[name]
             if target[0] == "member":
@@ -940,7 +940,7 @@ class Executor:
         # an undefined global: any real number (a claim must hold for every value of it)
         return Var(name)
 
-    def _module_constant(self, module: ModuleInfo, name: str, line: int) -> Value:
+    def module_constant(self, module: ModuleInfo, name: str, line: int) -> Value:
         key = (module.path, name)
         if key in self._constant_cache:
             return self._constant_cache[key]
