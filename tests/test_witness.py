@@ -321,3 +321,10 @@ def test_dependent_equations_still_give_numeric_witnesses():
     assert check_witness(expr("s"), expr("c"), [cond(c) for c in conditions], values) == w
     values["c"] = "-0.50000000000000000001"
     assert check_witness(expr("s"), expr("c"), [cond(c) for c in conditions], values) is None
+
+
+def test_check_witness_keeps_the_values_as_given():
+    w = check_witness(expr("(a+b)**2"), expr("a**2 + b**2"), [], {"a": "0.5", "b": " 2 "})
+    assert w is not None and w.exact
+    assert dict(w.values) == {"a": "0.5", "b": "2"}
+    assert (w.left, w.right) == ("25/4", "17/4")  # (1/2 + 2)**2 and 1/4 + 4

@@ -249,8 +249,10 @@ def _holds_exactly(relation: str, a: Fraction, b: Fraction) -> bool:
     }[relation]
 
 
-def _exact_check(problem: _Problem, point: Mapping[str, Fraction]) -> tuple[str, Witness | None]:
-    """("witness", w) / ("fails", None) / ("numeric", None) when exact arithmetic cannot decide."""
+def _exact_check(problem: _Problem, point: Mapping[str, Fraction],
+                 texts: Mapping[str, str] | None = None) -> tuple[str, Witness | None]:
+    """("witness", w) / ("fails", None) / ("numeric", None) when exact arithmetic cannot decide.
+    ``texts`` are the values as given (a decimal stays a decimal in the witness)."""
     undecided = False
     equations_fail = False
     for c in problem.equations + problem.extra_equations + problem.others:
@@ -271,7 +273,7 @@ def _exact_check(problem: _Problem, point: Mapping[str, Fraction]) -> tuple[str,
         return "numeric", None
     if left == right:
         return "fails", None
-    values = tuple((name, _fraction_text(point[name])) for name in problem.names)
+    values = tuple((name, texts[name] if texts else _fraction_text(point[name])) for name in problem.names)
     return "witness", Witness(values, _exact_side_text(left), _exact_side_text(right), True)
 
 
@@ -500,7 +502,7 @@ def _consistent(low: mpf, high: mpf) -> bool:
 
 def _verify(problem: _Problem, point: Mapping[str, Fraction], texts: Mapping[str, str]) -> Witness | None:
     try:
-        outcome, witness = _exact_check(problem, point)
+        outcome, witness = _exact_check(problem, point, texts)
         if outcome == "witness":
             return witness
         if outcome == "fails":
