@@ -271,6 +271,7 @@ def test_same_as_returns_and_statement_forms() -> None:
     returns = parse_claim_text("returns (a + b, a - b)")
     assert returns.form == "returns" and returns.sides == (BinOp("+", a, b), BinOp("-", a, b))
     assert parse_claim_text("returns a, b").sides == (a, b)
+    assert parse_claim_text("returns(a)").sides == (a,)
     assert parse_claim_text("returns 4*x**3").sides == (BinOp("*", num(4), Pow(x, Fraction(3))),)
     statement = parse_claim_text("== a*b/2 given b > 0")
     assert statement.form == "statement" and statement.sides == (BinOp("/", BinOp("*", a, b), num(2)),)

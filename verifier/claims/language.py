@@ -751,7 +751,7 @@ def parse_claim_text(text: str, named: NamedSets = None) -> ParsedClaim:
             raise ClaimSyntaxError(f"`same as` needs a (dotted) function name, found `{other}`", where)
         return ParsedClaim("same_as", (), other, conditions)
 
-    returns = re.match(r"returns(?![\w.\[(])", body)
+    returns = re.match(r"returns(?![\w.\[])", body)
     if returns and not body[returns.end():].lstrip().startswith(("==", "=")):
         return ParsedClaim("returns", _target(body, returns.end(), lead, "`returns`"), None, conditions)
 
