@@ -328,3 +328,12 @@ def test_check_witness_keeps_the_values_as_given():
     assert w is not None and w.exact
     assert dict(w.values) == {"a": "0.5", "b": "2"}
     assert (w.left, w.right) == ("25/4", "17/4")  # (1/2 + 2)**2 and 1/4 + 4
+
+
+def test_unknown_functions_are_declined_not_raised():
+    from verifier.claims.model import Call
+
+    odd = Call("gamma", (Var("x"),))  # not one of the known functions
+    assert find_witness(odd, Var("x"), [], deadline=time.monotonic() + 2) is None
+    assert check_witness(odd, Var("x"), [], {"x": "1"}) is None
+    assert differs_mod_p(odd, Var("x")) is None

@@ -924,17 +924,31 @@ def find_witness(left: Expr, right: Expr, conditions: Sequence[Condition], *, de
                  seed: int = 0) -> Witness | None:
     """A checked real point where every condition holds and ``left != right``, or None (none found before
     ``deadline`` (time.monotonic()), or an opaque call is involved)."""
-    problem = _problem(left, right, conditions)
+    if time.monotonic() > deadline:
+        return None
+    try:
+        problem = _problem(left, right, conditions)
+    except (ArithmeticError, ValueError, TypeError):
+        return None
     if problem is None:
         return None
     rng = random.Random(seed)
-    for point in _candidates(problem, rng, deadline):
-        if time.monotonic() > deadline:
+    candidates = _candidates(problem, rng, deadline)
+    while time.monotonic() <= deadline:
+        try:
+            point = next(candidates)
+        except StopIteration:
+            return None
+        except _SEARCH_FAILURES:  # a generator that raised is finished
             return None
         try:
             witness = _try(problem, point)
-        except (ArithmeticError, NotEvaluable, KeyError, ValueError, TypeError):
+        except _SEARCH_FAILURES:
             continue
         if witness is not None:
             return witness
     return None
+
+
+# what may go wrong while evaluating at a candidate point (undefined there, an unknown node, mpmath gave up)
+_SEARCH_FAILURES = (ArithmeticError, NotEvaluable, KeyError, ValueError, TypeError)
