@@ -214,3 +214,12 @@ def test_symbolic_links_to_folders_are_not_followed(tmp_path: Path) -> None:
         pytest.skip("symbolic links are not available here")
     discovery = collect(["."], cwd=tmp_path)
     assert paths(discovery) == ["src/a.c", "src/link.c"] and discovery.problems == ()
+
+
+def test_globs_can_be_anchored_at_the_config_folder(tmp_path: Path) -> None:
+    for name in ["proj/src/gen/g.c", "proj/src/a.c"]:
+        write(tmp_path, name)
+    cwd = tmp_path / "proj" / "src"
+    # from inside src/, "src/gen" only matches when anchored at the project folder
+    assert paths(collect(["."], cwd=cwd, exclude=["src/gen"])) == ["a.c", "gen/g.c"]
+    assert paths(collect(["."], cwd=cwd, exclude=["src/gen"], root=tmp_path / "proj")) == ["a.c"]

@@ -184,10 +184,14 @@ def _walk(directory: Path) -> Iterable[Path]:
 
 
 class _Collector:
-    def __init__(self, include: Sequence[str], exclude: Sequence[str], only: set[str] | None) -> None:
+    def __init__(
+        self, include: Sequence[str], exclude: Sequence[str], only: set[str] | None, cwd: Path, root: Path | None
+    ) -> None:
         self.include = include
         self.exclude = exclude
         self.only = only
+        self.cwd = cwd
+        self.root = root
         self.files: dict[str, SourceFile] = {}
         self.problems: dict[str, FileProblem] = {}
 
@@ -196,7 +200,11 @@ class _Collector:
             return False
         if self.only is not None and path not in self.only:
             return False
-        return selected(path, self.include, self.exclude)
+        if not self.include and not self.exclude:
+            return True
+        # globs are anchored at the config's folder when one is given, else at the working directory
+        anchored = path if self.root is None else relative_path(self.cwd / path, self.root)
+        return selected(anchored, self.include, self.exclude)
 
     def add(self, path: str, text: str | None, problem: FileProblem | None) -> None:
         if problem is not None:
@@ -349,16 +357,19 @@ def collect(
     cwd: Path | str | None = None,
     source: Literal["worktree", "staged"] = "worktree",
     only: Collection[str] | None = None,
+    root: Path | str | None = None,
 ) -> Discovery:
     """The files to scan under ``paths`` (files or folders, relative to ``cwd``) and the ones that could not be read.
 
-    ``include``/``exclude`` are globs on the path relative to ``cwd`` (see ``matches_glob``); they apply to
-    explicitly named files too, while the skipped folders only apply when walking.  ``source="staged"``
+    ``include``/``exclude`` are globs on the path relative to ``root`` (the config's folder; default ``cwd``,
+    see ``matches_glob``); they apply to explicitly named files too, while the skipped folders only apply
+    when walking.  ``source="staged"``
     reads the file list and texts from the git index.  ``only`` restricts the result to these relative paths.
     """
     base = Path(cwd) if cwd is not None else Path.cwd()
     only_set = None if only is None else {relative_path(Path(base, p), base) for p in only}
-    collector = _Collector(tuple(include), tuple(exclude), only_set)
+    anchor = None if root is None else Path(base, root)
+    collector = _Collector(tuple(include), tuple(exclude), only_set, base, anchor)
     if source == "staged":
         _collect_staged(paths or ["."], base, collector)
     elif source == "worktree":
