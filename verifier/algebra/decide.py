@@ -16,15 +16,16 @@ import time
 from dataclasses import dataclass
 from typing import Sequence
 
-from verifier.algebra.certificate import check_certificate, make_certificate, poly_to_data
+from verifier.algebra.certificate import make_certificate, poly_to_data
 from verifier.algebra.groebner import GroebnerTimeout, groebner_basis, membership_cofactors, reduce
+from verifier.algebra.sign import certificate_is_valid, find_sign_proof, nonnegative_symbols
 from verifier.algebra.translate import Translation, TranslationError, translate
 from verifier.algebra.verdict import Certificate, Method, ObligationResult, Verdict, Witness
 from verifier.algebra.witness import differs_mod_p, find_witness
 from verifier.claims.model import Claim, Obligation
 
 _RANK = {"proved": 0, "inconclusive": 1, "refuted": 2, "error": 3}
-_METHOD_RANK = {None: -1, "expansion": 0, "ideal": 1, "saturation": 2, "radical": 3}
+_METHOD_RANK = {None: -1, "expansion": 0, "ideal": 1, "saturation": 2, "radical": 3, "sign": 4}
 _RADICAL_POWERS = (2, 3)
 _RADICAL_TERM_LIMIT = 60  # f**k of a larger difference is not worth the time
 
@@ -134,6 +135,13 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
                     return _proved(tr, label, "radical", k, tuple(power_cofactors),
                                    f"(LEFT - RIGHT)**{k} lies in the ideal of the conditions, so LEFT - RIGHT "
                                    "vanishes wherever they hold (radical membership)")
+        _check_time(deadline)
+        sign_certificate = find_sign_proof(tr, basis_result, deadline=deadline)
+        if sign_certificate is not None:
+            return _accept(tr, label, "sign", sign_certificate,
+                           "proved with the sign of a principal square root and the sign hypotheses: "
+                           "(LEFT - RIGHT) times its conjugate lies in the ideal, and the conjugate "
+                           "cannot vanish where LEFT - RIGHT does not")
     else:
         normal_form = f
     cnf = tr.printed(normal_form)
@@ -197,8 +205,12 @@ def _proved_reason(method: Method, tr: Translation) -> str:
 
 def _proved(tr: Translation, label: str, method: Method, power: int, cofactors: tuple, reason: str,
             vacuous: bool = False) -> ObligationResult:
-    certificate = build_certificate(tr, power, cofactors)
-    if not check_certificate(certificate):
+    return _accept(tr, label, method, build_certificate(tr, power, cofactors), reason, vacuous)
+
+
+def _accept(tr: Translation, label: str, method: Method, certificate: Certificate, reason: str,
+            vacuous: bool = False) -> ObligationResult:
+    if not certificate_is_valid(certificate):
         # never report a proof that does not re-check; this would be a bug in the engine
         return ObligationResult(label, "inconclusive", None,
                                 "internal: the proof certificate failed its independent re-check",
@@ -243,6 +255,8 @@ def certificate_matches(claim: Claim, results: Sequence[ObligationResult]) -> bo
             return False
         if cert.generators != tuple(poly_to_data(g.poly) for g in tr.generators):
             return False
-        if not check_certificate(cert):
+        if cert.sign is not None and not set(cert.sign.nonnegative_symbols) <= set(nonnegative_symbols(tr)):
+            return False
+        if not certificate_is_valid(cert):
             return False
     return True

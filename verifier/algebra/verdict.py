@@ -12,21 +12,42 @@ from typing import Literal
 from verifier.claims.model import Claim
 
 VerdictName = Literal["proved", "refuted", "inconclusive", "error"]
-Method = Literal["expansion", "ideal", "saturation", "radical"]
+Method = Literal["expansion", "ideal", "saturation", "radical", "sign"]
 
 # A polynomial as data: ((coefficient as "p/q" or "p", (e1, e2, ...)), ...) over ``Certificate.symbols``.
 PolyData = tuple[tuple[str, tuple[int, ...]], ...]
 
 
 @dataclass(frozen=True)
+class SignArgument:
+    """The extra data of a proof by the conjugate argument (``algebra/sign.py``).
+
+    With A, B defined by ``target == A*root + B`` and ``multiplier == A*root - B``: the certificate's
+    cofactors show ``target * multiplier`` in the ideal, and ``nonnegative_cofactors`` show
+    ``-A*B - nonnegative`` in it, where ``nonnegative`` has positive coefficients and odd powers only of
+    ``nonnegative_symbols`` (principal roots, exponentials, variables with a sign hypothesis).
+    """
+
+    root: str
+    multiplier: PolyData
+    nonnegative: PolyData
+    nonnegative_cofactors: tuple[PolyData, ...]
+    nonnegative_symbols: tuple[str, ...]
+
+
+@dataclass(frozen=True)
 class Certificate:
-    """``target ** power == sum(cofactors[i] * generators[i])`` as polynomials over QQ in ``symbols``."""
+    """``target ** power == sum(cofactors[i] * generators[i])`` as polynomials over QQ in ``symbols``.
+
+    With ``sign`` set, the identity is ``target * sign.multiplier == sum(...)`` plus the sign argument.
+    """
 
     symbols: tuple[str, ...]
     target: PolyData
     power: int
     generators: tuple[PolyData, ...]
     cofactors: tuple[PolyData, ...]
+    sign: SignArgument | None = None
 
 
 @dataclass(frozen=True)
