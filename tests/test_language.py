@@ -419,3 +419,17 @@ def _fold_constants(tree):
     if isinstance(tree, Call):
         return Call(tree.function, tuple(_fold_constants(a) for a in tree.args))
     return tree
+
+
+@pytest.mark.parametrize(
+    "text, words",
+    [
+        ("x + 1e99999999", "out of range"),
+        ("x**(((10**1000)**1000)**1000)", "too large"),
+        ("x**(2**2**2**2**2)", "too large"),
+        ("x" + " + x" * 12000, "too long"),
+        ("a^{2}", "braces do not group"),
+    ],
+)
+def test_hostile_constants_and_sizes_are_refused_quickly(text: str, words: str) -> None:
+    assert words in _error(text).message

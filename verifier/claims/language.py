@@ -38,6 +38,9 @@ FUNCTION_ALIASES = {name: name for name in KNOWN_FUNCTIONS} | {"pow": "pow", "po
 # A constant exponent larger than this is refused: it would only blow up the algebra.
 MAX_EXPONENT = 1000
 MAX_TEXT_LENGTH = 20000
+# Limits that keep hostile constants (``1e99999999``, towers of powers) from exhausting time or memory.
+MAX_LITERAL_EXPONENT = 4000
+MAX_CONSTANT_BITS = 100_000
 
 
 class ClaimSyntaxError(Exception):
@@ -221,8 +224,8 @@ _COMPARISON_SPELLING = {
 _UNSUPPORTED_NODES = {
     ast.Lambda: "a lambda",
     ast.IfExp: "a conditional expression (`x if c else y`)",
-    ast.Dict: "a dict",
-    ast.Set: "a set",
+    ast.Dict: "a dict (braces do not group; use parentheses)",
+    ast.Set: "a set (braces do not group; use parentheses)",
     ast.List: "a list",
     ast.ListComp: "a comprehension",
     ast.SetComp: "a comprehension",
@@ -326,6 +329,9 @@ class _Converter:
         if isinstance(value, float):
             # The exact decimal value of the literal as written (0.1 is 1/10), never the binary float.
             spelling = self.source.node_segment(node).replace("_", "")
+            exponent = re.search(r"[eE]([+-]?\d+)$", spelling)
+            if exponent and abs(int(exponent.group(1))) > MAX_LITERAL_EXPONENT:
+                raise self.error(f"the number `{spelling}` is out of range (decimal exponent limit {MAX_LITERAL_EXPONENT})", node)
             try:
                 return Num(Fraction(spelling))
             except (ValueError, ZeroDivisionError):
@@ -439,6 +445,9 @@ class _Converter:
                 return None
             if base == 0 and expr.exponent < 0:
                 raise self.error("division by zero in a constant exponent", node)
+            size = max(abs(base.numerator).bit_length(), base.denominator.bit_length()) * abs(int(expr.exponent))
+            if size > MAX_CONSTANT_BITS:
+                raise self.error("the constant exponent is too large", node)
             return base ** int(expr.exponent)
         return None
 
