@@ -13,7 +13,7 @@ from typing import Sequence
 
 import libcst as cst
 
-from verifier.claims.model import Claim, Condition, Expr, ExtractionContext, Location, Obligation, Problem, Var
+from verifier.claims.model import Claim, Condition, ExtractionContext, Location, Obligation, Problem, Var
 from verifier.claims.symexec import (
     EXPR_TYPES,
     NONE,
@@ -24,8 +24,6 @@ from verifier.claims.symexec import (
     NoneValue,
     Outcome,
     Seq,
-    Unknown,
-    expr_text,
     first_unknown,
     parse_module_text,
     positional_parameters,
@@ -195,16 +193,5 @@ def _describe_shape(value) -> str:
     return "one value"
 
 
-def show(expr: Expr) -> str:
-    return expr_text(expr)
-
-
-__all__ = [
-    "FunctionSite",
-    "ModuleSource",
-    "ModuleUnreadable",
-    "Unknown",
-    "function_pair_claim",
-    "parse_module",
-    "top_level_functions",
-]
+__all__ = ["FunctionSite", "ModuleSource", "ModuleUnreadable", "function_pair_claim", "parse_module",
+           "top_level_functions"]

@@ -60,8 +60,11 @@ def render_audit_text(result: AuditResult) -> str:
     if details:
         lines.append("")
         lines.append("details:")
+        differences = dict(result.differences)
         for verdict in details:
             lines.extend(verdict_lines(verdict))
+            if verdict.claim.id in differences:
+                lines.append(f"    in plain terms (left: optimized, right: reference): {differences[verdict.claim.id]}")
     one_sided = _one_sided(plan.only_optimized, plan.optimized) + _one_sided(plan.only_reference, plan.reference)
     if one_sided:
         lines.append("")
