@@ -4,6 +4,10 @@ A claim is a comment whose text starts with ``idealcheck:`` (after the comment l
 decoration such as ``///``, ``/**`` or `` * ``).  A claim line ending in ``\\`` continues on the next line's
 comment.  The comment syntax is chosen by file extension; strings are skipped on a best-effort basis so that
 ``"// idealcheck: ..."`` inside a string literal is not a claim.  Python files are read with ``tokenize``.
+
+To support another language, describe its comments and strings with a ``CommentSyntax`` and add its
+extensions to the table below (plus a sample file in fixtures/languages/ and its expectation in
+tests/test_comments.py).  Files of unknown type get a generic scan: any leader at the start of a line.
 """
 from __future__ import annotations
 
