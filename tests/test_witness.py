@@ -337,3 +337,21 @@ def test_unknown_functions_are_declined_not_raised():
     assert find_witness(odd, Var("x"), [], deadline=time.monotonic() + 2) is None
     assert check_witness(odd, Var("x"), [], {"x": "1"}) is None
     assert differs_mod_p(odd, Var("x")) is None
+
+
+def test_small_but_real_differences_are_refuted_and_rounding_is_not():
+    # a 27-digit value of sqrt(2) is not sqrt(2): the difference (about 2e-27) is the same at both precisions
+    w = search("sqrt(x)", "1.41421356237309504880168872", "x == 2")
+    assert w is not None and w.exact is False
+    with mp.workdps(60):
+        true_difference = mpmath.sqrt(2) - mpf("1.41421356237309504880168872")
+        assert abs(mpf(w.right) - mpf("1.41421356237309504880168872")) < mpf(10) ** -40
+        # the sides are printed with enough digits for their difference to show
+        shown_difference = mpf(w.left) - mpf(w.right)
+        assert abs(shown_difference / true_difference - 1) < mpf(10) ** -3
+    # a point 1e-100 off the unit circle does not refute a claim that holds on it
+    with mp.workdps(150):
+        s = mpmath.sqrt(8) / 3 + mpf(10) ** -100
+        s_text = mpmath.nstr(s, 130, min_fixed=-5, max_fixed=5)
+    circle = [cond("s**2 + c**2 == 1")]
+    assert check_witness(expr("s**2"), expr("1 - c**2"), circle, {"s": s_text, "c": "1/3"}) is None

@@ -129,7 +129,9 @@ def differs_mod_p(left: Expr, right: Expr, *, seed: int = 0, trials: int = 3) ->
 # ---------------------------------------------------------------- problem data
 
 _LOW, _HIGH = 60, 120  # the two precisions of the numeric check (decimal digits)
-_MARGIN = mpf(10) ** -20  # relative margin for "clearly different"
+# "clearly different": |left - right| > this * max(1, |left|, |right|), with the same value at both precisions
+# (equations hold to 1e-96 at the 120-digit check, so far smaller differences are already meaningful)
+_MARGIN = mpf(10) ** -30
 _CONSISTENT = mpf(10) ** -10  # relative agreement of a difference between the two precisions
 _MAX_MOVE = mpf(10) ** -25  # how far (relative) the refinement may move a checked point
 _RANK_TOLERANCE = mpf(10) ** -12  # smallest singular value of the Jacobian, relative to max(1, largest entry)
@@ -357,23 +359,28 @@ def _minimum_norm_step(jac: mpmath.matrix, f: mpmath.matrix) -> list[mpf]:
 
 
 def _newton(equations: Sequence[Condition], start: Mapping[str, Real], unknowns: Sequence[str], prec: int,
-            iterations: int = 30, deadline: float | None = None) -> dict[str, mpf] | None:
+            iterations: int = 30, deadline: float | None = None, polish: int = 0) -> dict[str, mpf] | None:
     """Gauss-Newton steps (minimum norm) on ``unknowns`` until every residual is below 10**-(0.8 prec)
-    relative to the size of its sides; None when that does not happen."""
+    relative to the size of its sides, then ``polish`` more steps; None when that does not happen.
+    (A polishing step moves a point that was within the tolerance by the same tiny offset at every
+    precision, so that such an offset cannot look like a real difference at both precisions.)"""
     with mp.workdps(prec + 10):
         point: dict[str, mpf] = {name: to_mpf(v) for name, v in start.items()}
         eps = tiny(prec)
         history: list[mpf] = []
-        for iteration in range(iterations):
+        for _ in range(iterations + polish):
             if deadline is not None and time.monotonic() > deadline:
                 return None
             try:
                 res = _residuals(equations, point, prec)
                 if all(abs(r) <= eps * s for r, s in res):
-                    return point
-                history.append(max(abs(r) / s for r, s in res))
-                if iteration >= 6 and history[-1] > history[-4] / 2:
-                    return None  # not converging (no real solution nearby, or a singular one)
+                    if polish == 0:
+                        return point
+                    polish -= 1
+                else:
+                    history.append(max(abs(r) / s for r, s in res))
+                    if len(history) >= 7 and history[-1] > history[-4] / 2:
+                        return None  # not converging (no real solution nearby, or a singular one)
                 jac = _jacobian(equations, point, unknowns, prec)
                 step = _minimum_norm_step(jac, mpmath.matrix([r for r, _ in res]))
             except (ArithmeticError, ValueError):  # undefined on the way, or mpmath gave up
@@ -415,7 +422,7 @@ def _refine(problem: _Problem, point: Mapping[str, Real], prec: int
     unknowns = sorted(set().union(*(variables(c.left) | variables(c.right) for c in system))) if system else []
     current: dict[str, Real] = dict(point)
     if system:
-        refined = _newton(system, point, unknowns, prec)
+        refined = _newton(system, point, unknowns, prec, polish=1)
         if refined is None:
             return None
         with mp.workdps(prec + 10):
@@ -441,7 +448,7 @@ def _refine(problem: _Problem, point: Mapping[str, Real], prec: int
 
 
 def _numeric_difference(a: mpf, b: mpf) -> tuple[mpf, mpf]:
-    return a - b, max(abs(a), abs(b))
+    return a - b, _scale(a, b)
 
 
 @dataclass
@@ -529,13 +536,16 @@ def _verify(problem: _Problem, point: Mapping[str, Fraction], texts: Mapping[str
         return None
     values = tuple((name, texts[name]) for name in problem.names)
     with mp.workdps(_HIGH):
-        left_text = _side_text(high.left)
-        right_text = _side_text(high.right)
+        # enough digits for the difference to show (20 at least)
+        ratio = _scale(high.left, high.right) / abs(high.left - high.right)
+        digits = min(_HIGH - 10, max(_SIDE_DIGITS, int(mpmath.log10(ratio)) + 6))
+        left_text = _side_text(high.left, digits)
+        right_text = _side_text(high.right, digits)
     return Witness(values, left_text, right_text, False)
 
 
-def _side_text(x: mpf) -> str:
-    text = mpmath.nstr(x, _SIDE_DIGITS)
+def _side_text(x: mpf, digits: int = _SIDE_DIGITS) -> str:
+    text = mpmath.nstr(x, digits)
     return text[:-2] if text.endswith(".0") else text
 
 
@@ -888,8 +898,11 @@ def _plausible(problem: _Problem, point: Mapping[str, Real]) -> bool:
                     return False
             a = numeric_value(problem.left, point, prec)
             b = numeric_value(problem.right, point, prec)
-            return a != b and abs(a - b) > mpf(10) ** -25 * max(abs(a), abs(b))
-    except (DomainError, ZeroDivisionError):
+            # a point solved at 30 digits is only that close to the equations: ask for more difference
+            exact_point = all(isinstance(v, Fraction) for v in point.values())
+            threshold = mpf(10) ** (-27 if exact_point else -20)
+            return a != b and abs(a - b) > threshold * _scale(a, b)
+    except _SEARCH_FAILURES:
         return False
 
 
