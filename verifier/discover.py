@@ -340,6 +340,10 @@ def _collect_staged(paths: Sequence[str], cwd: Path, collector: _Collector) -> N
     for path, _blob in wanted:
         header_end = out.index(b"\n", position)
         header = out[position:header_end].split(b" ")
+        if len(header) < 3:  # "<id> missing": the index names an object the repository lacks
+            position = header_end + 1
+            collector.problems[path] = FileProblem(Location(path, 1, 1), "the staged version cannot be read from git")
+            continue
         size = int(header[2])
         data = out[header_end + 1 : header_end + 1 + size]
         position = header_end + 1 + size + 1
