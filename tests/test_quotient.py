@@ -104,3 +104,38 @@ def test_monomial_helpers():
     assert complete and sorted(monomials) == [(0, 0), (0, 1), (1, 0)]
     with pytest.raises(ValueError):
         standard_monomials([(1, 1)], 2)
+
+
+def test_dimension_search_agrees_with_brute_force_on_random_monomial_ideals():
+    # the Krull dimension of a monomial ideal is the size of a largest set of variables containing no
+    # generator's support (Cox, Little, O'Shea, "Ideals, Varieties, and Algorithms", chapter 9, section 1,
+    # from memory): checked against all subsets
+    import itertools
+    import random
+
+    rng = random.Random(7)
+    for _ in range(60):
+        n = rng.randint(1, 6)
+        gens = [tuple(rng.choice((0, 0, 1, 2)) for _ in range(n)) for _ in range(rng.randint(1, 5))]
+        gens = [g for g in gens if any(g)] or [tuple([1] + [0] * (n - 1))]
+        supports = [{i for i, e in enumerate(g) if e} for g in gens]
+        brute = max(len(s) for k in range(n + 1) for s in map(set, itertools.combinations(range(n), k))
+                    if not any(sup <= s for sup in supports))
+        found = largest_independent_set(gens, n)
+        assert len(found) == brute
+        assert not any(sup <= set(found) for sup in supports)
+
+
+def test_a_large_search_settles_for_a_bound(monkeypatch):
+    import verifier.algebra.quotient as quotient
+
+    monkeypatch.setattr(quotient, "SEARCH_NODE_LIMIT", 3)
+    n = 12
+    # x_i * x_(i+1) for a cycle of 12 variables: the largest independent set has 6 variables
+    gens = [tuple(1 if j in (i, (i + 1) % n) else 0 for j in range(n)) for i in range(n)]
+    R = ring(",".join(f"v{i}" for i in range(n)), QQ, grevlex)[0]
+    basis = [R({g: 1}) for g in gens]
+    structure = quotient.quotient_structure(basis, R)
+    assert not structure.dimension_exact and 1 <= structure.dimension <= 6
+    monkeypatch.setattr(quotient, "SEARCH_NODE_LIMIT", 200_000)
+    assert quotient.quotient_structure(basis, R).dimension == 6

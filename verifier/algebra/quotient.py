@@ -4,7 +4,7 @@ For a Groebner basis G of an ideal I, the monomials that are not divisible by an
 (the standard monomials) form a vector-space basis of the quotient ring K[x]/I, and the Krull dimension
 of I equals that of the monomial ideal LT(I): the largest number of variables such that no minimal
 generator of LT(I) is a product of those variables only (Cox, Little, O'Shea, "Ideals, Varieties, and
-Algorithms", chapter 9, section 3).  I is zero-dimensional exactly when every variable has a pure power
+Algorithms", chapter 9, sections 1 to 3; chapter and sections from memory).  I is zero-dimensional exactly when every variable has a pure power
 among the leading monomials, and then the number of standard monomials counts the complex common zeros
 with multiplicity.
 """
@@ -32,6 +32,7 @@ class QuotientStructure:
     standard_monomial_count: int | None  # dim of K[x]/I as a vector space when zero-dimensional
     count_complete: bool  # False when counting stopped at STANDARD_MONOMIAL_LIMIT
     standard_monomials: tuple[Monom, ...] | None  # listed when there are at most ``list_limit``
+    dimension_exact: bool = True  # False: the search stopped and ``dimension`` is only a lower bound
 
 
 def _divides(a: Monom, b: Monom) -> bool:
@@ -48,31 +49,77 @@ def minimal_monomial_generators(monomials: Sequence[Monom]) -> tuple[Monom, ...]
     return tuple(kept)
 
 
+SEARCH_NODE_LIMIT = 200_000  # branch-and-bound steps for the dimension before settling for a bound
+
+
+class _SearchBudget(Exception):
+    pass
+
+
 def largest_independent_set(generators: Sequence[Monom], variable_count: int) -> tuple[int, ...]:
     """A largest set S of variable indices such that no generator's support lies inside S.
 
     Equivalently the complement of a smallest set of variables meeting every generator's support (a
-    minimum hitting set), found by branch and bound; fine for the tens of variables claims have.
+    minimum hitting set), found by branch and bound.  Raises ``ValueError`` when the search needs more than
+    ``SEARCH_NODE_LIMIT`` steps (see ``independent_set_bound`` for a cheap bound).
     """
     supports = [frozenset(i for i, e in enumerate(m) if e) for m in generators]
     if any(not s for s in supports):
         return ()  # a constant: the unit ideal
     supports = sorted(set(supports), key=len)
-    best: list[frozenset[int]] = [frozenset(range(variable_count))]
+    greedy = _greedy_hitting_set(supports)
+    best: list[frozenset[int]] = [greedy]
+    nodes = [0]
 
     def search(chosen: frozenset[int], remaining: list[frozenset[int]]) -> None:
+        nodes[0] += 1
+        if nodes[0] > SEARCH_NODE_LIMIT:
+            raise _SearchBudget()
         if len(chosen) >= len(best[0]):
             return
         unhit = [s for s in remaining if not (s & chosen)]
         if not unhit:
             best[0] = chosen
             return
+        # pairwise disjoint unhit supports each need their own variable: a lower bound for pruning
+        disjoint: list[frozenset[int]] = []
+        for support in unhit:
+            if all(not (support & d) for d in disjoint):
+                disjoint.append(support)
+        if len(chosen) + len(disjoint) >= len(best[0]):
+            return
         # branch on the variables of the smallest support not yet hit
         for index in sorted(unhit[0]):
             search(chosen | {index}, unhit)
 
-    search(frozenset(), supports)
+    try:
+        search(frozenset(), supports)
+    except _SearchBudget:
+        raise ValueError("the dimension search passed its step limit") from None
     return tuple(i for i in range(variable_count) if i not in best[0])
+
+
+def _greedy_hitting_set(supports: Sequence[frozenset[int]]) -> frozenset[int]:
+    chosen: set[int] = set()
+    unhit = list(supports)
+    while unhit:
+        counts: dict[int, int] = {}
+        for support in unhit:
+            for index in support:
+                counts[index] = counts.get(index, 0) + 1
+        pick = max(sorted(counts), key=lambda i: counts[i])
+        chosen.add(pick)
+        unhit = [s for s in unhit if pick not in s]
+    return frozenset(chosen)
+
+
+def independent_set_bound(generators: Sequence[Monom], variable_count: int) -> tuple[int, ...]:
+    """An independent set from a greedy hitting set: its size is a lower bound for the dimension."""
+    supports = [frozenset(i for i, e in enumerate(m) if e) for m in generators]
+    if any(not s for s in supports):
+        return ()
+    hit = _greedy_hitting_set(sorted(set(supports), key=len))
+    return tuple(i for i in range(variable_count) if i not in hit)
 
 
 def _pure_power_bounds(generators: Sequence[Monom], variable_count: int) -> list[int] | None:
@@ -137,10 +184,14 @@ def quotient_structure(basis: Sequence[PolyElement], ring: PolyRing, *, list_lim
     minimal_sorted = tuple(sorted(minimal, key=order, reverse=True))
     if any(sum(m) == 0 for m in minimal):
         return QuotientStructure(n, minimal_sorted, -1, (), True, 0, True, ())
-    independent = largest_independent_set(minimal, n)
+    try:
+        independent = largest_independent_set(minimal, n)
+        exact = True
+    except ValueError:
+        independent, exact = independent_set_bound(minimal, n), False
     dimension = len(independent)
     if dimension > 0:
-        return QuotientStructure(n, minimal_sorted, dimension, independent, False, None, True, None)
+        return QuotientStructure(n, minimal_sorted, dimension, independent, False, None, True, None, exact)
     monomials, complete = standard_monomials(minimal, n)
     monomials.sort(key=order)
     listed = tuple(monomials) if complete and len(monomials) <= list_limit else None
