@@ -4,9 +4,9 @@ For a Groebner basis G of an ideal I, the monomials that are not divisible by an
 (the standard monomials) form a vector-space basis of the quotient ring K[x]/I, and the Krull dimension
 of I equals that of the monomial ideal LT(I): the largest number of variables such that no minimal
 generator of LT(I) is a product of those variables only (Cox, Little, O'Shea, "Ideals, Varieties, and
-Algorithms", chapter 9, sections 1 to 3; chapter and sections from memory).  I is zero-dimensional exactly when every variable has a pure power
-among the leading monomials, and then the number of standard monomials counts the complex common zeros
-with multiplicity.
+Algorithms", chapter 9, sections 1 to 3; chapter and sections from memory).  I is zero-dimensional
+exactly when every variable has a pure power among the leading monomials, and then the number of
+standard monomials counts the complex common zeros with multiplicity.
 """
 from __future__ import annotations
 
