@@ -406,7 +406,7 @@ def _independent_rows(jac: mpmath.matrix) -> list[int]:
     return chosen
 
 
-def _refine(problem: _Problem, point: Mapping[str, Real], prec: int
+def _refine(problem: _Problem, point: Mapping[str, Real], prec: int, deadline: float | None = None
             ) -> tuple[dict[str, Real], list[mpf]] | None:
     """Move the point onto the equations: Newton on a maximal set of equations whose Jacobian has full
     row rank (a regular point: a true solution lies within about residual/singular value), only over
@@ -422,7 +422,7 @@ def _refine(problem: _Problem, point: Mapping[str, Real], prec: int
     unknowns = sorted(set().union(*(variables(c.left) | variables(c.right) for c in system))) if system else []
     current: dict[str, Real] = dict(point)
     if system:
-        refined = _newton(system, point, unknowns, prec, polish=1)
+        refined = _newton(system, point, unknowns, prec, polish=1, deadline=deadline)
         if refined is None:
             return None
         with mp.workdps(prec + 10):
@@ -462,13 +462,14 @@ class _Pass:
     right: mpf
 
 
-def _numeric_pass(problem: _Problem, point: Mapping[str, Real], prec: int) -> _Pass | None:
+def _numeric_pass(problem: _Problem, point: Mapping[str, Real], prec: int,
+                  deadline: float | None = None) -> _Pass | None:
     """At one precision: refine onto the equations, check them and the conditions, return the differences
     (to be compared across precisions) and the sides."""
     current: Mapping[str, Real] = point
     dependent: list[mpf] = []
     if problem.equations:
-        refined = _refine(problem, point, prec)
+        refined = _refine(problem, point, prec, deadline)
         if refined is None:
             return None
         current, dependent = refined
@@ -507,17 +508,18 @@ def _consistent(low: mpf, high: mpf) -> bool:
         return low != 0 and high != 0 and abs(low - high) <= _CONSISTENT * abs(high)
 
 
-def _verify(problem: _Problem, point: Mapping[str, Fraction], texts: Mapping[str, str]) -> Witness | None:
+def _verify(problem: _Problem, point: Mapping[str, Fraction], texts: Mapping[str, str],
+            deadline: float | None = None) -> Witness | None:
     try:
         outcome, witness = _exact_check(problem, point, texts)
         if outcome == "witness":
             return witness
         if outcome == "fails":
             return None
-        low = _numeric_pass(problem, point, _LOW)
+        low = _numeric_pass(problem, point, _LOW, deadline)
         if low is None:
             return None
-        high = _numeric_pass(problem, point, _HIGH)
+        high = _numeric_pass(problem, point, _HIGH, deadline)
         if high is None:
             return None
     except (ArithmeticError, NotEvaluable, KeyError, ValueError, TypeError):
@@ -602,12 +604,12 @@ def check_witness(left: Expr, right: Expr, conditions: Sequence[Condition],
     return _verify(problem, point, texts)
 
 
-def _witness_from(problem: _Problem, point: Mapping[str, Real]) -> Witness | None:
+def _witness_from(problem: _Problem, point: Mapping[str, Real], deadline: float | None = None) -> Witness | None:
     """Print a candidate (exact values as fractions, others with 40 digits) and check what is printed."""
     moving = [name for name in problem.equation_names if not isinstance(point[name], Fraction)]
     if problem.equations and moving:
         # the search works at 30 digits: polish its solution before printing 40 (exact values stay put)
-        polished = _newton(problem.equations, point, moving, _LOW)
+        polished = _newton(problem.equations, point, moving, _LOW, deadline=deadline)
         if polished is None:
             return None
         point = {name: (polished[name] if name in moving else point[name]) for name in problem.names}
@@ -626,7 +628,7 @@ def _witness_from(problem: _Problem, point: Mapping[str, Real]) -> Witness | Non
                 return None
             texts[name] = text
             exact[name] = parsed
-    return _verify(problem, exact, texts)
+    return _verify(problem, exact, texts, deadline)
 
 
 # ---------------------------------------------------------------- the search
@@ -906,7 +908,7 @@ def _plausible(problem: _Problem, point: Mapping[str, Real]) -> bool:
         return False
 
 
-def _try(problem: _Problem, point: Mapping[str, Real]) -> Witness | None:
+def _try(problem: _Problem, point: Mapping[str, Real], deadline: float) -> Witness | None:
     if all(isinstance(v, Fraction) for v in point.values()):
         exact_point = {k: v for k, v in point.items() if isinstance(v, Fraction)}
         try:
@@ -919,7 +921,7 @@ def _try(problem: _Problem, point: Mapping[str, Real]) -> Witness | None:
             return None
     if not _plausible(problem, point):
         return None
-    return _witness_from(problem, point)
+    return _witness_from(problem, point, deadline)
 
 
 def _candidates(problem: _Problem, rng: random.Random, deadline: float) -> Iterator[Mapping[str, Real]]:
@@ -955,7 +957,7 @@ def find_witness(left: Expr, right: Expr, conditions: Sequence[Condition], *, de
         except _SEARCH_FAILURES:  # a generator that raised is finished
             return None
         try:
-            witness = _try(problem, point)
+            witness = _try(problem, point, deadline)
         except _SEARCH_FAILURES:
             continue
         if witness is not None:
