@@ -56,8 +56,8 @@ def _obligation_lines(item: ObligationExplanation, several: bool) -> list[str]:
         else:
             free = ", ".join(item.independent_variables)
             qualifier = "" if s.dimension_exact else "at least "
-            lines.append(f"{ind}condition variety: dimension {qualifier}{s.dimension} in {n} "
-                         f"(independent modulo the leading terms: {free})")
+            lines.append(f"{ind}condition variety: dimension {qualifier}{s.dimension} in {n}; "
+                         f"independent modulo the leading terms: {free}")
     lines.append(f"{ind}normal form of the left side:  {item.left_normal_form}")
     lines.append(f"{ind}normal form of the right side: {item.right_normal_form}")
     lines.append(f"{ind}normal form of LEFT - RIGHT:   {item.difference_normal_form}")
