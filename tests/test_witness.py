@@ -355,3 +355,11 @@ def test_small_but_real_differences_are_refuted_and_rounding_is_not():
         s_text = mpmath.nstr(s, 130, min_fixed=-5, max_fixed=5)
     circle = [cond("s**2 + c**2 == 1")]
     assert check_witness(expr("s**2"), expr("1 - c**2"), circle, {"s": s_text, "c": "1/3"}) is None
+
+
+def test_affine_equation_solved_where_the_first_secant_points_are_undefined():
+    # 1/s is undefined at s = 0, so the secant step uses other points
+    w = search("s", "a", "1/s + 7*s == a + 1/s + 1/11")
+    assert w is not None and w.exact
+    v = {name: F(text) for name, text in w.values}
+    assert v["s"] != 0 and 7 * v["s"] == v["a"] + F(1, 11) and v["s"] != v["a"]

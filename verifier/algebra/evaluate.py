@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import math
 from fractions import Fraction
-from typing import Callable, Iterator, Mapping, Union
+from typing import Callable, Mapping, Union
 
 import mpmath
 from mpmath import mp, mpf
@@ -65,10 +65,6 @@ def postorder(expr: Expr) -> list[Expr]:
             if id(child) not in seen:
                 stack.append((child, False))
     return order
-
-
-def iter_nodes(expr: Expr) -> Iterator[Expr]:
-    return iter(postorder(expr))
 
 
 def variables(expr: Expr) -> set[str]:

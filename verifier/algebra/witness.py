@@ -810,9 +810,30 @@ def _choose_unknowns(problem: _Problem, rng: random.Random) -> list[str] | None:
     return chosen
 
 
+def _secant_root(c: Condition, point: Mapping[str, Fraction], name: str) -> Fraction | None:
+    """The root in ``name`` of the equation if it is affine in it (one secant step through two rational
+    points where it is defined and rational); otherwise some rational that the check will reject."""
+    for t0, t1 in ((Fraction(0), Fraction(1)), (Fraction(1), Fraction(2)), (Fraction(-1), Fraction(3))):
+        values = []
+        try:
+            for t in (t0, t1):
+                trial = dict(point)
+                trial[name] = t
+                a, b = exact_value(c.left, trial), exact_value(c.right, trial)
+                if a is None or b is None:
+                    return None
+                values.append(a - b)
+        except ArithmeticError:
+            continue
+        if values[1] == values[0]:
+            return None
+        return t0 - values[0] * (t1 - t0) / (values[1] - values[0])
+    return None
+
+
 def _exact_solutions(problem: _Problem, rng: random.Random, tries: int,
                      bounds: Mapping[str, _Bound]) -> Iterator[dict[str, Fraction]]:
-    """Equations affine in their chosen variable, solved exactly by a secant step (Gauss-Seidel rounds)."""
+    """Equations affine in their chosen variable, solved exactly by secant steps (Gauss-Seidel rounds)."""
     for _ in range(tries):
         unknowns = _choose_unknowns(problem, rng)
         if unknowns is None:
@@ -822,22 +843,11 @@ def _exact_solutions(problem: _Problem, rng: random.Random, tries: int,
         ok = True
         for _round in range(3):
             for c, name in zip(problem.equations, unknowns):
-                try:
-                    values = []
-                    for t in (Fraction(0), Fraction(1)):
-                        trial = dict(point)
-                        trial[name] = t
-                        a, b = exact_value(c.left, trial), exact_value(c.right, trial)
-                        if a is None or b is None:
-                            raise DomainError("irrational")
-                        values.append(a - b)
-                except (DomainError, ZeroDivisionError):
+                root = _secant_root(c, point, name)
+                if root is None:
                     ok = False
                     break
-                if values[1] == values[0]:
-                    ok = False
-                    break
-                point[name] = -values[0] / (values[1] - values[0])
+                point[name] = root
             if not ok:
                 break
         if ok:
