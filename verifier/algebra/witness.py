@@ -479,6 +479,7 @@ def _numeric_pass(problem: _Problem, point: Mapping[str, Real], prec: int,
         for residual, size in _residuals(problem.extra_equations, current, prec, strict=True):
             if abs(residual) > eps * size:
                 return None
+            result.dependent.append(residual)  # like a dependent equation: must be rounding noise only
         for c in problem.others:
             a = numeric_value(c.left, current, prec, strict_radicands=True)
             b = numeric_value(c.right, current, prec, strict_radicands=True)
