@@ -2,14 +2,16 @@
 
 A claim is refuted only with a witness returned from here, so the check is strict:
 - a rational point is checked in exact rational arithmetic whenever every value stays rational;
-- otherwise with mpmath at two precisions (60 and 120 digits).  Equation conditions are first refined
-  by Newton steps (minimum-norm, on all their variables) starting from the given point; the refinement
-  must move the point by almost nothing, end with a tiny residual and a Jacobian of full row rank (a
-  regular point, so a true solution lies right beside the printed one).  Strict inequalities, ``!=``
-  and the difference of the sides must be clearly non-zero, with the same value at both precisions.
-The search tries small rationals, random rationals of varied signs and scales, exact solutions of
-equations that are affine in one variable, and Newton solutions of the equations from random starts.
-Everything is deterministic for a given seed (up to the deadline).
+- otherwise with mpmath at two precisions (60 and 120 digits).  At each precision the equation conditions
+  are refined by Newton steps on a maximal subset whose Jacobian has full row rank (a regular point, so a
+  true solution lies right beside the printed one); the refinement must move the point by at most 1e-25
+  (relative).  The equations left out (repeats, multiples, consequences of the others) must vanish up to
+  rounding: a residual that is the same at both precisions is real and rejects the point.  Radicands must
+  be >= 0 without any rounding allowance.  Strict inequalities, ``!=`` and the difference of the sides
+  must exceed 1e-30 * max(1, |left|, |right|) and agree between the two precisions.
+The search tries small rationals, random rationals of varied signs and scales (within the bounds that
+conditions such as ``x > 1/2`` set), exact solutions of equations affine in one variable, and Newton
+solutions of the equations from random starts.  Deterministic for a given seed (up to the deadline).
 """
 from __future__ import annotations
 
