@@ -246,3 +246,36 @@ def test_tampered_sign_certificates_are_rejected():
     # the certificate of the true claim does not transfer to the false one
     false_claim = claim_of("sqrt(x**2) == x")
     assert not certificate_matches(false_claim, v.obligations)
+
+
+@pytest.mark.parametrize("text", [
+    "x == 1 given a > b, a <= b",  # a branch that contradicts a hypothesis (common practice)
+    "x == 1 given x > 0, x < 0",
+    "x == 1 given y == 2, y < 1",
+    "x == 1 given 2*a - 2*b > 0, b - a >= 0",
+])
+def test_contradictory_sign_hypotheses_prove_vacuously(text):
+    v = verdict_of(text)
+    assert v.verdict == "proved" and v.method == "sign" and v.obligations[0].vacuous, v.reason
+    assert certificate_is_valid(v.obligations[0].certificate)
+    assert certificate_matches(v.claim, v.obligations)
+
+
+@pytest.mark.parametrize("text", [
+    "x == 1 given a >= b, a <= b",  # a == b is possible: not a contradiction
+    "x == 1 given y == 2, y > 1",
+])
+def test_compatible_sign_hypotheses_are_not_contradictions(text):
+    v = verdict_of(text)
+    assert v.verdict == "refuted"
+
+
+def test_tampered_contradiction_certificate_is_rejected():
+    import dataclasses
+
+    v = verdict_of("x == 1 given a > b, a <= b")
+    cert = v.obligations[0].certificate
+    weaker = dataclasses.replace(cert.contradiction, first_strict=False, second_strict=False)
+    assert not certificate_is_valid(dataclasses.replace(cert, contradiction=weaker))
+    # the certificate is not accepted for a claim whose hypotheses are different
+    assert not certificate_matches(claim_of("x == 1 given a >= b, a <= b"), v.obligations)

@@ -18,7 +18,12 @@ from typing import Sequence
 
 from verifier.algebra.certificate import make_certificate, poly_to_data
 from verifier.algebra.groebner import GroebnerTimeout, groebner_basis, membership_cofactors, reduce
-from verifier.algebra.sign import certificate_is_valid, find_sign_proof, nonnegative_symbols
+from verifier.algebra.sign import (
+    certificate_is_valid,
+    find_sign_contradiction,
+    find_sign_proof,
+    nonnegative_symbols,
+)
 from verifier.algebra.translate import Translation, TranslationError, translate
 from verifier.algebra.verdict import Certificate, Method, ObligationResult, Verdict, Witness
 from verifier.algebra.witness import differs_mod_p, find_witness
@@ -144,6 +149,11 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
                            "cannot vanish where LEFT - RIGHT does not")
     else:
         normal_form = f
+    _check_time(deadline)
+    contradiction = find_sign_contradiction(tr, basis_result, deadline=deadline)
+    if contradiction is not None:
+        return _accept(tr, label, "sign", contradiction,
+                       "the sign hypotheses cannot all hold: proved vacuously", vacuous=True)
     cnf = tr.printed(normal_form)
     witness = find_witness(ob.left, ob.right, ob.conditions, deadline=deadline, seed=seed)
     if witness is not None:
@@ -257,6 +267,13 @@ def certificate_matches(claim: Claim, results: Sequence[ObligationResult]) -> bo
             return False
         if cert.sign is not None and not set(cert.sign.nonnegative_symbols) <= set(nonnegative_symbols(tr)):
             return False
+        if cert.contradiction is not None:
+            known = {(poly_to_data(p), strict) for p, strict in tr.signs}
+            c = cert.contradiction
+            if (c.first, c.first_strict) not in known:
+                return False
+            if c.second and (c.second, c.second_strict) not in known:
+                return False
         if not certificate_is_valid(cert):
             return False
     return True

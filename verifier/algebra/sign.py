@@ -22,7 +22,7 @@ from sympy.polys.rings import PolyElement
 from verifier.algebra.certificate import check_certificate, data_to_poly, make_certificate, poly_to_data
 from verifier.algebra.groebner import GroebnerResult, membership_cofactors, reduce
 from verifier.algebra.translate import Translation
-from verifier.algebra.verdict import Certificate, SignArgument
+from verifier.algebra.verdict import Certificate, SignArgument, SignContradiction
 from verifier.claims.model import Num, Var
 
 
@@ -164,8 +164,118 @@ def check_sign_certificate(cert: Certificate) -> bool:
         return False
 
 
+def _fraction(value) -> Fraction:
+    return Fraction(int(value.numerator), int(value.denominator))
+
+
+def find_sign_contradiction(tr: Translation, basis: GroebnerResult | None, *,
+                            deadline: float | None) -> Certificate | None:
+    """A certificate that the sign hypotheses cannot hold together (for example a branch ``a <= b``
+    under ``given a > b``), or None.  Each hypothesis is P > 0 or P >= 0; modulo the ideal, either one P
+    is a constant of the wrong sign, or P1 == ratio*P2 with ratio < 0 and one of them strict."""
+    if not tr.signs:
+        return None
+    generators = tuple(g.poly for g in tr.generators)
+    ring = tr.ring
+
+    def normal(p: PolyElement) -> PolyElement:
+        if basis is None or not basis.basis:
+            return p
+        return reduce(p, basis.basis, deadline=deadline)[1]
+
+    def cofactors_of(p: PolyElement) -> tuple | None:
+        if not p:
+            return tuple(ring.zero for _ in generators)
+        if basis is None:
+            return None
+        return membership_cofactors(p, basis, deadline=deadline)
+
+    normals = [normal(p) for p, _ in tr.signs]
+    for i, (p1, strict1) in enumerate(tr.signs):
+        n1 = normals[i]
+        options: list[tuple[PolyElement, bool, Fraction, Fraction]] = []
+        if n1.is_ground:
+            constant = _fraction(n1.LC) if n1 else Fraction(0)
+            options.append((ring.zero, False, Fraction(0), constant))
+        for j, (p2, strict2) in enumerate(tr.signs):
+            n2 = normals[j]
+            if j == i or not n1 or not n2 or n1.is_ground:
+                continue
+            ratio = _fraction(n1.LC) / _fraction(n2.LC)
+            if ratio < 0 and n1 - n2 * ring.domain.convert(ratio.numerator) / ratio.denominator == 0:
+                options.append((p2, strict2, ratio, Fraction(0)))
+        for p2, strict2, ratio, constant in options:
+            if not _contradicts(strict1, strict2, ratio, constant):
+                continue
+            combination = p1 - p2 * ring.domain.convert(ratio.numerator) / ratio.denominator - constant
+            cofactors = cofactors_of(combination)
+            if cofactors is None:
+                continue
+            contradiction = SignContradiction(
+                first=poly_to_data(p1), first_strict=strict1,
+                second=poly_to_data(p2) if p2 else (), second_strict=strict2 if p2 else False,
+                ratio=_fraction_text(ratio), constant=_fraction_text(constant),
+            )
+            base = make_certificate(tuple(str(s) for s in ring.symbols), tr.difference, 1, generators,
+                                    tuple(cofactors))
+            return Certificate(base.symbols, base.target, 1, base.generators, base.cofactors,
+                               contradiction=contradiction)
+    return None
+
+
+def _fraction_text(value: Fraction) -> str:
+    return str(value.numerator) if value.denominator == 1 else f"{value.numerator}/{value.denominator}"
+
+
+def _contradicts(strict1: bool, strict2: bool, ratio: Fraction, constant: Fraction) -> bool:
+    """first >= 0, second >= 0, first == ratio*second + constant, ratio <= 0: impossible?"""
+    if ratio > 0:
+        return False
+    if constant < 0:
+        return True
+    return constant == 0 and (strict1 or (ratio < 0 and strict2))
+
+
+def check_contradiction_certificate(cert: Certificate) -> bool:
+    arg = cert.contradiction
+    if arg is None or cert.sign is not None:
+        return False
+    try:
+        from sympy import QQ, Symbol
+        from sympy.polys.orderings import grevlex
+        from sympy.polys.rings import PolyRing
+
+        ratio, constant = Fraction(_strict_fraction(arg.ratio)), Fraction(_strict_fraction(arg.constant))
+        if not arg.second and (ratio != 0 or arg.second_strict):
+            return False
+        if not _contradicts(arg.first_strict, arg.second_strict, ratio, constant):
+            return False
+        ring = PolyRing([Symbol(s) for s in cert.symbols], QQ, grevlex)
+        first = data_to_poly(arg.first, ring)
+        second = data_to_poly(arg.second, ring) if arg.second else ring.zero
+        generators = [data_to_poly(g, ring) for g in cert.generators]
+        cofactors = [data_to_poly(c, ring) for c in cert.cofactors]
+        if len(generators) != len(cofactors):
+            return False
+        combination = first - second * QQ(ratio.numerator, ratio.denominator) - QQ(constant.numerator,
+                                                                                  constant.denominator)
+        return combination == sum((c * g for c, g in zip(cofactors, generators)), ring.zero)
+    except (ValueError, TypeError, ZeroDivisionError, IndexError):
+        return False
+
+
+def _strict_fraction(text: str) -> Fraction:
+    import re
+
+    if not isinstance(text, str) or not re.fullmatch(r"-?\d{1,200}(/[1-9]\d{0,199})?", text):
+        raise ValueError(f"not a fraction: {text!r}")
+    return Fraction(text)
+
+
 def certificate_is_valid(cert: Certificate) -> bool:
-    """The right re-check for either kind of certificate."""
+    """The right re-check for each kind of certificate."""
+    if cert.contradiction is not None:
+        return check_contradiction_certificate(cert)
     if cert.sign is not None:
         return check_sign_certificate(cert)
     return check_certificate(cert)

@@ -69,7 +69,9 @@ class Translation:
     variables: tuple[str, ...]  # the original variables, in ring order
     aux: tuple[AuxVariable, ...]
     assumed: tuple[str, ...]  # what was assumed, for the report (non-zero denominators, radicands >= 0 ...)
-    sign_conditions: tuple[Condition, ...] = field(default=())  # <, <=, >, >= (used by the witness check only)
+    sign_conditions: tuple[Condition, ...] = field(default=())  # <, <=, >, >= as written
+    # the same, normalized: (P, strict) meaning P > 0 (strict) or P >= 0, in ``ring``
+    signs: tuple[tuple[PolyElement, bool], ...] = field(default=())
 
     def printed(self, poly: PolyElement) -> str:
         """The polynomial in the original variables: auxiliary variables shown as what they stand for."""
@@ -550,6 +552,7 @@ def translate(obligation: Obligation) -> Translation:
     t = _Translator(sorted(names))
     t.prescan(exprs)
     sign_conditions: list[Condition] = []
+    signs: list[tuple[PolyElement, bool]] = []
     for cond in obligation.conditions:
         left, right = t.value(cond.left), t.value(cond.right)
         diff = t.lift(left) - t.lift(right)
@@ -564,6 +567,7 @@ def translate(obligation: Obligation) -> Translation:
                 t.inverse(diff)
         elif cond.relation in _SIGN_RELATIONS:
             sign_conditions.append(cond)
+            signs.append((diff if cond.relation in (">", ">=") else -diff, cond.relation in ("<", ">")))
             if cond.relation in ("<", ">"):
                 # a strict inequality implies the difference is not zero (sound, and often what is needed)
                 if not diff:
@@ -598,4 +602,5 @@ def translate(obligation: Obligation) -> Translation:
         aux=tuple(t.aux),
         assumed=tuple(dict.fromkeys(assumed)),
         sign_conditions=tuple(sign_conditions),
+        signs=tuple((conv(t.lift(p)), strict) for p, strict in signs),
     )

@@ -36,6 +36,23 @@ class SignArgument:
 
 
 @dataclass(frozen=True)
+class SignContradiction:
+    """Sign hypotheses that cannot hold together (``algebra/sign.py``): a vacuous proof.
+
+    With ``first > 0`` (or ``>= 0``) and ``second > 0`` (or ``>= 0``, absent when empty) among the
+    hypotheses, the certificate's cofactors show ``first - ratio*second - constant`` in the ideal, and
+    ``ratio <= 0`` with ``constant < 0``, or ``constant == 0`` with a strict hypothesis that then fails.
+    """
+
+    first: PolyData
+    first_strict: bool
+    second: PolyData
+    second_strict: bool
+    ratio: str
+    constant: str
+
+
+@dataclass(frozen=True)
 class Certificate:
     """``target ** power == sum(cofactors[i] * generators[i])`` as polynomials over QQ in ``symbols``.
 
@@ -48,6 +65,7 @@ class Certificate:
     generators: tuple[PolyData, ...]
     cofactors: tuple[PolyData, ...]
     sign: SignArgument | None = None
+    contradiction: SignContradiction | None = None
 
 
 @dataclass(frozen=True)
