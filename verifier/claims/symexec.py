@@ -89,6 +89,10 @@ class Stuck(Exception):
 
 # ---------------------------------------------------------------- printing expressions
 
+def _frac(value: Fraction) -> str:
+    return str(value.numerator) if value.denominator == 1 else f"{value.numerator}/{value.denominator}"
+
+
 def expr_text(e: Expr) -> str:
     """The claim-language spelling of an expression (for condition texts and labels)."""
     from verifier.claims.language import expression_text
