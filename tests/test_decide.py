@@ -279,3 +279,18 @@ def test_tampered_contradiction_certificate_is_rejected():
     assert not certificate_is_valid(dataclasses.replace(cert, contradiction=weaker))
     # the certificate is not accepted for a claim whose hypotheses are different
     assert not certificate_matches(claim_of("x == 1 given a >= b, a <= b"), v.obligations)
+
+
+@pytest.mark.parametrize("text", [
+    "sqrt(x**2 + 2*x + 1) == x + 1 given x >= -1",  # a sign hypothesis on a polynomial, not a variable
+    "sqrt(a)/sqrt(b) == sqrt(a/b) given a > 0, b > 0",  # inverses of positive quantities are positive
+    # the tangent half-angle substitution (common practice), where s is fixed by its sign
+    "s == 2*t/(1 + t**2) given s**2 + c**2 == 1, c == (1 - t**2)/(1 + t**2), s > 0, t > 0",
+])
+def test_sign_argument_generalizations(text):
+    assert_proved(text, "sign")
+
+
+def test_sign_argument_generalizations_keep_false_claims_false():
+    assert_refuted("sqrt(x**2 + 2*x + 1) == x + 1 given x >= -3")
+    assert_refuted("s == 2*t/(1 + t**2) given s**2 + c**2 == 1, c == (1 - t**2)/(1 + t**2), s < 0, t > 0")

@@ -265,8 +265,12 @@ def certificate_matches(claim: Claim, results: Sequence[ObligationResult]) -> bo
             return False
         if cert.generators != tuple(poly_to_data(g.poly) for g in tr.generators):
             return False
-        if cert.sign is not None and not set(cert.sign.nonnegative_symbols) <= set(nonnegative_symbols(tr)):
-            return False
+        known_signs = {poly_to_data(p) for p, _strict in tr.signs}
+        if cert.sign is not None:
+            if not set(cert.sign.nonnegative_symbols) <= set(nonnegative_symbols(tr)):
+                return False
+            if any(h not in known_signs for h, _lam in cert.sign.hypotheses):
+                return False
         if cert.contradiction is not None:
             known = {(poly_to_data(p), strict) for p, strict in tr.signs}
             c = cert.contradiction

@@ -27,13 +27,33 @@ from verifier.claims.model import Num, Var
 
 
 def nonnegative_symbols(tr: Translation) -> tuple[str, ...]:
-    """Ring symbols known to be >= 0 wherever the obligation's assumptions hold."""
-    names = [a.name for a in tr.aux if a.kind in ("radical", "exp", "exp_inverse")]
+    """Ring symbols known to be >= 0 wherever the obligation's assumptions hold: principal square roots,
+    exponentials, variables with a hypothesis ``v > c`` or ``v >= c`` (c >= 0), and inverses of
+    quantities that are themselves >= 0 (then > 0, since they are not zero)."""
+    names = {a.name for a in tr.aux if a.kind in ("radical", "exp", "exp_inverse")}
     for cond in tr.sign_conditions:
         var, bound, relation = _variable_bound(cond)
         if var is not None and bound is not None and bound >= 0 and relation in (">", ">="):
-            names.append(var)
-    return tuple(sorted(set(names)))
+            names.add(var)
+    symbols = [str(x) for x in tr.ring.symbols]
+    inverses = []
+    for gen in tr.generators:
+        if gen.kind != "inverse":
+            continue
+        for index, name in enumerate(symbols):
+            if name.startswith("$d") and gen.poly.degree(index) == 1:
+                quotient, remainder = (gen.poly + 1).div([tr.ring.gens[index]])
+                if not remainder and quotient[0].degree(index) == 0:
+                    inverses.append((name, quotient[0]))
+                break
+    changed = True
+    while changed:  # an inverse of an inverse of something >= 0 is >= 0 too
+        changed = False
+        for name, inverted in inverses:
+            if name not in names and _sign_pattern_ok(inverted, {symbols.index(n) for n in names}):
+                names.add(name)
+                changed = True
+    return tuple(sorted(names))
 
 
 def _variable_bound(cond) -> tuple[str | None, Fraction | None, str]:
@@ -73,6 +93,66 @@ def _sign_pattern_ok(p: PolyElement, nonnegative: set[int]) -> bool:
     return True
 
 
+def _split_plain(f: PolyElement, index: int) -> tuple[PolyElement, PolyElement] | None:
+    """f == A*v + B with A, B free of v, when f has degree 1 in v."""
+    if f.degree(index) != 1:
+        return None
+    ring = f.ring
+    a, b = ring.zero, ring.zero
+    for monom, coeff in f.terms():
+        rest = ring({monom[:index] + (0,) + monom[index + 1:]: coeff})
+        if monom[index]:
+            a += rest
+        else:
+            b += rest
+    return a, b
+
+
+def _root_candidates(tr: Translation, positive: Sequence[str]):
+    """(index, A, B) for every nonnegative symbol v with f == A*v + B (radicals after v**2 -> radicand)."""
+    f = tr.difference
+    symbols = [str(x) for x in tr.ring.symbols]
+    radicands: dict[int, PolyElement] = {}
+    for gen in tr.generators:
+        if gen.kind != "radical":
+            continue
+        for index, name in enumerate(symbols):
+            if name.startswith("$r") and gen.poly.degree(index) == 2:
+                radicand = tr.ring.gens[index] ** 2 - gen.poly
+                if radicand.degree(index) <= 0:
+                    radicands[index] = radicand
+    for name in positive:
+        index = symbols.index(name)
+        if f.degree(index) <= 0:
+            continue
+        if index in radicands:
+            yield index, *_split_linear(f, index, radicands[index])
+        else:
+            split = _split_plain(f, index)
+            if split is not None:
+                yield index, *split
+
+
+def _nonnegative_form(value: PolyElement, tr: Translation, basis: GroebnerResult, positive_index: set[int],
+                      deadline: float | None):
+    """(P, [(S, lam)]) with value == P + sum(lam*S) modulo the ideal, P of a nonnegative sign pattern,
+    S sign hypotheses (S >= 0) and lam > 0; or None."""
+    _, p = reduce(value, basis.basis, deadline=deadline) if basis.basis else ((), value)
+    if _sign_pattern_ok(p, positive_index):
+        return p, []
+    for hypothesis, _strict in tr.signs:
+        _, h = reduce(hypothesis, basis.basis, deadline=deadline) if basis.basis else ((), hypothesis)
+        if not h or not p:
+            continue
+        lam = p.LC / h.LC if p.LM == h.LM else None
+        if lam is None or lam <= 0:
+            continue
+        rest = p - h * lam
+        if _sign_pattern_ok(rest, positive_index):
+            return rest, [(hypothesis, lam)]
+    return None
+
+
 def find_sign_proof(tr: Translation, basis: GroebnerResult, *, deadline: float | None) -> Certificate | None:
     """A certificate of the conjugate argument for ``tr.difference``, or None."""
     f = tr.difference
@@ -81,40 +161,33 @@ def find_sign_proof(tr: Translation, basis: GroebnerResult, *, deadline: float |
     positive = nonnegative_symbols(tr)
     positive_index = {symbols.index(n) for n in positive}
     generators = tuple(g.poly for g in tr.generators)
-    for gen in tr.generators:
-        if gen.kind != "radical":
+    for index, a, b in _root_candidates(tr, positive):
+        if not a or not b:
             continue
-        # the generator is r**2 - u; find r as the variable whose square leads it
-        candidates = [i for i, n in enumerate(symbols) if n.startswith("$r") and gen.poly.degree(i) == 2]
-        for index in candidates:
-            r = ring.gens[index]
-            radicand = r**2 - gen.poly
-            if radicand.degree(index) > 0:
-                continue
-            if f.degree(index) <= 0:
-                continue
-            a, b = _split_linear(f, index, radicand)
-            if not a or not b:
-                continue
-            multiplier = a * r - b
-            cofactors = membership_cofactors(f * multiplier, basis, deadline=deadline)
-            if cofactors is None:
-                continue
-            _, p = reduce(-a * b, basis.basis, deadline=deadline)
-            if not _sign_pattern_ok(p, positive_index):
-                continue
-            p_cofactors = membership_cofactors(-a * b - p, basis, deadline=deadline)
-            if p_cofactors is None:
-                continue
-            base = make_certificate(tuple(symbols), f, 1, generators, tuple(cofactors))
-            argument = SignArgument(
-                root=symbols[index],
-                multiplier=poly_to_data(multiplier),
-                nonnegative=poly_to_data(p),
-                nonnegative_cofactors=tuple(poly_to_data(c) for c in p_cofactors),
-                nonnegative_symbols=positive,
-            )
-            return Certificate(base.symbols, base.target, 1, base.generators, base.cofactors, argument)
+        r = ring.gens[index]
+        multiplier = a * r - b
+        cofactors = membership_cofactors(f * multiplier, basis, deadline=deadline)
+        if cofactors is None:
+            continue
+        form = _nonnegative_form(-a * b, tr, basis, positive_index, deadline)
+        if form is None:
+            continue
+        p, hypotheses = form
+        combination = -a * b - p - sum((h * lam for h, lam in hypotheses), ring.zero)
+        p_cofactors = membership_cofactors(combination, basis, deadline=deadline) if combination else \
+            tuple(ring.zero for _ in generators)
+        if p_cofactors is None:
+            continue
+        base = make_certificate(tuple(symbols), f, 1, generators, tuple(cofactors))
+        argument = SignArgument(
+            root=symbols[index],
+            multiplier=poly_to_data(multiplier),
+            nonnegative=poly_to_data(p),
+            nonnegative_cofactors=tuple(poly_to_data(c) for c in p_cofactors),
+            nonnegative_symbols=positive,
+            hypotheses=tuple((poly_to_data(h), _fraction_text(_fraction(lam))) for h, lam in hypotheses),
+        )
+        return Certificate(base.symbols, base.target, 1, base.generators, base.cofactors, argument)
     return None
 
 
@@ -155,8 +228,14 @@ def check_sign_certificate(cert: Certificate) -> bool:
         if remainder or quotient[0].degree(index) > 0:
             return False
         a, b = quotient[0] * QQ(1, 2), twice_b * QQ(1, 2)
-        # (2) -A*B - P is in the ideal and P has the right sign pattern
-        if -a * b - p != sum((c * g for c, g in zip(p_cofactors, generators)), ring.zero):
+        # (2) -A*B - P - sum(lam*S) is in the ideal, lam >= 0, and P has the right sign pattern
+        combination = -a * b - p
+        for hypothesis, lam_text in arg.hypotheses:
+            lam = _strict_fraction(lam_text)
+            if lam < 0:
+                return False
+            combination -= data_to_poly(hypothesis, ring) * QQ(lam.numerator, lam.denominator)
+        if combination != sum((c * g for c, g in zip(p_cofactors, generators)), ring.zero):
             return False
         positive_index = {list(cert.symbols).index(s) for s in arg.nonnegative_symbols}
         return _sign_pattern_ok(p, positive_index)

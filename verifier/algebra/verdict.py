@@ -24,8 +24,9 @@ class SignArgument:
 
     With A, B defined by ``target == A*root + B`` and ``multiplier == A*root - B``: the certificate's
     cofactors show ``target * multiplier`` in the ideal, and ``nonnegative_cofactors`` show
-    ``-A*B - nonnegative`` in it, where ``nonnegative`` has positive coefficients and odd powers only of
-    ``nonnegative_symbols`` (principal roots, exponentials, variables with a sign hypothesis).
+    ``-A*B - nonnegative - sum(lam*S)`` in it, where ``nonnegative`` has positive coefficients and odd
+    powers only of ``nonnegative_symbols`` (principal roots, exponentials, variables with a sign
+    hypothesis, inverses of such) and each S is a sign hypothesis S >= 0 with weight lam >= 0.
     """
 
     root: str
@@ -33,6 +34,8 @@ class SignArgument:
     nonnegative: PolyData
     nonnegative_cofactors: tuple[PolyData, ...]
     nonnegative_symbols: tuple[str, ...]
+    # sign hypotheses S >= 0 used with weights lam >= 0: -A*B - nonnegative - sum(lam*S) is in the ideal
+    hypotheses: tuple[tuple[PolyData, str], ...] = ()
 
 
 @dataclass(frozen=True)
