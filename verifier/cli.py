@@ -133,6 +133,16 @@ def _cache_dir(args: argparse.Namespace, config: Any, cwd: Path) -> str | None:
     return os.path.relpath(configured_path.resolve(), cwd.resolve())
 
 
+def config_start(paths: Sequence[str] | None, cwd: Path) -> Path:
+    """Where the search for the nearest pyproject.toml starts: the first path checked (so that
+    `idealcheck check some/project` uses that project's settings), else the working directory."""
+    if paths:
+        first = (cwd / paths[0])
+        if first.exists():
+            return first if first.is_dir() else first.parent
+    return cwd
+
+
 def run_check(args: argparse.Namespace) -> int:
     from verifier.report import fails_run, render
     from verifier.runner import CheckRequest, RunOptions, check
@@ -140,7 +150,7 @@ def run_check(args: argparse.Namespace) -> int:
     if args.staged and args.since:
         raise UsageError("--staged and --since cannot be combined")
     cwd = Path.cwd()
-    config = load_config_or_exit(args, cwd)
+    config = load_config_or_exit(args, config_start(args.paths, cwd))
     on_inconclusive = args.on_inconclusive or getattr(config, "on_inconclusive", "fail")
     options = RunOptions(
         timeout=args.timeout if args.timeout is not None else float(getattr(config, "timeout", 10.0)),
