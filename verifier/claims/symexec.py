@@ -118,6 +118,7 @@ class ModuleInfo:
     constants: dict[str, list[cst.BaseExpression]] = field(default_factory=dict)
     rebound: set[str] = field(default_factory=set)  # names bound at top level by something other than one assignment
     relative_base: str = ""  # directory a relative import starts from
+    star_imports: list[str] = field(default_factory=list)  # modules imported with `from M import *`
 
     def line(self, node: cst.CSTNode) -> int:
         pos = self.positions.get(node)
@@ -189,6 +190,7 @@ def _index_statement(info: ModuleInfo, stmt: cst.CSTNode, top: bool) -> None:
                     continue
                 prefix = "." * dots
                 if isinstance(small.names, cst.ImportStar):
+                    info.star_imports.append(prefix + base)
                     continue
                 for alias in small.names:
                     name = alias.name.value if isinstance(alias.name, cst.Name) else None
@@ -941,6 +943,8 @@ class Executor:
             return Unknown(f"the module {name} used as a value at line {line}")
         if name in module.functions or name in module.classes:
             return Unknown(f"the function or class {name} used as a value at line {line} is not supported")
+        if name in ("pi", "tau", "e") and any(m in MATH_MODULES for m in module.star_imports):
+            return math_constant("math", name, line)
         # an undefined global: any real number (a claim must hold for every value of it)
         return Var(name)
 
@@ -1364,6 +1368,8 @@ class Executor:
             return self._resolve_global_callee(member, other, line, depth + 1)
         if name in _BUILTINS:
             return ("builtin", name)
+        if any(m in MATH_MODULES for m in module.star_imports) and name in _STAR_MATH:
+            return ("math", name)
         return ("opaque", name)
 
     def _arguments(self, node: cst.Call, state: State, frame: Frame, line: int
@@ -1804,6 +1810,8 @@ _RELATIONS: dict[type, str] = {
     cst.GreaterThanEqual: ">=",
 }
 _NEGATION = {"==": "!=", "!=": "==", "<": ">=", "<=": ">", ">": "<=", ">=": "<"}
+_STAR_MATH = frozenset({"sqrt", "hypot", "fma", "sin", "cos", "tan", "exp", "log", "log10", "log2", "pow",
+                        "square", "fabs", "floor", "ceil", "trunc", "fmod", "copysign"})
 _BUILTINS = frozenset({"pow", "float", "int", "tuple", "list", "len", "sum", "range", "enumerate", "zip",
                        "reversed", "abs", "min", "max", "round", "divmod", "complex", "sorted", "map", "filter",
                        "any", "all", "print", "isinstance", "bool", "str"})
