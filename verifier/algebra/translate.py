@@ -262,8 +262,11 @@ class _Translator:
 
     # -- non-polynomial constructs
 
-    def inverse(self, u: PolyElement) -> PolyElement:
-        """1/u, with one inverse variable per irreducible factor of u (so equal denominators share)."""
+    def inverse(self, u: PolyElement, shown: str | None = None) -> PolyElement:
+        """1/u, with one inverse variable per irreducible factor of u (so equal denominators share).
+
+        ``shown`` names u in the report when it is a single factor (``cos(t)`` rather than its expansion).
+        """
         u = self.lift(u)
         if not u:
             raise TranslationError("division by zero: a denominator is identically 0")
@@ -271,6 +274,8 @@ class _Translator:
             c = u.LC
             return self.const(Fraction(int(c.denominator), int(c.numerator)))
         coeff, factors = u.factor_list()
+        if len(factors) != 1 or factors[0][1] != 1:
+            shown = None
         result = self.const(Fraction(int(coeff.denominator), int(coeff.numerator)))
         for factor, multiplicity in factors:
             factor = self.lift(factor)
@@ -278,11 +283,11 @@ class _Translator:
                 factor = -factor
                 if multiplicity % 2:
                     result = -result
-            inverse_factor = self._factor_inverse(factor) ** multiplicity
+            inverse_factor = self._factor_inverse(factor, shown) ** multiplicity
             result = self.lift(result) * self.lift(inverse_factor)
         return self.lift(result)
 
-    def _factor_inverse(self, factor: PolyElement) -> PolyElement:
+    def _factor_inverse(self, factor: PolyElement, shown: str | None = None) -> PolyElement:
         # the inverse of an inverse variable is what it inverts; an exp variable has its own inverse
         if len(factor.terms()) == 1 and factor.LC == 1:
             monom = factor.LM
@@ -296,7 +301,8 @@ class _Translator:
         key = ("inverse", poly_key(factor))
         if key in self._atoms:
             return self.gen(self._atoms[key])
-        shown = self.printed(factor)
+        if shown is None or factor.LC != 1:
+            shown = self.printed(factor)
         name = self._new_symbol("d", f"1/{_atom(shown)}", "inverse")
         self._atoms[key] = name
         self._inverse_of[name] = factor
@@ -345,12 +351,13 @@ class _Translator:
             a, b, c = (self.value(x) for x in args)
             return self.lift(a) * self.lift(b) + self.lift(c)
         if f in ("sin", "cos", "tan"):
-            cos_value, sin_value = self.angle(self.value(args[0]))
+            argument = self.value(args[0])
+            cos_value, sin_value = self.angle(argument)
             if f == "sin":
                 return sin_value
             if f == "cos":
                 return cos_value
-            inverse_cos = self.inverse(cos_value)
+            inverse_cos = self.inverse(cos_value, f"cos({self.printed(self.lift(argument))})")
             return self.lift(sin_value) * inverse_cos
         if f == "exp":
             return self.exponential(self.value(args[0]))
