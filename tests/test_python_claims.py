@@ -699,3 +699,18 @@ def test_numpy_arrays_are_elementwise_not_concatenated(tmp_path, monkeypatch):
     for claim in claims:
         assert claim.problem is None
         assert all(vanishes(ob.left, ob.right) for ob in claim.obligations)
+
+
+def test_returns_claims_may_name_module_constants(tmp_path, monkeypatch):
+    claim = only(claims_in(tmp_path, monkeypatch, """\
+        GAIN = 0.25
+        OFFSET = 3
+
+
+        # idealcheck: returns GAIN*x + OFFSET given x != OFFSET
+        def calibrated(x):
+            return x / 4 + 3
+        """))
+    (ob,) = claim.obligations
+    assert ob.right == BinOp("+", BinOp("*", Num(Fraction(1, 4)), Var("x")), Num(Fraction(3)))
+    assert ob.conditions[0].right == Num(Fraction(3))

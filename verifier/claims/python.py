@@ -255,11 +255,17 @@ class _FileReader:
         paths = self._returned(outcomes, name)
         obligations: list[Obligation] = []
         if parsed.form == "returns":
-            target: Value = parsed.sides[0] if len(parsed.sides) == 1 else Seq(tuple(parsed.sides))
+            # EXPR is in the parameters; a module-level constant it names means that constant's value
+            params = State(tuple((p, Var(p)) for p in positional_parameters(ref.node)))
+            sides = [executor_substitute(executor, side, params, ref.module) for side in parsed.sides]
+            unknown = next((first_unknown(side) for side in sides if first_unknown(side) is not None), None)
+            if unknown is not None:
+                raise _ClaimProblem("inconclusive", f"the claim's expression cannot be followed: {unknown.reason}")
+            given = tuple(_substitute_condition(executor, c, params, ref.module) for c in parsed.conditions)
+            target: Value = sides[0] if len(sides) == 1 else Seq(tuple(sides))
             for state, value in paths:
                 for left, right, label in _components(value, target, name, "the claim"):
-                    obligations.append(_obligation(left, right, parsed.conditions, state.conditions, label,
-                                                   state.notes))
+                    obligations.append(_obligation(left, right, given, state.conditions, label, state.notes))
         else:
             other_name = parsed.other or ""
             other = self._find_function(other_name, self.module, 0, executor)
@@ -494,6 +500,8 @@ def _resolve_spelling(executor: Executor, name: str, state: State, module: Modul
     if value is None:
         if base_name in module.constants and base_name not in module.rebound:
             value = executor.module_constant(module, base_name, 0)
+            if first_unknown(value) is not None:
+                return Var(name)  # left free: code that uses it is inconclusive anyway
         else:
             return Var(name)
     position = head.end()
