@@ -9,7 +9,7 @@ from pathlib import Path
 import pytest
 
 from verifier.cache import ResultCache, claim_key
-from verifier.claims.model import BinOp, Claim, Location, NamedConditionSet, Num, Obligation, Pow, Var
+from verifier.claims.model import BinOp, Claim, Condition, Location, NamedConditionSet, Num, Obligation, Pow, Var
 from verifier.runner import RunOptions, decide_guarded, run
 
 a, b, x, y = Var("a"), Var("b"), Var("x"), Var("y")
@@ -174,11 +174,48 @@ def test_the_key_covers_dependencies_version_and_conditions_but_not_the_location
     assert claim_key(moved, version="1.0", conditions=(), dependency_text=TEXTS.get) == base
 
 
-def test_only_decisive_results_are_stored(tmp_path: Path, decided) -> None:
+def test_results_cut_short_by_a_limit_are_not_stored(tmp_path: Path, decided) -> None:
     cache = _cache(tmp_path)
     undecided = replace(decided[TRUE.text], verdict="inconclusive", reason="time limit of 1 s exceeded")
     cache.store(TRUE, undecided)
-    assert not cache.entry_path(TRUE).exists()
+    assert not cache.entry_path(TRUE).exists() and not cache.entry_path(TRUE, inconclusive=True).exists()
+
+
+# x = 5 under x**2 + 1 = 0: the condition has no real point, so there is nothing to refute or prove
+OPEN = Claim(id="k.c:4:1", location=Location("k.c", 4, 1), kind="expression", text="x == 5 given x**2 + 1 == 0",
+             obligations=(Obligation(x, Num(Fraction(5)), (Condition("==", BinOp("+", square(x), Num(Fraction(1))),
+                                                                     Num(Fraction(0)), "x**2 + 1 == 0"),)),),
+             dependencies=("k.c",))
+
+
+def test_inconclusive_results_are_reused_only_when_they_fail_the_run(tmp_path: Path) -> None:
+    verdict = decide_guarded(OPEN, 10.0, 2048)
+    assert verdict.verdict == "inconclusive"
+    _cache(tmp_path).store(OPEN, verdict)
+    failing = ResultCache(tmp_path, version="1.0", dependency_text=TEXTS.get, reuse_inconclusive=True)
+    loaded = failing.load(OPEN)
+    assert loaded is not None and loaded.verdict == "inconclusive" and loaded.cached
+    warning = ResultCache(tmp_path, version="1.0", dependency_text=TEXTS.get, reuse_inconclusive=False)
+    assert warning.load(OPEN) is None
+    other_limits = ResultCache(tmp_path, version="1.0", dependency_text=TEXTS.get, reuse_inconclusive=True,
+                               limits=(60.0, 2048))
+    assert other_limits.load(OPEN) is None
+
+
+def test_a_forged_inconclusive_entry_cannot_pass_a_false_claim(tmp_path: Path, decided) -> None:
+    cache = ResultCache(tmp_path, version="1.0", dependency_text=TEXTS.get, reuse_inconclusive=True)
+    cache.store(FALSE, decided[FALSE.text])
+    document = _entry(cache, FALSE)
+    document["obligations"][0].update(verdict="inconclusive", witness=None, counter_normal_form=None)
+    path = cache.entry_path(FALSE, inconclusive=True)
+    path.parent.mkdir(parents=True, exist_ok=True)
+    document["key"] = path.stem
+    path.write_text(json.dumps(document), encoding="utf-8")
+    cache.entry_path(FALSE).unlink()
+    loaded = cache.load(FALSE)  # read back only because inconclusive fails the run anyway
+    assert loaded is not None and loaded.verdict == "inconclusive"
+    warning = ResultCache(tmp_path, version="1.0", dependency_text=TEXTS.get, reuse_inconclusive=False)
+    assert warning.load(FALSE) is None
 
 
 def test_a_warm_run_answers_from_the_cache(tmp_path: Path) -> None:

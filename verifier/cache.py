@@ -2,8 +2,11 @@
 
 An entry is a JSON file under ``<cache_dir>/v1/<2 hex>/<key>.json``; the key is the sha256 of the claim's
 canonical form (the ``repr`` of its obligations, which are frozen dataclasses), the text of every file it
-depends on, the named condition sets and the tool version.  Only decisive results are stored (``proved``
-and ``refuted``).
+depends on, the named condition sets and the tool version.  Decisive results (``proved``, ``refuted``)
+are stored under that key; ``inconclusive`` ones under a key that also covers the time and memory limits,
+and only when no limit was hit (a result of a busy machine must not stick).  An inconclusive entry cannot
+be re-checked, so it is read back only when inconclusive fails the run anyway (``on_inconclusive =
+"fail"``): a forged one can turn a failure into another failure, never into a pass.
 
 Nothing read back is trusted: the file may have been edited by hand or by an attacker.  It is parsed as
 JSON (never evaluated, never unpickled), checked field by field, and then
@@ -240,8 +243,14 @@ def _rechecked_refutation(claim: Claim, index: int, result: ObligationResult) ->
     return replace(result, witness=witness)
 
 
-def accept(claim: Claim, results: Sequence[ObligationResult], seconds: float) -> Verdict | None:
-    """The verdict rebuilt from results read back from the cache, or None if any check fails."""
+def accept(
+    claim: Claim, results: Sequence[ObligationResult], seconds: float, *, allow_inconclusive: bool = False
+) -> Verdict | None:
+    """The verdict rebuilt from results read back from the cache, or None if any check fails.
+
+    Every proof and every witness is re-checked; an ``inconclusive`` claim (which cannot be re-checked)
+    is accepted only when ``allow_inconclusive``, i.e. when inconclusive fails the run anyway.
+    """
     from verifier.algebra.decide import combine
 
     if claim.problem is not None or len(results) != len(claim.obligations) or not results:
@@ -262,12 +271,18 @@ def accept(claim: Claim, results: Sequence[ObligationResult], seconds: float) ->
             return None
         checked.append(result)
     verdict = combine(claim, tuple(checked), round(seconds, 3))
-    if verdict.verdict not in ("proved", "refuted"):
+    wanted = ("proved", "refuted", "inconclusive") if allow_inconclusive else ("proved", "refuted")
+    if verdict.verdict not in wanted:
         return None
     return replace(verdict, cached=True)
 
 
 # ---------------------------------------------------------------- the cache
+
+
+def _hit_a_limit(verdict: Verdict) -> bool:
+    texts = [verdict.reason] + [r.reason for r in verdict.obligations]
+    return any("time limit" in t or "memory limit" in t for t in texts)
 
 
 @dataclass
@@ -288,8 +303,12 @@ class ResultCache:
         version: str,
         conditions: Sequence[NamedConditionSet] = (),
         dependency_text: Callable[[str], str | None],
+        limits: tuple[float, int] = (10.0, 2048),
+        reuse_inconclusive: bool = False,
     ) -> None:
         self.directory = Path(directory)
+        self.limits = limits  # (timeout, memory_mb): part of the key of inconclusive entries
+        self.reuse_inconclusive = reuse_inconclusive
         self.version = version
         self.conditions = tuple(conditions)
         self.dependency_text = dependency_text
@@ -303,50 +322,69 @@ class ResultCache:
             )
         return self._keys[claim.id]
 
-    def entry_path(self, claim: Claim) -> Path:
+    def entry_path(self, claim: Claim, *, inconclusive: bool = False) -> Path:
         key = self.key(claim)
+        if inconclusive:
+            material = json.dumps([key, "inconclusive", float(self.limits[0]), int(self.limits[1])])
+            key = hashlib.sha256(material.encode("ascii")).hexdigest()
         return self.directory / f"v{FORMAT}" / key[:2] / f"{key}.json"
 
     def load(self, claim: Claim) -> Verdict | None:
         if claim.problem is not None or not claim.obligations:
             return None
+        kinds = (False, True) if self.reuse_inconclusive else (False,)
+        for inconclusive in kinds:
+            verdict = self._load(claim, inconclusive)
+            if verdict is not None:
+                self.stats.hits += 1
+                return verdict
+        self.stats.misses += 1
+        return None
+
+    def _load(self, claim: Claim, inconclusive: bool) -> Verdict | None:
         start = time.monotonic()
-        path = self.entry_path(claim)
+        path = self.entry_path(claim, inconclusive=inconclusive)
         try:
             raw = path.read_text(encoding="utf-8")
         except (OSError, UnicodeDecodeError):
-            self.stats.misses += 1
             return None
         verdict = None
         try:
             document = json.loads(raw)
             if not isinstance(document, dict) or document.get("format") != FORMAT:
                 raise Invalid("not a cache entry of this format")
-            if document.get("key") != self.key(claim):
+            if document.get("key") != path.stem:
                 raise Invalid("entry of another claim")
             results = tuple(result_from_json(r) for r in _list(document.get("obligations")))
-            verdict = accept(claim, results, time.monotonic() - start)
+            verdict = accept(claim, results, time.monotonic() - start, allow_inconclusive=inconclusive)
+            if verdict is not None and (verdict.verdict == "inconclusive") != inconclusive:
+                verdict = None
         except (Invalid, ValueError, TypeError, RecursionError):
             verdict = None
         if verdict is None:
             self.stats.rejected += 1
-            return None
-        self.stats.hits += 1
         return verdict
 
     def store(self, claim: Claim, verdict: Verdict) -> None:
-        if verdict.verdict not in ("proved", "refuted") or not verdict.obligations or verdict.cached:
+        if not verdict.obligations or verdict.cached:
+            return
+        if verdict.verdict == "inconclusive":
+            if _hit_a_limit(verdict):
+                return
+            path = self.entry_path(claim, inconclusive=True)
+        elif verdict.verdict in ("proved", "refuted"):
+            path = self.entry_path(claim)
+        else:
             return
         document = {
             "format": FORMAT,
-            "key": self.key(claim),
+            "key": path.stem,
             "tool_version": self.version,
             "claim": claim.id,
             "text": claim.text,
             "verdict": verdict.verdict,  # informative only: the verdict is recombined on reading
             "obligations": [result_to_json(r) for r in verdict.obligations],
         }
-        path = self.entry_path(claim)
         try:
             self._prepare()
             path.parent.mkdir(parents=True, exist_ok=True)

@@ -168,6 +168,7 @@ def run_check(args: argparse.Namespace) -> int:
         shard=args.shard,
         cache_dir=_cache_dir(args, config, cwd),
         options=options,
+        on_inconclusive=on_inconclusive,
     )
     from verifier.discover import DiscoveryError
 

@@ -412,6 +412,7 @@ class CheckRequest:
     shard: tuple[int, int] | None = None
     cache_dir: str | None = None  # None: no cache
     options: RunOptions = RunOptions()
+    on_inconclusive: str = "fail"  # cached inconclusive results are reused only when they fail the run
 
 
 def _relative(path: str, cwd: str) -> str:
@@ -495,6 +496,8 @@ def check(request: CheckRequest) -> list[Verdict]:
             version=__version__,
             conditions=tuple(getattr(request.config, "conditions", ()) or ()),
             dependency_text=dependency_text,
+            limits=(options.timeout, options.memory_mb),
+            reuse_inconclusive=request.on_inconclusive == "fail",
         )
         options = dataclasses.replace(options, cache=cache)
     return run(claims, options)
