@@ -99,3 +99,12 @@ def test_depends_on_matches_the_claim_file_and_its_dependencies() -> None:
     assert depends_on(claim, {"./geo/helpers.py"})
     assert depends_on(claim, {"geo/rot.py"})
     assert not depends_on(claim, {"geo/other.py"})
+
+
+def test_progress_line_on_stderr_when_asked(capsys: pytest.CaptureFixture[str]) -> None:
+    claims = [_claim("fine", line) for line in (1, 2, 3)]
+    run(claims, RunOptions(jobs=1, decider=MISBEHAVE, progress=True, progress_after=0.0))
+    err = capsys.readouterr().err
+    assert "\ridealcheck: 3/3 claims decided" in err and err.endswith("\r\x1b[K")
+    run(claims, RunOptions(jobs=1, decider=MISBEHAVE, progress=False))
+    assert capsys.readouterr().err == ""

@@ -43,7 +43,8 @@ class RunOptions:
     memory_mb: int = 2048  # address-space limit of each worker process
     jobs: int | None = None  # worker processes; None = number of cores
     cache: VerdictCache | None = field(default=None, compare=False)
-    progress: bool = False  # a progress line on stderr
+    progress: bool = False  # a progress line on stderr (the command line sets it when stderr is a terminal)
+    progress_after: float = 1.0  # seconds before the line appears: short runs stay quiet
     kill_grace: float = KILL_GRACE_SECONDS
     in_process: bool = False  # decide in this process, without limits (debugging and tests only)
     decider: str = DEFAULT_DECIDER  # "module:function" taking (claim, timeout) -> Verdict; tests swap it
@@ -283,25 +284,31 @@ def _died_reason(exitcode: int | None, memory_mb: int) -> str:
 
 
 class _Progress:
-    def __init__(self, total: int, stream: TextIO | None) -> None:
+    """``idealcheck: 12/40 claims decided`` rewritten in place on stderr, then erased."""
+
+    def __init__(self, total: int, stream: TextIO | None, after: float = 1.0) -> None:
         self.total = total
         self.stream = stream
         self.done = 0
+        self.start = time.monotonic()
+        self.after = after
         self.last = 0.0
+        self.shown = False
 
     def step(self, count: int = 1) -> None:
         self.done += count
         if self.stream is None:
             return
         now = time.monotonic()
-        if now - self.last < 0.1 and self.done < self.total:
+        if now - self.start < self.after or (now - self.last < 0.1 and self.done < self.total):
             return
         self.last = now
+        self.shown = True
         self.stream.write(f"\ridealcheck: {self.done}/{self.total} claims decided")
         self.stream.flush()
 
     def finish(self) -> None:
-        if self.stream is not None and self.total:
+        if self.stream is not None and self.shown:
             self.stream.write("\r\x1b[K")
             self.stream.flush()
 
@@ -371,7 +378,7 @@ def run(claims: Sequence[Claim], options: RunOptions = RunOptions()) -> list[Ver
     worker processes.  Decisive fresh results are stored in the cache.
     """
     stream = sys.stderr if options.progress else None
-    progress = _Progress(len(claims), stream)
+    progress = _Progress(len(claims), stream, options.progress_after)
     verdicts: dict[int, Verdict] = {}
     pending: list[tuple[int, Claim]] = []
     for index, claim in enumerate(claims):
