@@ -91,11 +91,12 @@ def test_exit_status_follows_the_verdicts(tree: Path, capsys: pytest.CaptureFixt
     out = capsys.readouterr().out
     assert "src/kernel.c:1:4: proved:" in out
     assert main(["check", "--jobs", "1"]) == 1
-    out = capsys.readouterr().out
+    captured = capsys.readouterr()
+    out = captured.out
     assert "src/wrong.c:2:4: refuted: (a+b)**2 == a**2 + b**2" in out
     assert "counter-normal-form" in out
     assert "2 claims: 1 proved, 1 refuted, 0 inconclusive, 0 error" in out
-    assert "claims decided" not in capsys.readouterr().err  # no progress line: stderr is not a terminal
+    assert "claims decided" not in captured.err  # no progress line: stderr is not a terminal
 
 
 def test_inconclusive_fails_unless_configured_to_warn(tree: Path, capsys: pytest.CaptureFixture[str]) -> None:
