@@ -26,8 +26,9 @@ from verifier.algebra.verdict import Verdict
 from verifier.claims.model import Claim, FileProblem, Problem
 
 # Seconds a worker may run past the claim's own time limit before it is killed: ``decide`` checks its
-# deadline itself and normally returns in time; the kill is for code that does not return.
-KILL_GRACE_SECONDS = 2.0
+# deadline itself and normally returns in time (with a more specific reason); the kill is for a single
+# long step (one huge expansion) that does not come back to a deadline check.
+KILL_GRACE_SECONDS = 0.25
 DEFAULT_DECIDER = "verifier.runner:decide_with_engine"
 
 
