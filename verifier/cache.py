@@ -293,8 +293,107 @@ class CacheStats:
     stored: int = 0
 
 
+@dataclass(frozen=True)
+class EntrySlot:
+    """Where a claim's results live, as plain data a worker process can receive."""
+
+    directory: str
+    decisive: str  # key of the proved/refuted entry
+    inconclusive: str  # key of the inconclusive entry (it also covers the limits)
+    reuse_inconclusive: bool
+    version: str
+
+    def path(self, *, inconclusive: bool = False) -> Path:
+        key = self.inconclusive if inconclusive else self.decisive
+        return Path(self.directory) / f"v{FORMAT}" / key[:2] / f"{key}.json"
+
+
+def _load_one(claim: Claim, slot: EntrySlot, inconclusive: bool) -> tuple[Verdict | None, bool]:
+    """(verdict, rejected): the re-checked verdict of one entry, and whether an entry was there but refused."""
+    start = time.monotonic()
+    path = slot.path(inconclusive=inconclusive)
+    try:
+        raw = path.read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError):
+        return None, False
+    try:
+        document = json.loads(raw)
+        if not isinstance(document, dict) or document.get("format") != FORMAT:
+            raise Invalid("not a cache entry of this format")
+        if document.get("key") != path.stem:
+            raise Invalid("entry of another claim")
+        results = tuple(result_from_json(r) for r in _list(document.get("obligations")))
+        verdict = accept(claim, results, time.monotonic() - start, allow_inconclusive=inconclusive)
+        if verdict is not None and (verdict.verdict == "inconclusive") != inconclusive:
+            verdict = None
+    except (Invalid, ValueError, TypeError, RecursionError):
+        verdict = None
+    return verdict, verdict is None
+
+
+def load_entry(claim: Claim, slot: EntrySlot, stats: CacheStats | None = None) -> Verdict | None:
+    """The cached verdict of ``claim`` after every check, or None (then the claim must be decided)."""
+    stats = stats if stats is not None else CacheStats()
+    if claim.problem is not None or not claim.obligations:
+        return None
+    for inconclusive in ((False, True) if slot.reuse_inconclusive else (False,)):
+        verdict, rejected = _load_one(claim, slot, inconclusive)
+        if rejected:
+            stats.rejected += 1
+        if verdict is not None:
+            stats.hits += 1
+            return verdict
+    stats.misses += 1
+    return None
+
+
+def store_entry(claim: Claim, verdict: Verdict, slot: EntrySlot) -> bool:
+    """Write a fresh verdict (atomically); False when there is nothing worth storing or the disk refuses."""
+    if not verdict.obligations or verdict.cached:
+        return False
+    if verdict.verdict == "inconclusive":
+        if _hit_a_limit(verdict):
+            return False
+        path = slot.path(inconclusive=True)
+    elif verdict.verdict in ("proved", "refuted"):
+        path = slot.path()
+    else:
+        return False
+    document = {
+        "format": FORMAT,
+        "key": path.stem,
+        "tool_version": slot.version,
+        "claim": claim.id,
+        "text": claim.text,
+        "verdict": verdict.verdict,  # informative only: the verdict is recombined on reading
+        "obligations": [result_to_json(r) for r in verdict.obligations],
+    }
+    try:
+        _prepare(Path(slot.directory))
+        path.parent.mkdir(parents=True, exist_ok=True)
+        handle, temporary = tempfile.mkstemp(dir=path.parent, prefix=".tmp-", suffix=".json")
+        with os.fdopen(handle, "w", encoding="utf-8") as out:
+            json.dump(document, out, ensure_ascii=False, indent=1)
+        os.replace(temporary, path)
+        return True
+    except OSError:
+        return False  # a read-only or full disk costs speed, never correctness
+
+
+def _prepare(directory: Path) -> None:
+    if (directory / "CACHEDIR.TAG").exists():
+        return
+    directory.mkdir(parents=True, exist_ok=True)
+    (directory / "CACHEDIR.TAG").write_text(CACHEDIR_TAG, encoding="utf-8")
+    (directory / ".gitignore").write_text("# written by idealcheck\n*\n", encoding="utf-8")
+
+
 class ResultCache:
-    """Results of decided claims on disk, re-checked on every read."""
+    """Results of decided claims on disk, re-checked on every read.
+
+    ``slot(claim)`` gives the plain-data location that worker processes use with ``load_entry`` and
+    ``store_entry``; ``load`` and ``store`` do the same in this process.
+    """
 
     def __init__(
         self,
@@ -322,83 +421,26 @@ class ResultCache:
             )
         return self._keys[claim.id]
 
-    def entry_path(self, claim: Claim, *, inconclusive: bool = False) -> Path:
+    def slot(self, claim: Claim) -> EntrySlot:
         key = self.key(claim)
-        if inconclusive:
-            material = json.dumps([key, "inconclusive", float(self.limits[0]), int(self.limits[1])])
-            key = hashlib.sha256(material.encode("ascii")).hexdigest()
-        return self.directory / f"v{FORMAT}" / key[:2] / f"{key}.json"
+        material = json.dumps([key, "inconclusive", float(self.limits[0]), int(self.limits[1])])
+        inconclusive = hashlib.sha256(material.encode("ascii")).hexdigest()
+        return EntrySlot(str(self.directory), key, inconclusive, self.reuse_inconclusive, self.version)
+
+    def entry_path(self, claim: Claim, *, inconclusive: bool = False) -> Path:
+        return self.slot(claim).path(inconclusive=inconclusive)
 
     def load(self, claim: Claim) -> Verdict | None:
-        if claim.problem is not None or not claim.obligations:
-            return None
-        kinds = (False, True) if self.reuse_inconclusive else (False,)
-        for inconclusive in kinds:
-            verdict = self._load(claim, inconclusive)
-            if verdict is not None:
-                self.stats.hits += 1
-                return verdict
-        self.stats.misses += 1
-        return None
-
-    def _load(self, claim: Claim, inconclusive: bool) -> Verdict | None:
-        start = time.monotonic()
-        path = self.entry_path(claim, inconclusive=inconclusive)
-        try:
-            raw = path.read_text(encoding="utf-8")
-        except (OSError, UnicodeDecodeError):
-            return None
-        verdict = None
-        try:
-            document = json.loads(raw)
-            if not isinstance(document, dict) or document.get("format") != FORMAT:
-                raise Invalid("not a cache entry of this format")
-            if document.get("key") != path.stem:
-                raise Invalid("entry of another claim")
-            results = tuple(result_from_json(r) for r in _list(document.get("obligations")))
-            verdict = accept(claim, results, time.monotonic() - start, allow_inconclusive=inconclusive)
-            if verdict is not None and (verdict.verdict == "inconclusive") != inconclusive:
-                verdict = None
-        except (Invalid, ValueError, TypeError, RecursionError):
-            verdict = None
-        if verdict is None:
-            self.stats.rejected += 1
-        return verdict
+        return load_entry(claim, self.slot(claim), self.stats)
 
     def store(self, claim: Claim, verdict: Verdict) -> None:
-        if not verdict.obligations or verdict.cached:
-            return
-        if verdict.verdict == "inconclusive":
-            if _hit_a_limit(verdict):
-                return
-            path = self.entry_path(claim, inconclusive=True)
-        elif verdict.verdict in ("proved", "refuted"):
-            path = self.entry_path(claim)
-        else:
-            return
-        document = {
-            "format": FORMAT,
-            "key": path.stem,
-            "tool_version": self.version,
-            "claim": claim.id,
-            "text": claim.text,
-            "verdict": verdict.verdict,  # informative only: the verdict is recombined on reading
-            "obligations": [result_to_json(r) for r in verdict.obligations],
-        }
-        try:
-            self._prepare()
-            path.parent.mkdir(parents=True, exist_ok=True)
-            handle, temporary = tempfile.mkstemp(dir=path.parent, prefix=".tmp-", suffix=".json")
-            with os.fdopen(handle, "w", encoding="utf-8") as out:
-                json.dump(document, out, ensure_ascii=False, indent=1)
-            os.replace(temporary, path)
+        if store_entry(claim, verdict, self.slot(claim)):
             self.stats.stored += 1
-        except OSError:
-            pass  # a read-only or full disk costs speed, never correctness
 
-    def _prepare(self) -> None:
-        if (self.directory / "CACHEDIR.TAG").exists():
-            return
-        self.directory.mkdir(parents=True, exist_ok=True)
-        (self.directory / "CACHEDIR.TAG").write_text(CACHEDIR_TAG, encoding="utf-8")
-        (self.directory / ".gitignore").write_text("# written by idealcheck\n*\n", encoding="utf-8")
+    def record(self, verdict: Verdict, *, stored: bool) -> None:
+        """Count what a worker process did with this cache's entries."""
+        if verdict.cached:
+            self.stats.hits += 1
+        else:
+            self.stats.misses += 1
+            self.stats.stored += int(stored)

@@ -33,9 +33,12 @@ DEFAULT_DECIDER = "verifier.runner:decide_with_engine"
 
 
 class VerdictCache(Protocol):
-    def load(self, claim: Claim) -> Verdict | None: ...
+    """What the runner needs of a cache (``cache.ResultCache``): a plain-data slot per claim that the
+    worker reads (re-checking every proof and witness) before deciding and writes after."""
 
-    def store(self, claim: Claim, verdict: Verdict) -> None: ...
+    def slot(self, claim: Claim) -> Any: ...
+
+    def record(self, verdict: Verdict, *, stored: bool) -> None: ...
 
 
 @dataclass(frozen=True)
@@ -198,6 +201,33 @@ def decide_guarded(claim: Claim, timeout: float, memory_mb: int, decider: str = 
         return Verdict(claim, "error", None, reason, None, None, (), round(time.monotonic() - start, 3))
 
 
+def cached_or_decided(claim: Claim, slot: Any, timeout: float, memory_mb: int,
+                      decider: str = DEFAULT_DECIDER) -> tuple[Verdict, bool]:
+    """(verdict, stored): the re-checked cached verdict if there is one, else a fresh decision (then stored)."""
+    if slot is not None:
+        from verifier.cache import load_entry
+
+        start = time.monotonic()
+        try:
+            cached = load_entry(claim, slot)
+        except MemoryError:
+            return limit_verdict(claim, memory_limit_reason(memory_mb), time.monotonic() - start), False
+        except Exception:  # a cache that cannot be read is a miss, never a failure
+            cached = None
+        if cached is not None:
+            return cached, False
+    verdict = decide_guarded(claim, timeout, memory_mb, decider)
+    stored = False
+    if slot is not None:
+        from verifier.cache import store_entry
+
+        try:
+            stored = store_entry(claim, verdict, slot)
+        except Exception:
+            stored = False
+    return verdict, stored
+
+
 def _worker_main(conn: Connection, timeout: float, memory_mb: int, decider: str) -> None:
     _limit_memory(memory_mb)
     while True:
@@ -207,12 +237,12 @@ def _worker_main(conn: Connection, timeout: float, memory_mb: int, decider: str)
             return
         if task is None:
             return
-        index, claim = task
-        verdict = decide_guarded(claim, timeout, memory_mb, decider)
+        index, claim, slot = task
+        verdict, stored = cached_or_decided(claim, slot, timeout, memory_mb, decider)
         try:
-            conn.send((index, verdict))
+            conn.send((index, verdict, stored))
         except MemoryError:
-            conn.send((index, limit_verdict(claim, memory_limit_reason(memory_mb), verdict.seconds)))
+            conn.send((index, limit_verdict(claim, memory_limit_reason(memory_mb), verdict.seconds), False))
 
 
 # ---------------------------------------------------------------- parent side
@@ -231,7 +261,7 @@ def _context() -> multiprocessing.context.BaseContext:
 class _Worker:
     process: Any
     conn: Connection
-    task: tuple[int, Claim] | None = None
+    task: tuple[int, Claim, Any] | None = None
     started: float = 0.0
 
 
@@ -314,13 +344,16 @@ class _Progress:
             self.stream.flush()
 
 
-def _decide_all(pending: list[tuple[int, Claim]], options: RunOptions, progress: _Progress) -> dict[int, Verdict]:
-    results: dict[int, Verdict] = {}
+def _decide_all(
+    pending: list[tuple[int, Claim, Any]], options: RunOptions, progress: _Progress
+) -> dict[int, tuple[Verdict, bool]]:
+    """index -> (verdict, stored in the cache) for every pending claim."""
+    results: dict[int, tuple[Verdict, bool]] = {}
     if not pending:
         return results
     if options.in_process:
-        for index, claim in pending:
-            results[index] = decide_guarded(claim, options.timeout, options.memory_mb, options.decider)
+        for index, claim, slot in pending:
+            results[index] = cached_or_decided(claim, slot, options.timeout, options.memory_mb, options.decider)
             progress.step()
         return results
     size = max(1, min(options.jobs or os.cpu_count() or 1, len(pending)))
@@ -343,23 +376,24 @@ def _decide_all(pending: list[tuple[int, Claim]], options: RunOptions, progress:
             now = time.monotonic()
             for worker in list(busy):
                 assert worker.task is not None
-                index, claim = worker.task
+                index, claim, _slot = worker.task
                 if worker.conn in ready:
                     try:
-                        got_index, verdict = worker.conn.recv()
-                    except (EOFError, OSError):
-                        got_index, verdict = None, None
+                        got_index, verdict, stored = worker.conn.recv()
+                    except (EOFError, OSError, ValueError, TypeError):
+                        got_index, verdict, stored = None, None, False
                     if got_index == index and isinstance(verdict, Verdict):
-                        results[index] = verdict
+                        results[index] = (verdict, bool(stored))
                         worker.task = None
                         progress.step()
                         continue
                 if worker.process.sentinel in ready or worker.conn in ready or not worker.process.is_alive():
                     worker.process.join(timeout=5)
                     reason = _died_reason(worker.process.exitcode, options.memory_mb)
-                    results[index] = limit_verdict(claim, reason, now - worker.started)
+                    results[index] = (limit_verdict(claim, reason, now - worker.started), False)
                 elif now - worker.started >= limit:
-                    results[index] = limit_verdict(claim, time_limit_reason(options.timeout), now - worker.started)
+                    timed_out = limit_verdict(claim, time_limit_reason(options.timeout), now - worker.started)
+                    results[index] = (timed_out, False)
                 else:
                     continue
                 worker.task = None
@@ -375,33 +409,29 @@ def _decide_all(pending: list[tuple[int, Claim]], options: RunOptions, progress:
 def run(claims: Sequence[Claim], options: RunOptions = RunOptions()) -> list[Verdict]:
     """Decide ``claims`` and return one verdict per claim, in the order given.
 
-    Claims that carry a problem are answered directly; the cache (if any) is asked next; the rest go to
-    worker processes.  Decisive fresh results are stored in the cache.
+    Claims that carry a problem are answered directly; the others go to worker processes, which first
+    read the cache (re-checking what they read, so that this work is spread over the cores too) and
+    otherwise decide the claim and store the result.
     """
     stream = sys.stderr if options.progress else None
     progress = _Progress(len(claims), stream, options.progress_after)
     verdicts: dict[int, Verdict] = {}
-    pending: list[tuple[int, Claim]] = []
+    pending: list[tuple[int, Claim, Any]] = []
     for index, claim in enumerate(claims):
         if claim.problem is not None:
             verdicts[index] = problem_verdict(claim)
             progress.step()
             continue
-        if options.cache is not None:
-            cached = options.cache.load(claim)
-            if cached is not None:
-                verdicts[index] = cached
-                progress.step()
-                continue
-        pending.append((index, claim))
+        slot = options.cache.slot(claim) if options.cache is not None else None
+        pending.append((index, claim, slot))
     try:
-        fresh = _decide_all(pending, options, progress)
+        done = _decide_all(pending, options, progress)
     finally:
         progress.finish()
-    for index, verdict in fresh.items():
+    for index, (verdict, stored) in done.items():
         verdicts[index] = verdict
         if options.cache is not None:
-            options.cache.store(claims[index], verdict)
+            options.cache.record(verdict, stored=stored)
     return [verdicts[i] for i in range(len(claims))]
 
 
