@@ -228,6 +228,47 @@ def test_staged_checks_the_index(tree: Path, capsys: pytest.CaptureFixture[str])
     assert [(c["path"], c["verdict"]) for c in report["claims"]] == [("src/kernel.c", "refuted")]
 
 
+def test_staged_outside_a_git_repository_is_a_usage_error(tree: Path, capsys: pytest.CaptureFixture[str],
+                                                           monkeypatch: pytest.MonkeyPatch) -> None:
+    monkeypatch.setenv("GIT_CEILING_DIRECTORIES", str(tree.parent))
+    assert main(["check", "--staged"]) == 2
+    assert "git" in capsys.readouterr().err
+
+
 def test_a_file_argument_selects_the_claims_of_that_file(tree: Path, capsys: pytest.CaptureFixture[str]) -> None:
     status, report = _json(capsys, "src/wrong.c")
     assert status == 1 and [c["path"] for c in report["claims"]] == ["src/wrong.c"]
+
+
+HELPER = "def norm2(x, y):\n    return x*x + y*y\n"
+USER = "from geo.helpers import norm2\n\n\n# idealcheck: returns x**2 + y**2\ndef length2(x, y):\n    return norm2(x, y)\n"
+
+
+@pytest.fixture()
+def python_tree(tree: Path) -> Path:
+    (tree / "geo").mkdir()
+    (tree / "geo" / "helpers.py").write_text(HELPER)
+    (tree / "geo" / "use.py").write_text(USER)
+    return tree
+
+
+def test_a_file_argument_selects_the_claims_that_depend_on_it(python_tree: Path,
+                                                              capsys: pytest.CaptureFixture[str]) -> None:
+    # what a hook does with pass_filenames: the changed helper re-checks the claim that inlines it
+    status, report = _json(capsys, "geo/helpers.py")
+    assert status == 0
+    assert [(c["path"], c["verdict"]) for c in report["claims"]] == [("geo/use.py", "proved")]
+
+
+def test_a_changed_helper_re_checks_every_claim_using_it(python_tree: Path,
+                                                         capsys: pytest.CaptureFixture[str]) -> None:
+    _git(python_tree, "init", "-q", "-b", "main")
+    _git(python_tree, "add", ".")
+    _git(python_tree, "commit", "-q", "-m", "first")
+    (python_tree / "geo" / "helpers.py").write_text(HELPER.replace("y*y", "y*x"))  # a wrong rewrite
+    status, report = _json(capsys, "--since", "HEAD")
+    assert status == 1
+    assert [(c["path"], c["verdict"]) for c in report["claims"]] == [("geo/use.py", "refuted")]
+    _git(python_tree, "add", "geo/helpers.py")
+    status, report = _json(capsys, "--staged")
+    assert [(c["path"], c["verdict"]) for c in report["claims"]] == [("geo/use.py", "refuted")]
