@@ -367,7 +367,10 @@ def _decide_all(
                 if worker.task is None and queue:
                     worker.task = queue.pop()
                     worker.started = time.monotonic()
-                    worker.conn.send(worker.task)
+                    try:
+                        worker.conn.send(worker.task)
+                    except OSError:  # the worker died before taking work: its sentinel reports it below
+                        pass
             busy = [w for w in pool.workers if w.task is not None]
             now = time.monotonic()
             limit = options.timeout + options.kill_grace
