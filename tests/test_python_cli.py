@@ -50,7 +50,9 @@ EXPECTED: list[tuple[str, str, str]] = [
     ("mixer.py", "def lens_power_wrong", "refuted"),
     ("mixer.py", "def normalized", "proved"),
     ("mixer.py", "back = thrust - front", "proved"),
-    ("mixer.py", "def clipped_difference", "inconclusive"),  # needs sign reasoning (a > b against a <= b)
+    # (a + b)(a - b) = a^2 - b^2 (common practice); the a <= b path contradicts `given a > b`, which takes
+    # sign reasoning (the decision procedure's sign argument)
+    ("mixer.py", "def clipped_difference", "proved"),
     # Quaternion rotation: q (0, v) q* equals R(q) v for |q| = 1 (Shoemake, "Animating rotation with
     # quaternion curves", SIGGRAPH 1985; the matrix from memory), and v + 2w(u x v) + 2u x (u x v)
     # (common practice); without |q| = 1 the sandwich product also scales by |q|^2.
