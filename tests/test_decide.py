@@ -294,3 +294,10 @@ def test_sign_argument_generalizations(text):
 def test_sign_argument_generalizations_keep_false_claims_false():
     assert_refuted("sqrt(x**2 + 2*x + 1) == x + 1 given x >= -3")
     assert_refuted("s == 2*t/(1 + t**2) given s**2 + c**2 == 1, c == (1 - t**2)/(1 + t**2), s < 0, t > 0")
+
+
+def test_refutation_names_the_missing_term():
+    # (a + b)**2 == a**2 + b**2 is the classic dropped cross term (common practice)
+    v = verdict_of("(a + b)**2 == a**2 + b**2")
+    assert v.verdict == "refuted"
+    assert "right side lacks 2*a*b" in v.reason, v.reason

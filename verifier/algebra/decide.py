@@ -17,6 +17,7 @@ from dataclasses import dataclass
 from typing import Sequence
 
 from verifier.algebra.certificate import make_certificate, poly_to_data
+from verifier.algebra.describe import describe_translation
 from verifier.algebra.groebner import GroebnerTimeout, groebner_basis, membership_cofactors, reduce
 from verifier.algebra.sign import (
     certificate_is_valid,
@@ -107,8 +108,8 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
         # false as rational functions: look for a witness first, then the counter-normal-form if affordable
         witness = find_witness(ob.left, ob.right, ob.conditions, deadline=deadline, seed=seed)
         if witness is not None:
-            cnf, assumed = _normal_form_text(ob, deadline)
-            return ObligationResult(label, "refuted", None, _refuted_reason(notes), cnf, witness, assumed)
+            cnf, assumed, plain = _normal_form_text(ob, deadline)
+            return ObligationResult(label, "refuted", None, _refuted_reason(notes, plain), cnf, witness, assumed)
     _check_time(deadline)
     tr = translate(ob)
     _check_time(deadline)
@@ -157,7 +158,8 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
     cnf = tr.printed(normal_form)
     witness = find_witness(ob.left, ob.right, ob.conditions, deadline=deadline, seed=seed)
     if witness is not None:
-        return ObligationResult(label, "refuted", None, _refuted_reason(notes), cnf, witness, tr.assumed)
+        plain = _describe(tr, basis_result.basis if basis_result is not None else (), deadline)
+        return ObligationResult(label, "refuted", None, _refuted_reason(notes, plain), cnf, witness, tr.assumed)
     reason = ("the counter-normal-form is not zero, but no real point where every condition holds and the "
               "sides differ was found")
     if _has_opaque(tr):
@@ -169,26 +171,35 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
     return ObligationResult(label, "inconclusive", None, reason, cnf, None, tr.assumed)
 
 
-def _refuted_reason(notes: Sequence[str]) -> str:
+def _refuted_reason(notes: Sequence[str], plain: str | None = None) -> str:
     reason = "the sides differ at the witness, where every condition holds"
+    if plain:
+        reason += f"; {plain}"
     if notes:
         reason += " (" + "; ".join(notes) + ")"
     return reason
 
 
-def _normal_form_text(ob: Obligation, deadline: float) -> tuple[str, tuple[str, ...]]:
-    """The counter-normal-form for a claim already known to be false, within what time is left."""
+def _describe(tr: Translation, basis: Sequence, deadline: float) -> str | None:
+    """The remaining difference in plain terms, when it is small (``describe.py``); None otherwise."""
+    try:
+        return describe_translation(tr, basis, deadline=deadline)
+    except (GroebnerTimeout, _OutOfTime, RecursionError):
+        return None
+
+
+def _normal_form_text(ob: Obligation, deadline: float) -> tuple[str, tuple[str, ...], str | None]:
+    """The counter-normal-form (and its plain description) for a claim already known to be false, within
+    what time is left."""
     try:
         tr = translate(ob)
         generators = [g.poly for g in tr.generators]
-        if not generators:
-            return tr.printed(tr.difference), tr.assumed
-        basis = groebner_basis(generators, track_cofactors=False, deadline=deadline).basis
-        _, normal_form = reduce(tr.difference, basis, deadline=deadline)
-        return tr.printed(normal_form), tr.assumed
+        basis = groebner_basis(generators, track_cofactors=False, deadline=deadline).basis if generators else ()
+        _, normal_form = reduce(tr.difference, basis, deadline=deadline) if basis else ((), tr.difference)
+        return tr.printed(normal_form), tr.assumed, _describe(tr, basis, deadline)
     except (TranslationError, GroebnerTimeout, _OutOfTime, RecursionError):
         return ("(not computed within the time limit; the sides differ as rational functions, "
-                "checked at random points modulo a prime)"), ()
+                "checked at random points modulo a prime)"), (), None
 
 
 def _is_unit_ideal(basis: Sequence) -> bool:
