@@ -108,6 +108,9 @@ def test_gauss_complex_product_three_multiplications():
     "tan(a + b) == (tan(a) + tan(b))/(1 - tan(a)*tan(b))",
     "sin(a)*sin(b) == (cos(a - b) - cos(a + b))/2",
     "cos(5*t) == 16*cos(t)**5 - 20*cos(t)**3 + 5*cos(t)",  # Chebyshev T5, A&S table 22.3 (from memory)
+    # tangent of a sum of three angles (common practice; follows from A&S 4.3.18 applied twice)
+    "tan(a + b + c) == (tan(a) + tan(b) + tan(c) - tan(a)*tan(b)*tan(c))/"
+    "(1 - tan(a)*tan(b) - tan(b)*tan(c) - tan(a)*tan(c))",
 ])
 def test_handbook_trigonometric_identities(text):
     assert_proved(text)

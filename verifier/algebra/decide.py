@@ -17,6 +17,7 @@ from dataclasses import dataclass
 from typing import Sequence
 
 from verifier.algebra.certificate import make_certificate, poly_to_data
+from verifier.algebra.clearing import cleared_membership
 from verifier.algebra.describe import describe_translation
 from verifier.algebra.groebner import GroebnerTimeout, groebner_basis, membership_cofactors, reduce
 from verifier.algebra.sign import (
@@ -118,6 +119,10 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
     if not f:
         return _proved(tr, label, "expansion", 1, tuple(tr.ring.zero for _ in generators),
                        "both sides expand to the same polynomial")
+    cleared = cleared_membership(tr, deadline=deadline)
+    if cleared is not None:
+        method = _method_of(tr, cleared)
+        return _proved(tr, label, method, 1, cleared, _proved_reason(method, tr))
     basis_result = groebner_basis(generators, deadline=deadline) if generators else None
     if basis_result is not None and _is_unit_ideal(basis_result.basis):
         # the conditions have no common (complex, hence real) point: the claim holds vacuously

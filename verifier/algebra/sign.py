@@ -19,6 +19,7 @@ from typing import Sequence
 
 from sympy.polys.rings import PolyElement
 
+from verifier.algebra.clearing import inverse_pairs
 from verifier.algebra.certificate import check_certificate, data_to_poly, make_certificate, poly_to_data
 from verifier.algebra.groebner import GroebnerResult, membership_cofactors, reduce
 from verifier.algebra.translate import Translation
@@ -36,16 +37,7 @@ def nonnegative_symbols(tr: Translation) -> tuple[str, ...]:
         if var is not None and bound is not None and bound >= 0 and relation in (">", ">="):
             names.add(var)
     symbols = [str(x) for x in tr.ring.symbols]
-    inverses = []
-    for gen in tr.generators:
-        if gen.kind != "inverse":
-            continue
-        for index, name in enumerate(symbols):
-            if name.startswith("$d") and gen.poly.degree(index) == 1:
-                quotient, remainder = (gen.poly + 1).div([tr.ring.gens[index]])
-                if not remainder and quotient[0].degree(index) == 0:
-                    inverses.append((name, quotient[0]))
-                break
+    inverses = [(symbols[index], u) for _, index, u in inverse_pairs(tr)]
     changed = True
     while changed:  # an inverse of an inverse of something >= 0 is >= 0 too
         changed = False
@@ -114,13 +106,11 @@ def _root_candidates(tr: Translation, positive: Sequence[str]):
     symbols = [str(x) for x in tr.ring.symbols]
     radicands: dict[int, PolyElement] = {}
     for gen in tr.generators:
-        if gen.kind != "radical":
-            continue
-        for index, name in enumerate(symbols):
-            if name.startswith("$r") and gen.poly.degree(index) == 2:
-                radicand = tr.ring.gens[index] ** 2 - gen.poly
-                if radicand.degree(index) <= 0:
-                    radicands[index] = radicand
+        if gen.kind == "radical" and gen.variable in symbols:
+            index = symbols.index(gen.variable)
+            radicand = tr.ring.gens[index] ** 2 - gen.poly
+            if radicand.degree(index) <= 0:
+                radicands[index] = radicand
     for name in positive:
         index = symbols.index(name)
         if f.degree(index) <= 0:

@@ -57,6 +57,7 @@ class Generator:
     poly: PolyElement
     kind: GeneratorKind
     meaning: str  # e.g. "x*y - 1 == 0", "(x - y) != 0"
+    variable: str = ""  # the auxiliary variable it defines: d of d*u - 1, r of r**2 - u
 
 
 @dataclass(frozen=True)
@@ -161,7 +162,7 @@ class _Translator:
         self.variables = list(variables)
         self.ring = PolyRing([Symbol(n) for n in self.variables] or [Symbol("$one")], QQ, grevlex)
         self.aux: list[AuxVariable] = []
-        self.generators: list[tuple[PolyElement, GeneratorKind, str]] = []
+        self.generators: list[tuple[PolyElement, GeneratorKind, str, str]] = []
         self.assumed: list[str] = []
         self._atoms: dict[tuple, str] = {}  # canonical key -> aux variable name
         self._inverse_of: dict[str, PolyElement] = {}  # inverse variable -> the factor it inverts
@@ -193,8 +194,8 @@ class _Translator:
     def printed(self, p: PolyElement) -> str:
         return format_poly(p, {a.name: a.meaning for a in self.aux})
 
-    def add_generator(self, poly: PolyElement, kind: GeneratorKind, meaning: str) -> None:
-        self.generators.append((poly, kind, meaning))
+    def add_generator(self, poly: PolyElement, kind: GeneratorKind, meaning: str, variable: str = "") -> None:
+        self.generators.append((poly, kind, meaning, variable))
 
     # -- expressions
 
@@ -307,7 +308,7 @@ class _Translator:
         self._atoms[key] = name
         self._inverse_of[name] = factor
         d = self.gen(name)
-        self.add_generator(d * self.lift(factor) - 1, "inverse", f"{shown} != 0")
+        self.add_generator(d * self.lift(factor) - 1, "inverse", f"{shown} != 0", name)
         self.assumed.append(f"{shown} != 0")
         return d
 
@@ -334,7 +335,7 @@ class _Translator:
         name = self._new_symbol("r", f"sqrt({shown})", "radical")
         self._atoms[key] = name
         r = self.gen(name)
-        self.add_generator(r**2 - self.lift(u), "radical", f"sqrt({shown})**2 == {shown}")
+        self.add_generator(r**2 - self.lift(u), "radical", f"sqrt({shown})**2 == {shown}", name)
         if not u.is_ground:
             self.assumed.append(f"{shown} >= 0 (square root)")
         return r
@@ -597,7 +598,7 @@ def translate(obligation: Obligation) -> Translation:
     assumed = list(dict.fromkeys(t.assumed))
     for cond in obligation.conditions:
         assumed.append(f"{cond.text}" + ("" if cond.origin == "given" else f" [{cond.origin}]"))
-    generators = tuple(Generator(conv(p), kind, meaning) for p, kind, meaning in t.generators)
+    generators = tuple(Generator(conv(p), kind, meaning, variable) for p, kind, meaning, variable in t.generators)
     l, r = conv(left), conv(right)
     return Translation(
         ring=ring,
