@@ -53,7 +53,6 @@ class AuditPlan:
 class AuditResult:
     plan: AuditPlan
     verdicts: tuple[Verdict, ...]  # one per plan.functions, in order, then one per plan.unreadable
-    differences: tuple[tuple[str, str], ...] = ()  # (claim id, the remaining difference in plain terms)
 
     def function_verdicts(self) -> list[tuple[AuditedFunction, Verdict]]:
         return list(zip(self.plan.functions, self.verdicts))
@@ -181,33 +180,4 @@ def run_audit(plan: AuditPlan, options) -> AuditResult:
 
     claims = [f.claim for f in plan.functions] + list(plan.unreadable)
     verdicts = run(claims, options)
-    differences = []
-    for verdict in verdicts:
-        if verdict.verdict == "refuted":
-            text = plain_difference(verdict, timeout=getattr(options, "timeout", 10.0))
-            if text is not None:
-                differences.append((verdict.claim.id, text))
-    return AuditResult(plan, tuple(verdicts), tuple(differences))
-
-
-def plain_difference(verdict: Verdict, *, timeout: float = 10.0) -> str | None:
-    """The refuted obligation's remaining difference in plain terms, when it is small (else None)."""
-    import time
-
-    from verifier.algebra.describe import describe_translation
-    from verifier.algebra.groebner import GroebnerTimeout, groebner_basis
-    from verifier.algebra.translate import TranslationError, translate
-
-    refuted = [r for r in verdict.obligations if r.verdict == "refuted"]
-    label = refuted[0].label if refuted else ""
-    obligation = next((ob for ob in verdict.claim.obligations if ob.label == label), None)
-    if obligation is None:
-        return None
-    deadline = time.monotonic() + timeout
-    try:
-        tr = translate(obligation)
-        generators = [g.poly for g in tr.generators]
-        basis = groebner_basis(generators, track_cofactors=False, deadline=deadline).basis if generators else ()
-        return describe_translation(tr, basis, deadline=deadline)
-    except (TranslationError, GroebnerTimeout, RecursionError):
-        return None
+    return AuditResult(plan, tuple(verdicts))

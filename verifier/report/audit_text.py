@@ -63,12 +63,9 @@ def render_audit_text(result: AuditResult) -> str:
     details = [v for v in result.verdicts if v.verdict != "proved"]
     if details:
         lines.append("")
-        lines.append("details:")
-        differences = dict(result.differences)
+        lines.append("details (left side: the optimized version, right side: the reference):")
         for verdict in details:
             lines.extend(verdict_lines(verdict))
-            if verdict.claim.id in differences:
-                lines.append(f"    in plain terms (left: optimized, right: reference): {differences[verdict.claim.id]}")
     one_sided = _one_sided(plan.only_optimized, plan.optimized) + _one_sided(plan.only_reference, plan.reference)
     if one_sided:
         lines.append("")
