@@ -29,12 +29,19 @@ from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Any
 
-from verifier.algebra.verdict import Certificate, ObligationResult, Verdict, Witness
+from verifier.algebra.verdict import (
+    Certificate,
+    ObligationResult,
+    SignArgument,
+    SignContradiction,
+    Verdict,
+    Witness,
+)
 from verifier.claims.model import Claim, NamedConditionSet
 
 FORMAT = 1
 _VERDICTS = ("proved", "refuted", "inconclusive", "error")
-_METHODS = (None, "expansion", "ideal", "saturation", "radical")
+_METHODS = (None, "expansion", "ideal", "saturation", "radical", "sign")
 CACHEDIR_TAG = "Signature: 8a477f597d28d172789f06886806bc55\n# idealcheck result cache; safe to delete.\n"
 
 
@@ -84,13 +91,34 @@ def _poly_to_json(poly: Any) -> list:
 
 
 def _certificate_to_json(cert: Certificate) -> dict[str, Any]:
-    return {
+    data: dict[str, Any] = {
         "symbols": list(cert.symbols),
         "target": _poly_to_json(cert.target),
         "power": cert.power,
         "generators": [_poly_to_json(g) for g in cert.generators],
         "cofactors": [_poly_to_json(c) for c in cert.cofactors],
     }
+    if cert.sign is not None:
+        arg = cert.sign
+        data["sign"] = {
+            "root": arg.root,
+            "multiplier": _poly_to_json(arg.multiplier),
+            "nonnegative": _poly_to_json(arg.nonnegative),
+            "nonnegative_cofactors": [_poly_to_json(c) for c in arg.nonnegative_cofactors],
+            "nonnegative_symbols": list(arg.nonnegative_symbols),
+            "hypotheses": [[_poly_to_json(h), lam] for h, lam in arg.hypotheses],
+        }
+    if cert.contradiction is not None:
+        con = cert.contradiction
+        data["contradiction"] = {
+            "first": _poly_to_json(con.first),
+            "first_strict": con.first_strict,
+            "second": _poly_to_json(con.second),
+            "second_strict": con.second_strict,
+            "ratio": con.ratio,
+            "constant": con.constant,
+        }
+    return data
 
 
 def _witness_to_json(witness: Witness | None) -> dict[str, Any] | None:
@@ -168,7 +196,50 @@ def _certificate_from_json(value: Any) -> Certificate | None:
     cofactors = tuple(_poly_from_json(c, width) for c in _list(value.get("cofactors")))
     if len(generators) != len(cofactors):
         raise Invalid("one cofactor per generator")
-    return Certificate(symbols, _poly_from_json(value.get("target"), width), power, generators, cofactors)
+    return Certificate(symbols, _poly_from_json(value.get("target"), width), power, generators, cofactors,
+                       _sign_from_json(value.get("sign"), width), _contradiction_from_json(value.get("contradiction"), width))
+
+
+def _bool(value: Any) -> bool:
+    if not isinstance(value, bool):
+        raise Invalid("expected a boolean")
+    return value
+
+
+def _sign_from_json(value: Any, width: int) -> SignArgument | None:
+    if value is None:
+        return None
+    if not isinstance(value, dict):
+        raise Invalid("sign must be an object")
+    hypotheses = []
+    for item in _list(value.get("hypotheses", [])):
+        pair = _list(item)
+        if len(pair) != 2:
+            raise Invalid("a sign hypothesis is [polynomial, weight]")
+        hypotheses.append((_poly_from_json(pair[0], width), _str(pair[1])))
+    return SignArgument(
+        root=_str(value.get("root")),
+        multiplier=_poly_from_json(value.get("multiplier"), width),
+        nonnegative=_poly_from_json(value.get("nonnegative"), width),
+        nonnegative_cofactors=tuple(_poly_from_json(c, width) for c in _list(value.get("nonnegative_cofactors"))),
+        nonnegative_symbols=tuple(_str(s) for s in _list(value.get("nonnegative_symbols"))),
+        hypotheses=tuple(hypotheses),
+    )
+
+
+def _contradiction_from_json(value: Any, width: int) -> SignContradiction | None:
+    if value is None:
+        return None
+    if not isinstance(value, dict):
+        raise Invalid("contradiction must be an object")
+    return SignContradiction(
+        first=_poly_from_json(value.get("first"), width),
+        first_strict=_bool(value.get("first_strict")),
+        second=_poly_from_json(value.get("second"), width),
+        second_strict=_bool(value.get("second_strict")),
+        ratio=_str(value.get("ratio")),
+        constant=_str(value.get("constant")),
+    )
 
 
 def _witness_from_json(value: Any) -> Witness | None:
