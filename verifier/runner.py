@@ -514,8 +514,23 @@ def gather_claims(request: CheckRequest) -> tuple[list[Claim], dict[str, str]]:
     return claims, texts
 
 
+def warm_up_workers(options: RunOptions) -> None:
+    """Start the process that forks the workers now, so that its imports overlap with reading the claims."""
+    if options.in_process:
+        return
+    ctx = _context()
+    if ctx.get_start_method() == "forkserver":
+        from multiprocessing import forkserver
+
+        try:
+            forkserver.ensure_running()
+        except (OSError, ValueError):  # the workers will start it themselves (or report why not)
+            pass
+
+
 def check(request: CheckRequest) -> list[Verdict]:
     """Run a whole check and return the verdicts (in the order the claims were found)."""
+    warm_up_workers(request.options)
     claims, texts = gather_claims(request)
     options = request.options
     if request.cache_dir is not None:
