@@ -207,3 +207,14 @@ def test_explain_obligation_reports_an_unrepresentable_claim():
     ob = Obligation(Pow(Var("x"), Fraction(1, 3)), Var("x"))
     item = explain_obligation(ob, None)
     assert item.problem is not None and "cannot be represented" in item.problem
+
+
+def test_a_sign_argument_certificate_shows_its_multiplier(tmp_path, capsys, monkeypatch):
+    # sqrt(x**2) = |x| = x for x >= 0 (principal square root, common practice)
+    (tmp_path / "s.py").write_text("# idealcheck: sqrt(x**2) == x given x >= 0\n")
+    monkeypatch.chdir(tmp_path)
+    assert main(["explain", "s.py:1"]) == 0
+    out = capsys.readouterr().out
+    assert "verdict: proved (sign)" in out
+    assert "certificate: (LEFT - RIGHT) * ($r1 + x) = sum of cofactor * generator:" in out
+    assert "sign argument:" in out
