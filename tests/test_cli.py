@@ -122,6 +122,19 @@ def test_output_file_gets_the_format_and_stdout_the_text(tree: Path, capsys: pyt
     assert sarif["version"] == "2.1.0" and len(sarif["runs"][0]["results"]) == 1
 
 
+def test_github_and_junit_formats_end_to_end(tree: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    import xml.etree.ElementTree as ET
+
+    assert main(["check", "--jobs", "1", "--format", "github"]) == 1
+    lines = capsys.readouterr().out.splitlines()
+    errors = [line for line in lines if line.startswith("::error ")]
+    assert len(errors) == 1 and errors[0].startswith("::error file=src/wrong.c,line=2,col=4,title=")
+    assert main(["check", "--jobs", "1", "--format", "junit", "--output", "report.xml"]) == 1
+    suite = ET.parse(tree / "report.xml").getroot().find("testsuite")
+    cases = suite.findall("testcase")
+    assert len(cases) == 2 and sum(c.find("failure") is not None for c in cases) == 1
+
+
 def test_python_dash_m_runs_the_command(tree: Path) -> None:
     result = subprocess.run([sys.executable, "-m", "verifier", "check", "--format", "json", "--jobs", "2"],
                             cwd=tree, capture_output=True, text=True)
