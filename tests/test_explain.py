@@ -135,10 +135,9 @@ def test_katsura_3_meets_the_bezout_bound(capsys, monkeypatch):
     assert len(section(out, "standard monomials")[0].split(", ")) == 8
 
 
-def test_refuted_claim_shows_normal_forms_witness_and_plain_terms():
-    result = run_cli("explain", f"{SYSTEMS}:{WRONG_LINE}")
-    assert result.returncode == 1
-    out = result.stdout
+def test_refuted_claim_shows_normal_forms_witness_and_plain_terms(capsys, monkeypatch):
+    code, out, _ = run_main(capsys, monkeypatch, "explain", f"{SYSTEMS}:{WRONG_LINE}")
+    assert code == 1
     assert "refuted" in out
     assert "normal form of the left side:  a**2 + 2*a*b + b**2" in out
     assert "normal form of the right side: a**2 + b**2" in out
