@@ -108,8 +108,7 @@ class ModuleInfo:
     """One parsed Python file and what its top level defines."""
 
     path: str  # relative to the working directory
-    directory: str
-    package: tuple[str, ...]  # dotted package of this file as far as it could be told, for relative imports
+    directory: str  # where relative imports start
     module: cst.Module
     positions: dict
     functions: dict[str, cst.FunctionDef] = field(default_factory=dict)
@@ -117,7 +116,6 @@ class ModuleInfo:
     imports: dict[str, tuple] = field(default_factory=dict)  # alias -> ("module", dotted) | ("member", dotted, name)
     constants: dict[str, list[cst.BaseExpression]] = field(default_factory=dict)
     rebound: set[str] = field(default_factory=set)  # names bound at top level by something other than one assignment
-    relative_base: str = ""  # directory a relative import starts from
     star_imports: list[str] = field(default_factory=list)  # modules imported with `from M import *`
 
     def line(self, node: cst.CSTNode) -> int:
@@ -127,8 +125,7 @@ class ModuleInfo:
 
 def build_module_info(path: str, module: cst.Module, positions: dict) -> ModuleInfo:
     directory = os.path.dirname(path) or "."
-    info = ModuleInfo(path=path, directory=directory, package=(), module=module, positions=positions,
-                      relative_base=directory)
+    info = ModuleInfo(path=path, directory=directory, module=module, positions=positions)
     for stmt in module.body:
         _index_statement(info, stmt, top=True)
     info.rebound.update(_global_names(module))
