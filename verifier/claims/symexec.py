@@ -841,8 +841,8 @@ class Executor:
             return []
         text = f"{expr_text(left)} {relation} {expr_text(right)}"
         condition = Condition(relation, left, right, text, origin=f"branch (line {line})")  # type: ignore[arg-type]
-        if condition in state.conditions:
-            return [state]
+        if any(c.relation == relation and c.left == left and c.right == right for c in state.conditions):
+            return [state]  # the same test already holds on this path
         negated = Condition(_NEGATION[relation], left, right, "", origin="")  # type: ignore[arg-type]
         if any(c.relation == negated.relation and c.left == left and c.right == right for c in state.conditions):
             return []  # the same test was already decided the other way on this path
