@@ -78,6 +78,11 @@ def test_a_bad_config_exits_2_naming_the_key(tree: Path, capsys: pytest.CaptureF
     assert "on_inconclusive" in capsys.readouterr().err
 
 
+def test_a_missing_path_exits_2(tree: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(["check", "src", "nowhere/"]) == 2
+    assert "nowhere/" in capsys.readouterr().err
+
+
 def test_a_missing_config_file_exits_2(tree: Path, capsys: pytest.CaptureFixture[str]) -> None:
     assert main(["check", "--config", "nowhere.toml"]) == 2
     assert "--config" in capsys.readouterr().err

@@ -150,6 +150,10 @@ def run_check(args: argparse.Namespace) -> int:
     if args.staged and args.since:
         raise UsageError("--staged and --since cannot be combined")
     cwd = Path.cwd()
+    if not args.staged:  # with --staged the index decides what exists
+        missing = [p for p in args.paths if not (cwd / p).exists()]
+        if missing:
+            raise UsageError(f"PATH: no such file or folder: {', '.join(missing)}")
     config = load_config_or_exit(args, config_start(args.paths, cwd))
     on_inconclusive = args.on_inconclusive or getattr(config, "on_inconclusive", "fail")
     options = RunOptions(
