@@ -714,3 +714,28 @@ def test_returns_claims_may_name_module_constants(tmp_path, monkeypatch):
     (ob,) = claim.obligations
     assert ob.right == BinOp("+", BinOp("*", Num(Fraction(1, 4)), Var("x")), Num(Fraction(3)))
     assert ob.conditions[0].right == Num(Fraction(3))
+
+
+def test_unseen_project_functions_are_different_per_module(tmp_path, monkeypatch):
+    decorated = "import contextlib\n\n\n@contextlib.something\ndef helper(x):\n    return x\n"
+    claims = claims_in(tmp_path, monkeypatch, """\
+        import pkg.a
+        import pkg.b
+        from pkg.c import *
+
+
+        # idealcheck: returns 0
+        def differ(x):
+            return pkg.a.helper(x) - pkg.b.helper(x)
+
+
+        # idealcheck: returns x
+        def starred(x):
+            return x * K
+        """, files={"pkg/__init__.py": "", "pkg/a.py": decorated, "pkg/b.py": decorated.replace("x\n", "2 * x\n"),
+                    "pkg/c.py": "K = 1\n"})
+    differ, starred = claims
+    (ob,) = differ.obligations
+    # a decorator the tool does not know may replace the function: each module's helper is its own value
+    assert ob.left == BinOp("-", Opaque("pkg.a.helper", (Var("x"),)), Opaque("pkg.b.helper", (Var("x"),)))
+    assert starred.problem.verdict == "inconclusive" and "import *" in starred.problem.message

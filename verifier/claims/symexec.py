@@ -942,6 +942,8 @@ class Executor:
             return Unknown(f"the function or class {name} used as a value at line {line} is not supported")
         if name in ("pi", "tau", "e") and any(m in MATH_MODULES for m in module.star_imports):
             return math_constant("math", name, line)
+        if _other_star_imports(module):
+            return Unknown(_star_reason(name, module, line))
         # an undefined global: any real number (a claim must hold for every value of it)
         return Var(name)
 
@@ -1337,16 +1339,16 @@ class Executor:
 
     def _resolve_global_callee(self, name: str, module: ModuleInfo, line: int, depth: int) -> tuple:
         if depth > 8:
-            return ("opaque", name)
+            return ("unknown", f"the import chain for {name} (line {line}) is too long to follow")
         if name in module.rebound:
             return ("unknown", f"the module-level name {name} (line {line}) is bound in a way the tool does not follow")
         if name in module.functions:
             node = module.functions[name]
             if not _neutral_decorators(node):
-                return ("opaque", name)
+                return ("opaque", _qualified(module, name))
             return ("function", FunctionRef(module, node, name))
         if name in module.classes or name in module.constants:
-            return ("opaque", name)
+            return ("opaque", _qualified(module, name))
         if name in module.imports:
             target = module.imports[name]
             if target[0] == "module":
@@ -1367,6 +1369,8 @@ class Executor:
             return ("builtin", name)
         if any(m in MATH_MODULES for m in module.star_imports) and name in _STAR_MATH:
             return ("math", name)
+        if _other_star_imports(module):
+            return ("unknown", _star_reason(name, module, line))
         return ("opaque", name)
 
     def _arguments(self, node: cst.Call, state: State, frame: Frame, line: int
@@ -1712,6 +1716,22 @@ def _is_generator(node: cst.FunctionDef) -> bool:
 
     node.visit(Visitor())
     return bool(found)
+
+
+def _qualified(module: ModuleInfo, name: str) -> str:
+    """A project name that cannot be seen into, qualified by its module so that equal names in
+    different modules are different opaque values."""
+    stem = module.path[:-3] if module.path.endswith(".py") else module.path
+    return ".".join(part for part in stem.replace("\\", "/").split("/") if part not in ("", ".")) + "." + name
+
+
+def _other_star_imports(module: ModuleInfo) -> list[str]:
+    return [m for m in module.star_imports if m.lstrip(".").split(".")[0] not in MATH_MODULES]
+
+
+def _star_reason(name: str, module: ModuleInfo, line: int) -> str:
+    sources = ", ".join(_other_star_imports(module))
+    return f"the name {name} at line {line} may come from `from {sources} import *`, which the tool does not follow"
 
 
 def _owned(value: Value, owner: int) -> Value:
