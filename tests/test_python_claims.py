@@ -739,3 +739,24 @@ def test_unseen_project_functions_are_different_per_module(tmp_path, monkeypatch
     # a decorator the tool does not know may replace the function: each module's helper is its own value
     assert ob.left == BinOp("-", Opaque("pkg.a.helper", (Var("x"),)), Opaque("pkg.b.helper", (Var("x"),)))
     assert starred.problem.verdict == "inconclusive" and "import *" in starred.problem.message
+
+
+def test_module_values_changed_at_top_level_are_not_constants(tmp_path, monkeypatch):
+    claims = claims_in(tmp_path, monkeypatch, """\
+        TABLE = [1, 2]
+        TABLE.append(3)
+        PAIR = (1, 2)
+
+
+        # idealcheck: returns 3*x
+        def f(x):
+            return x * len(TABLE)
+
+
+        # idealcheck: returns 2*x
+        def g(x):
+            return x * PAIR[1]
+        """)
+    f, g = claims
+    assert f.problem.verdict == "inconclusive" and "TABLE" in f.problem.message
+    assert g.problem is None

@@ -207,6 +207,10 @@ def _index_statement(info: ModuleInfo, stmt: cst.CSTNode, top: bool) -> None:
             elif isinstance(small, (cst.Assign, cst.AugAssign, cst.AnnAssign)):
                 for target in _assigned_names(small):
                     info.rebound.add(target)
+            if isinstance(small, (cst.Assign, cst.AugAssign, cst.AnnAssign, cst.Expr, cst.Del)):
+                # `T[0] = v`, `T.x = v`, `T.append(v)`, `del T[0]` at top level change the value of T
+                for base in _changed_bases(small):
+                    info.rebound.add(base)
         return
     # Compound statements at top level (if/try/for ...) may bind names in ways we do not follow.
     for name in _names_bound_in(stmt):
@@ -229,6 +233,34 @@ def _assigned_names(small: cst.CSTNode) -> Iterable[str]:
 
     small.visit(Visitor())
     return collector
+
+
+def _changed_bases(small: cst.CSTNode) -> list[str]:
+    """Names whose object a top-level statement changes in place (subscript/attribute targets, method calls)."""
+    bases: list[str] = []
+
+    def base_of(node: cst.BaseExpression) -> str | None:
+        while isinstance(node, (cst.Subscript, cst.Attribute)):
+            node = node.value
+        return node.value if isinstance(node, cst.Name) else None
+
+    targets: list[cst.BaseExpression] = []
+    if isinstance(small, cst.Assign):
+        targets = [t.target for t in small.targets]
+    elif isinstance(small, (cst.AugAssign, cst.AnnAssign)):
+        targets = [small.target]
+    elif isinstance(small, cst.Del):
+        targets = [small.target]
+    elif isinstance(small, cst.Expr) and isinstance(small.value, cst.Call) and isinstance(small.value.func, cst.Attribute):
+        targets = [small.value.func]
+    for target in targets:
+        for part in target.elements if isinstance(target, (cst.Tuple, cst.List)) else [target]:  # type: ignore[union-attr]
+            node = part.value if isinstance(part, cst.BaseElement) else part
+            if isinstance(node, (cst.Subscript, cst.Attribute)):
+                name = base_of(node)
+                if name is not None:
+                    bases.append(name)
+    return bases
 
 
 def _target_names(target: cst.BaseExpression) -> list[str]:
