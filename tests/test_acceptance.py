@@ -79,6 +79,14 @@ def test_every_expected_claim_is_reported_once(report: dict, expected: dict[str,
     assert reported == {key: len(letters) for key, letters in expected.items()}
 
 
+def test_markers_in_the_files_agree_with_expected_json(expected: dict[str, str]) -> None:
+    # the human-readable `expect: LETTERS | SOURCE` line sits just above each claim
+    for key, letters in expected.items():
+        name, line = key.rsplit(":", 1)
+        lines = (CORPUS / name).read_text(encoding="utf-8").splitlines()
+        assert f"expect: {letters} |" in lines[int(line) - 2], key
+
+
 def test_corpus_is_broad(outcomes: list[Outcome]) -> None:
     # the hidden set spans many file types and both kinds of claims
     assert len({Path(o.path).suffix for o in outcomes}) >= 8
