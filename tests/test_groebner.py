@@ -57,6 +57,10 @@ def random_case(seed: int):
     ring_, *_ = ring(",".join(f"x{i}" for i in range(nvars)), QQ, order)
     max_degree = 2 if nvars == 4 else 3
     generators = [random_poly(rng, ring_, max_degree, 3) for _ in range(rng.randint(1, 4))]
+    if seed % 4 < 2:
+        # Make every generator vanish at one rational point, so the ideal is proper (not all of 1).
+        point = [QQ(rng.randint(-2, 2), rng.randint(1, 2)) for _ in range(nvars)]
+        generators = [g - g.evaluate(list(zip(ring_.gens, point))) for g in generators]
     return rng, ring_, generators, max_degree
 
 

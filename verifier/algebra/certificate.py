@@ -18,7 +18,8 @@ from sympy.polys.rings import PolyElement, PolyRing
 from verifier.algebra.verdict import Certificate, PolyData
 
 _COEFFICIENT = re.compile(r"-?[0-9]{1,4000}(/[1-9][0-9]{0,3999})?")
-_MAX_EXPONENT = 100_000
+_MAX_EXPONENT = 100_000  # bounds the work a hostile cache entry can ask for
+_MAX_POWER = 64
 
 
 def poly_to_data(p: PolyElement) -> PolyData:
@@ -64,6 +65,11 @@ def data_to_poly(data: Any, ring: PolyRing) -> PolyElement:
 
 def make_certificate(symbols: Sequence[str], target: PolyElement, power: int,
                      generators: Sequence[PolyElement], cofactors: Sequence[PolyElement]) -> Certificate:
+    """A certificate for ``target**power == sum(cofactors[i] * generators[i])``; power must be >= 1."""
+    if int(power) < 1:
+        raise ValueError("a certificate's power is at least 1")
+    if len(generators) != len(cofactors):
+        raise ValueError("one cofactor per generator")
     return Certificate(
         tuple(symbols),
         poly_to_data(target),
@@ -74,15 +80,21 @@ def make_certificate(symbols: Sequence[str], target: PolyElement, power: int,
 
 
 def certificate_ring(symbols: Sequence[str]) -> PolyRing:
-    if not symbols or any(not isinstance(s, str) or not s for s in symbols) or len(set(symbols)) != len(symbols):
+    """The ring over QQ in ``symbols`` (a tuple of distinct non-empty names; none is a constant claim)."""
+    if not isinstance(symbols, (tuple, list)):
+        raise ValueError("the symbols are a tuple of names")
+    if any(not isinstance(s, str) or not s for s in symbols) or len(set(symbols)) != len(symbols):
         raise ValueError("bad symbol list")
+    # Symbol(name) only stores the name: nothing is parsed or evaluated.
     return PolyRing([Symbol(s) for s in symbols], QQ, grevlex)
 
 
 def check_certificate(cert: Certificate) -> bool:
     """Re-check ``target**power == sum(cofactors[i] * generators[i])`` by expansion alone."""
     try:
-        if not isinstance(cert.power, int) or isinstance(cert.power, bool) or not 1 <= cert.power <= 64:
+        if not isinstance(cert.power, int) or isinstance(cert.power, bool) or not 1 <= cert.power <= _MAX_POWER:
+            return False
+        if not isinstance(cert.generators, tuple) or not isinstance(cert.cofactors, tuple):
             return False
         if len(cert.generators) != len(cert.cofactors):
             return False
@@ -92,5 +104,5 @@ def check_certificate(cert: Certificate) -> bool:
         for generator, cofactor in zip(cert.generators, cert.cofactors):
             total += data_to_poly(cofactor, ring) * data_to_poly(generator, ring)
         return target**cert.power == total
-    except (ValueError, TypeError, ZeroDivisionError, OverflowError, MemoryError):
+    except (ValueError, TypeError, AttributeError, ZeroDivisionError, OverflowError, MemoryError, RecursionError):
         return False
