@@ -304,3 +304,25 @@ def test_refutation_names_the_missing_term():
     v = verdict_of("(a + b)**2 == a**2 + b**2")
     assert v.verdict == "refuted"
     assert "right side lacks 2*a*b" in v.reason, v.reason
+
+
+@pytest.mark.parametrize("text", [
+    "sin(pi) == 0",  # values at pi/n: A&S table 4.3.46 (from memory)
+    "sin(x + 2*pi) == sin(x)",
+    "cos(x + pi/2) == -sin(x)",
+    "sin(pi/6) == 1/2",
+    "tan(pi/4) == 1",
+    "cos(2*math.pi*t)**2 + sin(2*math.pi*t)**2 == 1",
+])
+def test_pi_is_the_number_pi(text):
+    assert_proved(text)
+
+
+def test_false_claims_with_pi_are_refuted_at_the_true_value_of_pi():
+    v = verdict_of("cos(x - pi) == cos(x)")
+    assert v.verdict == "refuted"
+    v = verdict_of("pi*r == 2*pi*r")
+    assert v.verdict == "refuted"
+    # the witness is checked with pi = 3.14159...: sides differ by pi*r
+    left = parse_value(v.witness.left)
+    assert abs(left - mpmath.pi * parse_value(dict(v.witness.values)["r"])) < 1e-15

@@ -178,7 +178,7 @@ def _error(text: str) -> ClaimSyntaxError:
         ("True + x", "unsupported constant `True`", "True"),
         ("v[i]", "only constant subscripts", "i"),
         ("v[1:2]", "only constant subscripts", "1:2"),
-        ("math.pi * x", "`math.pi` is not supported", "math.pi"),
+        ("math.inf * x", "`math.inf` is not supported", "math.inf"),
         ("not x", "unsupported operator `not`", "not"),
         ("x if y else a", "conditional expression", "x if"),
         ("(x := 2)", "assignment expression", "x :="),
@@ -433,3 +433,13 @@ def _fold_constants(tree):
 )
 def test_hostile_constants_and_sizes_are_refused_quickly(text: str, words: str) -> None:
     assert words in _error(text).message
+
+
+def test_pi_tau_and_e_are_the_constants_not_variables() -> None:
+    from verifier.claims.model import PI, Call, Opaque
+
+    assert parse_expression("pi") == PI == parse_expression("math.pi") == parse_expression("np.pi")
+    assert isinstance(PI, Opaque) and PI.args == ()
+    assert parse_expression("tau") == parse_expression("2*pi")
+    assert parse_expression("math.e") == Call("exp", (parse_expression("1"),))
+    assert parse_expression("e") != parse_expression("math.e")  # a bare e is an ordinary variable

@@ -14,6 +14,7 @@ import pytest
 
 from verifier.claims import extract
 from verifier.claims.model import (
+    PI,
     BinOp,
     Call,
     Claim,
@@ -663,7 +664,7 @@ def test_methods_constants_and_module_state(tmp_path, monkeypatch):
     method, counter, squares = claims
     (ob,) = method.obligations
     # tau = 2 pi (common practice); the bound method self.norm2() is inlined with the same receiver
-    assert ob.left == BinOp("*", BinOp("*", BinOp("*", BinOp("*", Num(Fraction(2)), Var("pi")), Var("r")),
+    assert ob.left == BinOp("*", BinOp("*", BinOp("*", BinOp("*", Num(Fraction(2)), PI), Var("r")),
                                            BinOp("+", BinOp("*", Var("self.w"), Var("self.w")),
                                                  BinOp("*", Var("self.x"), Var("self.x")))),
                             Num(Fraction(1, 2)))

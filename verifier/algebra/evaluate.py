@@ -14,7 +14,7 @@ from typing import Callable, Mapping, Union
 import mpmath
 from mpmath import mp, mpf
 
-from verifier.claims.model import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
+from verifier.claims.model import PI, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
 
 Real = Union[mpf, Fraction]
 
@@ -72,7 +72,8 @@ def variables(expr: Expr) -> set[str]:
 
 
 def has_opaque(expr: Expr) -> bool:
-    return any(isinstance(node, Opaque) for node in postorder(expr))
+    """True when the expression has a value the tool cannot compute (pi is computable)."""
+    return any(isinstance(node, Opaque) and node != PI for node in postorder(expr))
 
 
 # ---------------------------------------------------------------- exact evaluation
@@ -163,6 +164,8 @@ def _exact_node(node: Expr, value: Callable[[Expr], Fraction], point: Mapping[st
                 return Fraction(1)
             raise _NotRational()
         raise ValueError(f"unknown function {f!r}")
+    if node == PI:
+        raise _NotRational()
     if isinstance(node, Opaque):
         raise NotEvaluable(f"opaque call {node.name}")
     raise ValueError(f"unknown expression node {type(node).__name__}")
@@ -282,6 +285,8 @@ def _numeric_node(node: Expr, value: Callable[[Expr], mpf], point: Mapping[str, 
                 raise DomainError("logarithm of a non-positive number")
             return mpmath.log(args[0])
         raise ValueError(f"unknown function {f!r}")
+    if node == PI:
+        return +mpmath.pi
     if isinstance(node, Opaque):
         raise NotEvaluable(f"opaque call {node.name}")
     raise ValueError(f"unknown expression node {type(node).__name__}")

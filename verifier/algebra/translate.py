@@ -235,7 +235,8 @@ class _Translator:
         if isinstance(expr, Opaque):
             args = [self.value(a) for a in expr.args]
             key = ("opaque", expr.name, tuple(poly_key(self.lift(a)) for a in args))
-            shown = f"{expr.name}({', '.join(self.printed(self.lift(a)) for a in args)})"
+            shown = (f"{expr.name}({', '.join(self.printed(self.lift(a)) for a in args)})" if expr.args
+                     else expr.name)
             return self.atom(key, "f", shown, "opaque")
         raise TranslationError(f"unsupported expression node {type(expr).__name__}")
 
@@ -435,6 +436,12 @@ class _Translator:
             self._atoms[pair_key] = ""
             c, s = self.lift(c), self.lift(s)
             self.add_generator(s**2 + c**2 - 1, "trig", f"sin({base_text})**2 + cos({base_text})**2 == 1")
+            pi_name = self._atoms.get(("opaque", "pi", ()))
+            if pi_name and key == ("poly", poly_key(self.gen(pi_name))) and scale in _PI_FRACTIONS:
+                # exact values at pi/scale (common practice): sin(pi) = 0, cos(pi/3) = 1/2, ...
+                for relation, text in _PI_FRACTIONS[scale]:
+                    self.add_generator(relation(self.lift(c), self.lift(s)), "trig",
+                                       text.replace("X", base_text))
         return self.lift(c), self.lift(s)
 
     def exponential(self, arg: PolyElement) -> PolyElement:
@@ -476,6 +483,16 @@ class _Translator:
         # the pre-scan created no auxiliary variables for angles (only for the arguments' own
         # divisions and radicals); translation proper starts from a clean memo so that calls are redone
         self._memo = {k: v for k, v in self._memo.items() if not _has_trig_or_exp(k)}
+
+
+# Exact values of cos and sin at pi/scale, as polynomial relations in (c, s).
+_PI_FRACTIONS = {
+    1: ((lambda c, s: c + 1, "cos(X) == -1"), (lambda c, s: s, "sin(X) == 0")),
+    2: ((lambda c, s: c, "cos(X) == 0"), (lambda c, s: s - 1, "sin(X) == 1")),
+    3: ((lambda c, s: 2 * c - 1, "cos(X) == 1/2"), (lambda c, s: 4 * s**2 - 3, "sin(X)**2 == 3/4")),
+    4: ((lambda c, s: 2 * c**2 - 1, "cos(X)**2 == 1/2"), (lambda c, s: s - c, "sin(X) == cos(X)")),
+    6: ((lambda c, s: 4 * c**2 - 3, "cos(X)**2 == 3/4"), (lambda c, s: 2 * s - 1, "sin(X) == 1/2")),
+}
 
 
 def _has_trig_or_exp(expr: Expr) -> bool:

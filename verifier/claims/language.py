@@ -25,6 +25,7 @@ from verifier.claims.model import (
     NamedConditionSet,
     Neg,
     Num,
+    PI,
     Opaque,
     Pow,
     Relation,
@@ -294,6 +295,9 @@ class _Converter:
     def _convert(self, node: ast.AST) -> Expr:
         if isinstance(node, ast.Constant):
             return self.constant(node)
+        constant = self.named_constant(node)
+        if constant is not None:
+            return constant
         if isinstance(node, (ast.Name, ast.Attribute, ast.Subscript)):
             return Var(self.variable_name(node))
         if isinstance(node, ast.UnaryOp):
@@ -338,12 +342,29 @@ class _Converter:
                 raise self.error(f"cannot read the number `{spelling}`", node) from None
         raise self.error(f"unsupported constant `{value!r}`", node)
 
+    def named_constant(self, node: ast.AST) -> Expr | None:
+        """pi (bare or math./np./numpy.), tau and math.e.  pi is an opaque constant: proofs hold for any
+        value of it, and a refutation needs a witness that does not depend on it (none is claimed)."""
+        name = None
+        if isinstance(node, ast.Name) and node.id in ("pi", "tau"):
+            name = node.id
+        elif (isinstance(node, ast.Attribute) and isinstance(node.value, ast.Name)
+              and node.value.id in FUNCTION_MODULES and node.attr in ("pi", "tau", "e")):
+            name = node.attr
+        if name == "pi":
+            return PI
+        if name == "tau":
+            return BinOp("*", Num(Fraction(2)), PI)
+        if name == "e":
+            return Call("exp", (Num(Fraction(1)),))
+        return None
+
     def variable_name(self, node: ast.AST) -> str:
         if isinstance(node, ast.Name):
             return node.id
         if isinstance(node, ast.Attribute):
             base = node.value
-            if isinstance(base, ast.Name) and base.id in FUNCTION_MODULES and node.attr in ("pi", "e", "tau", "inf", "nan"):
+            if isinstance(base, ast.Name) and base.id in FUNCTION_MODULES and node.attr in ("inf", "nan"):
                 raise self.error(
                     f"the constant `{base.id}.{node.attr}` is not supported (claims use rational constants only)", node
                 )

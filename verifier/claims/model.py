@@ -101,6 +101,10 @@ class Opaque:
 
 Expr = Union[Num, Var, BinOp, Neg, Pow, Call, Opaque]
 
+# The number pi: an opaque constant.  Proofs hold for every value of it; since no witness can be given in
+# terms of an unknown constant, a claim whose difference depends on it is never refuted.
+PI = Opaque("pi", ())
+
 
 # ---------------------------------------------------------------- conditions and claims
 

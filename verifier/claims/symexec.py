@@ -20,7 +20,7 @@ from typing import Iterable, Sequence, Union
 import libcst as cst
 from libcst.metadata import MetadataWrapper, PositionProvider
 
-from verifier.claims.model import BinOp, Call, Condition, Expr, Neg, Num, Opaque, Pow, Var
+from verifier.claims.model import PI, BinOp, Call, Condition, Expr, Neg, Num, Opaque, Pow, Var
 
 MUTABLE = ("list", "array")
 MAX_PATHS = 512  # live paths at once; more is inconclusive rather than slow
@@ -1681,11 +1681,11 @@ class Executor:
 
 
 def math_constant(module: str, name: str, line: int) -> Value:
-    """``math.pi`` and friends: pi is the claim language's variable ``pi``; e is exp(1)."""
+    """``math.pi`` and friends: pi is the claim language's opaque constant ``PI``; e is exp(1)."""
     if name == "pi":
-        return Var("pi")
+        return PI
     if name == "tau":
-        return BinOp("*", Num(Fraction(2)), Var("pi"))
+        return BinOp("*", Num(Fraction(2)), PI)
     if name == "e":
         return Call("exp", (Num(Fraction(1)),))
     return Unknown(f"the constant {module}.{name} at line {line} is not supported")
