@@ -72,3 +72,22 @@ def test_a_widened_sign_fact_is_rejected(tmp_path: Path, decided) -> None:
     cache.entry_path(SIGN_FALSE).write_text(json.dumps(document), encoding="utf-8")
     loaded = cache.load(SIGN_FALSE)
     assert loaded is None or loaded.verdict != "proved"
+
+
+REAL_SQUARE = _claim(5, "x == 0 given x**2 + y**2 == 0")
+
+
+def test_a_real_square_proof_survives_the_round_trip(tmp_path: Path) -> None:
+    verdict = decide(REAL_SQUARE, Limits(timeout=20))
+    assert verdict.verdict == "proved" and verdict.obligations[0].certificate.real_square is not None
+    cache = _cache(tmp_path)
+    cache.store(REAL_SQUARE, verdict)
+    loaded = cache.load(REAL_SQUARE)
+    assert loaded is not None and loaded.verdict == "proved"
+    # a tampered remainder (now negative) is rejected
+    document = json.loads(cache.entry_path(REAL_SQUARE).read_text(encoding="utf-8"))
+    remainder = document["obligations"][0]["certificate"]["real_square"]["remainder"]
+    remainder[0][0] = "-" + remainder[0][0]
+    cache.entry_path(REAL_SQUARE).write_text(json.dumps(document), encoding="utf-8")
+    loaded = cache.load(REAL_SQUARE)
+    assert loaded is None or loaded.verdict != "proved"

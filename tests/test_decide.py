@@ -326,3 +326,31 @@ def test_false_claims_with_pi_are_refuted_at_the_true_value_of_pi():
     # the witness is checked with pi = 3.14159...: sides differ by pi*r
     left = parse_value(v.witness.left)
     assert abs(left - mpmath.pi * parse_value(dict(v.witness.values)["r"])) < 1e-15
+
+
+@pytest.mark.parametrize("text", [
+    "x == 0 given x**2 + y**2 == 0",  # a real sum of squares vanishes only where each term does
+    "sqrt(2) + sqrt(3) == sqrt(5 + 2*sqrt(6))",  # denesting (common practice)
+    "sqrt(2 + sqrt(3)) == (sqrt(6) + sqrt(2))/2",  # cos(pi/12) two ways, A&S 4.3.46 (from memory)
+    "sqrt(x**3) == x*sqrt(x)",  # the domain of sqrt(x) makes x >= 0
+    "sqrt(12) == 2*sqrt(3)",
+    "log(x*y) == log(x) + log(y) given x > 0, y > 0",  # A&S 4.1.16 (from memory)
+    "log(2*x**3) == log(2) + 3*log(x) given x > 0",
+])
+def test_real_reasoning_extensions(text):
+    assert_proved(text)
+
+
+@pytest.mark.parametrize("text", [
+    "x == 1 given x**2 + y**2 == 1",
+    "sqrt(2) + sqrt(3) == sqrt(5 - 2*sqrt(6))",
+    "sqrt(x**3) == -x*sqrt(x) given x > 0",
+])
+def test_real_reasoning_extensions_keep_false_claims_false(text):
+    assert_refuted(text)
+
+
+def test_log_of_a_product_is_not_split_without_positive_factors():
+    # log(x*y) == log(x) + log(y) needs x > 0 and y > 0; without them it stays open (never proved by
+    # splitting, never refuted since it holds wherever both sides are defined)
+    assert verdict_of("log(x*y) == log(x) + log(y)").verdict == "inconclusive"

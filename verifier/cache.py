@@ -32,6 +32,7 @@ from typing import Any
 from verifier.algebra.verdict import (
     Certificate,
     ObligationResult,
+    RealSquare,
     SignArgument,
     SignContradiction,
     Verdict,
@@ -107,6 +108,11 @@ def _certificate_to_json(cert: Certificate) -> dict[str, Any]:
             "nonnegative_cofactors": [_poly_to_json(c) for c in arg.nonnegative_cofactors],
             "nonnegative_symbols": list(arg.nonnegative_symbols),
             "hypotheses": [[_poly_to_json(h), lam] for h, lam in arg.hypotheses],
+        }
+    if cert.real_square is not None:
+        data["real_square"] = {
+            "remainder": _poly_to_json(cert.real_square.remainder),
+            "nonnegative_symbols": list(cert.real_square.nonnegative_symbols),
         }
     if cert.contradiction is not None:
         con = cert.contradiction
@@ -197,7 +203,17 @@ def _certificate_from_json(value: Any) -> Certificate | None:
     if len(generators) != len(cofactors):
         raise Invalid("one cofactor per generator")
     return Certificate(symbols, _poly_from_json(value.get("target"), width), power, generators, cofactors,
-                       _sign_from_json(value.get("sign"), width), _contradiction_from_json(value.get("contradiction"), width))
+                       _sign_from_json(value.get("sign"), width), _contradiction_from_json(value.get("contradiction"), width),
+                       _real_square_from_json(value.get("real_square"), width))
+
+
+def _real_square_from_json(value: Any, width: int) -> RealSquare | None:
+    if value is None:
+        return None
+    if not isinstance(value, dict):
+        raise Invalid("real_square must be an object")
+    return RealSquare(_poly_from_json(value.get("remainder"), width),
+                      tuple(_str(s) for s in _list(value.get("nonnegative_symbols"))))
 
 
 def _bool(value: Any) -> bool:

@@ -22,6 +22,7 @@ from verifier.algebra.describe import describe_translation
 from verifier.algebra.groebner import GroebnerTimeout, groebner_basis, membership_cofactors, reduce
 from verifier.algebra.sign import (
     certificate_is_valid,
+    find_real_square,
     find_sign_contradiction,
     find_sign_proof,
     nonnegative_symbols,
@@ -147,6 +148,12 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
                                    f"(LEFT - RIGHT)**{k} lies in the ideal of the conditions, so LEFT - RIGHT "
                                    "vanishes wherever they hold (radical membership)")
         _check_time(deadline)
+        real_square = (find_real_square(tr, basis_result, deadline=deadline)
+                       if len(f.terms()) <= _RADICAL_TERM_LIMIT else None)
+        if real_square is not None:
+            return _accept(tr, label, "sign", real_square,
+                           "(LEFT - RIGHT)**2 plus a quantity that cannot be negative lies in the ideal of the "
+                           "conditions, so LEFT - RIGHT vanishes at every real point where they hold")
         sign_certificate = find_sign_proof(tr, basis_result, deadline=deadline)
         if sign_certificate is not None:
             return _accept(tr, label, "sign", sign_certificate,
@@ -282,6 +289,9 @@ def certificate_matches(claim: Claim, results: Sequence[ObligationResult]) -> bo
         if cert.generators != tuple(poly_to_data(g.poly) for g in tr.generators):
             return False
         known_signs = {poly_to_data(p) for p, _strict in tr.signs}
+        if cert.real_square is not None and not (
+                set(cert.real_square.nonnegative_symbols) <= set(nonnegative_symbols(tr))):
+            return False
         if cert.sign is not None:
             if not set(cert.sign.nonnegative_symbols) <= set(nonnegative_symbols(tr)):
                 return False

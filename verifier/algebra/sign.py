@@ -23,8 +23,7 @@ from verifier.algebra.clearing import inverse_pairs
 from verifier.algebra.certificate import check_certificate, data_to_poly, make_certificate, poly_to_data
 from verifier.algebra.groebner import GroebnerResult, membership_cofactors, reduce
 from verifier.algebra.translate import Translation
-from verifier.algebra.verdict import Certificate, SignArgument, SignContradiction
-from verifier.claims.model import Num, Var
+from verifier.algebra.verdict import Certificate, RealSquare, SignArgument, SignContradiction
 
 
 def nonnegative_symbols(tr: Translation) -> tuple[str, ...]:
@@ -32,11 +31,12 @@ def nonnegative_symbols(tr: Translation) -> tuple[str, ...]:
     exponentials, variables with a hypothesis ``v > c`` or ``v >= c`` (c >= 0), and inverses of
     quantities that are themselves >= 0 (then > 0, since they are not zero)."""
     names = {a.name for a in tr.aux if a.kind in ("radical", "exp", "exp_inverse")}
-    for cond in tr.sign_conditions:
-        var, bound, relation = _variable_bound(cond)
-        if var is not None and bound is not None and bound >= 0 and relation in (">", ">="):
-            names.add(var)
     symbols = [str(x) for x in tr.ring.symbols]
+    for hypothesis, _strict in tr.signs:
+        # a*v - c >= 0 (or > 0) with a > 0 and c >= 0 makes v >= 0: hypotheses and square-root domains
+        variable = _bounded_variable(hypothesis)
+        if variable is not None:
+            names.add(symbols[variable])
     inverses = [(symbols[index], u) for _, index, u in inverse_pairs(tr)]
     changed = True
     while changed:  # an inverse of an inverse of something >= 0 is >= 0 too
@@ -48,15 +48,18 @@ def nonnegative_symbols(tr: Translation) -> tuple[str, ...]:
     return tuple(sorted(names))
 
 
-def _variable_bound(cond) -> tuple[str | None, Fraction | None, str]:
-    """``v >= c`` / ``v > c`` (or the mirrored forms) -> (v, c, ">=" / ">")."""
-    mirror = {"<": ">", "<=": ">=", ">": "<", ">=": "<="}
-    left, right, relation = cond.left, cond.right, cond.relation
-    if isinstance(right, Var) and isinstance(left, Num):
-        left, right, relation = right, left, mirror[relation]
-    if isinstance(left, Var) and isinstance(right, Num):
-        return left.name, right.value, relation
-    return None, None, relation
+def _bounded_variable(p: PolyElement) -> int | None:
+    """The index of v when p == a*v - c with a > 0 and c >= 0, else None."""
+    linear = None
+    for monom, coeff in p.terms():
+        degree = sum(monom)
+        if degree == 1 and coeff > 0 and linear is None:
+            linear = monom.index(1)
+        elif degree == 0 and coeff <= 0:
+            continue
+        else:
+            return None
+    return linear
 
 
 def _split_linear(f: PolyElement, index: int, radicand: PolyElement) -> tuple[PolyElement, PolyElement]:
@@ -341,8 +344,57 @@ def _strict_fraction(text: str) -> Fraction:
     return Fraction(text)
 
 
+def find_real_square(tr: Translation, basis: GroebnerResult, *, deadline: float | None) -> Certificate | None:
+    """f**2 + P in the ideal with P >= 0 by its sign pattern: then f**2 == -P <= 0, so f == 0 over the
+    reals (x == 0 given x**2 + y**2 == 0)."""
+    if not basis.basis:
+        return None
+    f = tr.difference
+    ring = tr.ring
+    symbols = [str(x) for x in ring.symbols]
+    positive = nonnegative_symbols(tr)
+    _, remainder = reduce(f**2, basis.basis, deadline=deadline)
+    p = -remainder
+    if not _sign_pattern_ok(p, {symbols.index(n) for n in positive}):
+        return None
+    cofactors = membership_cofactors(f**2 + p, basis, deadline=deadline)
+    if cofactors is None:
+        return None
+    generators = tuple(g.poly for g in tr.generators)
+    base = make_certificate(tuple(symbols), f, 2, generators, tuple(cofactors))
+    return Certificate(base.symbols, base.target, 2, base.generators, base.cofactors,
+                       real_square=RealSquare(poly_to_data(p), positive))
+
+
+def check_real_square_certificate(cert: Certificate) -> bool:
+    arg = cert.real_square
+    if arg is None or cert.power != 2 or cert.sign is not None or cert.contradiction is not None:
+        return False
+    try:
+        from sympy import QQ, Symbol
+        from sympy.polys.orderings import grevlex
+        from sympy.polys.rings import PolyRing
+
+        if any(s not in cert.symbols for s in arg.nonnegative_symbols):
+            return False
+        ring = PolyRing([Symbol(s) for s in cert.symbols], QQ, grevlex)
+        target = data_to_poly(cert.target, ring)
+        p = data_to_poly(arg.remainder, ring)
+        generators = [data_to_poly(g, ring) for g in cert.generators]
+        cofactors = [data_to_poly(c, ring) for c in cert.cofactors]
+        if len(generators) != len(cofactors):
+            return False
+        if target**2 + p != sum((c * g for c, g in zip(cofactors, generators)), ring.zero):
+            return False
+        return _sign_pattern_ok(p, {list(cert.symbols).index(s) for s in arg.nonnegative_symbols})
+    except (ValueError, TypeError, ZeroDivisionError, IndexError):
+        return False
+
+
 def certificate_is_valid(cert: Certificate) -> bool:
     """The right re-check for each kind of certificate."""
+    if cert.real_square is not None:
+        return check_real_square_certificate(cert)
     if cert.contradiction is not None:
         return check_contradiction_certificate(cert)
     if cert.sign is not None:

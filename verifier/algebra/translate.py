@@ -169,6 +169,8 @@ class _Translator:
         self._memo: dict[Expr, PolyElement] = {}
         self._counter = 0
         self._angle_scale: dict[tuple, int] = {}  # direction key -> lcm of coefficient denominators
+        self.domain_signs: list[tuple[PolyElement, bool]] = []  # radicands >= 0, log arguments > 0
+        self.positive_variables: set[str] = set()  # variables with a hypothesis v > 0 (or v >= c > 0)
         self._exp_scale: dict[tuple, int] = {}
 
     # -- ring management
@@ -322,6 +324,17 @@ class _Translator:
             root = _rational_sqrt(value)
             if root is not None:
                 return self.const(root)
+            split = _split_constant_radicand(value)
+            if split is not None:
+                # sqrt(12) = 2*sqrt(3), sqrt(6) = sqrt(2)*sqrt(3): one radical per prime (all >= 0)
+                outside, primes = split
+                result = self.const(outside)
+                for prime in primes:
+                    key = ("sqrt", poly_key(self.const(prime)))
+                    radical = self.gen(self._atoms[key]) if key in self._atoms else self._new_radical(
+                        self.const(prime), key)
+                    result = self.lift(result) * self.lift(radical)
+                return self.lift(result)
         else:
             content, primitive = u.primitive()
             content_value = Fraction(int(content.numerator), int(content.denominator))
@@ -332,6 +345,9 @@ class _Translator:
         key = ("sqrt", poly_key(u))
         if key in self._atoms:
             return self.gen(self._atoms[key])
+        return self._new_radical(u, key)
+
+    def _new_radical(self, u: PolyElement, key: tuple) -> PolyElement:
         shown = self.printed(u)
         name = self._new_symbol("r", f"sqrt({shown})", "radical")
         self._atoms[key] = name
@@ -339,6 +355,7 @@ class _Translator:
         self.add_generator(r**2 - self.lift(u), "radical", f"sqrt({shown})**2 == {shown}", name)
         if not u.is_ground:
             self.assumed.append(f"{shown} >= 0 (square root)")
+            self.domain_signs.append((u, False))
         return r
 
     def call(self, expr: Call) -> PolyElement:
@@ -367,12 +384,44 @@ class _Translator:
             u = self.lift(self.value(args[0]))
             if u.is_ground and u == 1:
                 return self.const(0)
-            shown = self.printed(u)
-            key = ("log", poly_key(u))
-            if key not in self._atoms:
-                self.assumed.append(f"{shown} > 0 (logarithm)")
-            return self.atom(key, "l", f"log({shown})", "log")
+            split = self._positive_factors(u)
+            if split is not None:
+                # log(c*x**2*y) = log(c) + 2*log(x) + log(y) when x, y > 0 are hypotheses of the claim
+                constant, factors = split
+                result = self._log_atom(self.const(constant)) if constant != 1 else self.const(0)
+                for factor, multiplicity in factors:
+                    logarithm = self._log_atom(factor)  # may extend the ring: compute before lifting
+                    result = self.lift(result) + multiplicity * self.lift(logarithm)
+                return self.lift(result)
+            return self._log_atom(u)
         raise TranslationError(f"unsupported function {f}")
+
+    def _log_atom(self, u: PolyElement) -> PolyElement:
+        u = self.lift(u)
+        shown = self.printed(u)
+        key = ("log", poly_key(u))
+        if key not in self._atoms:
+            self.assumed.append(f"{shown} > 0 (logarithm)")
+            if not u.is_ground:
+                self.domain_signs.append((u, True))
+        return self.atom(key, "l", f"log({shown})", "log")
+
+    def _positive_factors(self, u: PolyElement) -> tuple[Fraction, list[tuple[PolyElement, int]]] | None:
+        """u == c * prod(v**k) with c > 0 and every v a variable with a hypothesis v > 0 (or v >= c > 0)."""
+        if u.is_ground or len(u.terms()) != 1:
+            return None
+        monom, coeff = u.terms()[0]
+        constant = Fraction(int(coeff.numerator), int(coeff.denominator))
+        if constant <= 0:
+            return None
+        symbols = [str(x) for x in self.ring.symbols]
+        factors = []
+        for index, exponent in enumerate(monom):
+            if exponent:
+                if symbols[index] not in self.positive_variables:
+                    return None
+                factors.append((self.ring.gens[index], exponent))
+        return constant, factors
 
     # -- angles and exponentials: split an argument into base directions with integer multiples
 
@@ -524,6 +573,27 @@ def _scaled(text: str, scale: int) -> str:
     return text if scale == 1 else f"{_atom(text)}/{scale}"
 
 
+_FACTOR_LIMIT = 10**12  # constant radicands beyond this are not factored
+
+
+def _split_constant_radicand(value: Fraction) -> tuple[Fraction, list[int]] | None:
+    """sqrt(value) == outside * prod(sqrt(p) for p in primes), value > 0 rational, primes distinct."""
+    from sympy import factorint
+
+    numerator = value.numerator * value.denominator  # sqrt(n/d) = sqrt(n*d)/d
+    if value <= 0 or numerator > _FACTOR_LIMIT:
+        return None
+    outside = Fraction(1, value.denominator)
+    primes = []
+    for prime, exponent in sorted(factorint(numerator).items()):
+        outside *= prime ** (exponent // 2)
+        if exponent % 2:
+            primes.append(int(prime))
+    if len(primes) <= 1 and outside == 1:
+        return None  # already a single prime radical: nothing to split
+    return outside, primes
+
+
 def _rational_sqrt(value: Fraction) -> Fraction | None:
     if value < 0:
         return None
@@ -566,6 +636,20 @@ def expr_variables(expr: Expr) -> set[str]:
 _SIGN_RELATIONS = ("<", "<=", ">", ">=")
 
 
+def _positive_variables(conditions: Sequence[Condition]) -> set[str]:
+    """Variables v with a hypothesis v > c (c >= 0) or v >= c (c > 0), in either orientation."""
+    mirror = {"<": ">", "<=": ">=", ">": "<", ">=": "<="}
+    out = set()
+    for cond in conditions:
+        left, right, relation = cond.left, cond.right, cond.relation
+        if isinstance(right, Var) and isinstance(left, Num) and relation in mirror:
+            left, right, relation = right, left, mirror[relation]
+        if isinstance(left, Var) and isinstance(right, Num):
+            if (relation == ">" and right.value >= 0) or (relation == ">=" and right.value > 0):
+                out.add(left.name)
+    return out
+
+
 def translate(obligation: Obligation) -> Translation:
     """Translate one obligation; raises TranslationError for what cannot be represented."""
     exprs: list[Expr] = [obligation.left, obligation.right]
@@ -575,6 +659,7 @@ def translate(obligation: Obligation) -> Translation:
     for e in exprs:
         names |= expr_variables(e)
     t = _Translator(sorted(names))
+    t.positive_variables = _positive_variables(obligation.conditions)
     t.prescan(exprs)
     sign_conditions: list[Condition] = []
     signs: list[tuple[PolyElement, bool]] = []
@@ -627,5 +712,5 @@ def translate(obligation: Obligation) -> Translation:
         aux=tuple(t.aux),
         assumed=tuple(dict.fromkeys(assumed)),
         sign_conditions=tuple(sign_conditions),
-        signs=tuple((conv(t.lift(p)), strict) for p, strict in signs),
+        signs=tuple((conv(t.lift(p)), strict) for p, strict in signs + t.domain_signs),
     )

@@ -56,6 +56,15 @@ class SignContradiction:
 
 
 @dataclass(frozen=True)
+class RealSquare:
+    """``target**2 + remainder`` is in the ideal and ``remainder`` is >= 0 by its sign pattern (positive
+    coefficients, odd powers only of ``nonnegative_symbols``): so target**2 <= 0, i.e. target == 0."""
+
+    remainder: PolyData
+    nonnegative_symbols: tuple[str, ...]
+
+
+@dataclass(frozen=True)
 class Certificate:
     """``target ** power == sum(cofactors[i] * generators[i])`` as polynomials over QQ in ``symbols``.
 
@@ -69,6 +78,7 @@ class Certificate:
     cofactors: tuple[PolyData, ...]
     sign: SignArgument | None = None
     contradiction: SignContradiction | None = None
+    real_square: RealSquare | None = None
 
 
 @dataclass(frozen=True)
