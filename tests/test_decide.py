@@ -354,3 +354,25 @@ def test_log_of_a_product_is_not_split_without_positive_factors():
     # log(x*y) == log(x) + log(y) needs x > 0 and y > 0; without them it stays open (never proved by
     # splitting, never refuted since it holds wherever both sides are defined)
     assert verdict_of("log(x*y) == log(x) + log(y)").verdict == "inconclusive"
+
+
+@pytest.mark.parametrize("text", [
+    "x == 1 given x > 2, x < 1",
+    "sqrt(x)*sqrt(y) == sqrt(x*y) given x < 0, y < 0",  # the square roots' domains contradict
+])
+def test_more_contradictions_are_vacuous_and_say_so(text):
+    v = verdict_of(text)
+    assert v.verdict == "proved" and v.obligations[0].vacuous and "vacuously" in v.reason
+
+
+@pytest.mark.parametrize("text", [
+    "exp(x) == 1 given x == 0",
+    "sin(t) == 0 given t == 0",
+    "cos(a)*cos(b) - sin(a)*sin(b) == 1 given a == 0, b == 0",
+])
+def test_constant_definitions_reach_inside_functions(text):
+    assert_proved(text)
+
+
+def test_constant_definitions_keep_false_claims_false():
+    assert_refuted("exp(x) == 2 given x == 0")

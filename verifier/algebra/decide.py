@@ -148,6 +148,9 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
                                    f"(LEFT - RIGHT)**{k} lies in the ideal of the conditions, so LEFT - RIGHT "
                                    "vanishes wherever they hold (radical membership)")
         _check_time(deadline)
+        contradiction = find_sign_contradiction(tr, basis_result, deadline=deadline)
+        if contradiction is not None:
+            return _contradiction_result(tr, label, contradiction)
         real_square = (find_real_square(tr, basis_result, deadline=deadline)
                        if len(f.terms()) <= _RADICAL_TERM_LIMIT else None)
         if real_square is not None:
@@ -162,11 +165,10 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
                            "cannot vanish where LEFT - RIGHT does not")
     else:
         normal_form = f
-    _check_time(deadline)
-    contradiction = find_sign_contradiction(tr, basis_result, deadline=deadline)
-    if contradiction is not None:
-        return _accept(tr, label, "sign", contradiction,
-                       "the sign hypotheses cannot all hold: proved vacuously", vacuous=True)
+        _check_time(deadline)
+        contradiction = find_sign_contradiction(tr, None, deadline=deadline)
+        if contradiction is not None:
+            return _contradiction_result(tr, label, contradiction)
     cnf = tr.printed(normal_form)
     witness = find_witness(ob.left, ob.right, ob.conditions, deadline=deadline, seed=seed)
     if witness is not None:
@@ -181,6 +183,12 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
     else:
         reason += "; the counterexamples may all be complex, or the search ran out of time"
     return ObligationResult(label, "inconclusive", None, reason, cnf, None, tr.assumed)
+
+
+def _contradiction_result(tr: Translation, label: str, contradiction: Certificate) -> ObligationResult:
+    return _accept(tr, label, "sign", contradiction,
+                   "the sign hypotheses (with the domains of square roots and logarithms) cannot all hold: "
+                   "proved vacuously", vacuous=True)
 
 
 def _refuted_reason(notes: Sequence[str], plain: str | None = None) -> str:

@@ -274,8 +274,10 @@ def find_sign_contradiction(tr: Translation, basis: GroebnerResult | None, *,
             if j == i or not n1 or not n2 or n1.is_ground:
                 continue
             ratio = _fraction(n1.LC) / _fraction(n2.LC)
-            if ratio < 0 and n1 - n2 * ring.domain.convert(ratio.numerator) / ratio.denominator == 0:
-                options.append((p2, strict2, ratio, Fraction(0)))
+            rest = n1 - n2 * ring.domain.convert(ratio.numerator) / ratio.denominator
+            if ratio < 0 and rest.is_ground:
+                # x - 2 > 0 and 1 - x > 0: x - 2 == -(1 - x) - 1
+                options.append((p2, strict2, ratio, _fraction(rest.LC) if rest else Fraction(0)))
         for p2, strict2, ratio, constant in options:
             if not _contradicts(strict1, strict2, ratio, constant):
                 continue

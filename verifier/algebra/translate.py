@@ -636,6 +636,34 @@ def expr_variables(expr: Expr) -> set[str]:
 _SIGN_RELATIONS = ("<", "<=", ">", ">=")
 
 
+def _substitute_constants(obligation: Obligation) -> Obligation:
+    """Replace v by c wherever a condition says ``v == c`` (c a constant), except in those conditions
+    themselves.  Sound because the two agree at every point where the conditions hold, and it lets
+    ``exp(x) == 1 given x == 0`` see the value inside exp, sin and cos."""
+    from dataclasses import replace
+
+    from verifier.claims.language import substitute
+
+    constants: dict[str, Expr] = {}
+    defining: set[int] = set()
+    for index, cond in enumerate(obligation.conditions):
+        if cond.relation != "==":
+            continue
+        pair = (cond.left, cond.right) if isinstance(cond.left, Var) else (cond.right, cond.left)
+        if isinstance(pair[0], Var) and isinstance(pair[1], Num) and pair[0].name not in constants:
+            constants[pair[0].name] = pair[1]
+            defining.add(index)
+    if not constants:
+        return obligation
+    conditions = tuple(
+        cond if index in defining else replace(cond, left=substitute(cond.left, constants),
+                                               right=substitute(cond.right, constants))
+        for index, cond in enumerate(obligation.conditions)
+    )
+    return replace(obligation, left=substitute(obligation.left, constants),
+                   right=substitute(obligation.right, constants), conditions=conditions)
+
+
 def _positive_variables(conditions: Sequence[Condition]) -> set[str]:
     """Variables v with a hypothesis v > c (c >= 0) or v >= c (c > 0), in either orientation."""
     mirror = {"<": ">", "<=": ">=", ">": "<", ">=": "<="}
@@ -652,6 +680,7 @@ def _positive_variables(conditions: Sequence[Condition]) -> set[str]:
 
 def translate(obligation: Obligation) -> Translation:
     """Translate one obligation; raises TranslationError for what cannot be represented."""
+    obligation = _substitute_constants(obligation)
     exprs: list[Expr] = [obligation.left, obligation.right]
     for cond in obligation.conditions:
         exprs += [cond.left, cond.right]
