@@ -267,3 +267,11 @@ def test_passed_deadline_stops_reduce_and_membership() -> None:
     with pytest.raises(GroebnerTimeout):
         groebner_basis([x**2 - y], deadline=past)
 
+
+
+def test_non_rational_coefficients_rejected() -> None:
+    from sympy.polys.domains import ZZ
+
+    R, x, y = ring("x,y", ZZ, grevlex)
+    with pytest.raises(ValueError):
+        groebner_basis([x - y])

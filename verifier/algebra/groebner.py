@@ -1,6 +1,6 @@
 """Buchberger's algorithm with cofactor tracking, reduced Groebner bases and multivariate division.
 
-Works on ``sympy.polys.rings`` polynomials over a field (QQ in practice) in whatever monomial order the
+Works on ``sympy.polys.rings`` polynomials over QQ in whatever monomial order the
 ring has.  Internally a polynomial is a list of ``(monomial, coefficient)`` terms sorted by the ring's
 order, largest first; reductions run on a dict of coefficients plus a heap of monomials, so finding the
 next leading term costs O(log n) instead of a scan of the whole polynomial.
@@ -14,6 +14,7 @@ from __future__ import annotations
 
 import heapq
 import time
+from math import gcd, lcm
 from dataclasses import dataclass
 from operator import add, ge, sub
 from typing import Any, Callable, Sequence
@@ -320,7 +321,7 @@ def groebner_basis(
     track_cofactors: bool = True,
     deadline: float | None = None,
 ) -> GroebnerResult:
-    """The reduced Groebner basis of the ideal of ``generators`` (all in one ring over a field).
+    """The reduced Groebner basis of the ideal of ``generators`` (all in one ring over QQ).
 
     Buchberger's algorithm with the Gebauer-Moeller criteria and the normal selection strategy (the
     pair with the smallest lcm in the ring's order first, sugar breaking ties).  The basis is monic, inter-reduced and sorted by leading
@@ -334,8 +335,8 @@ def groebner_basis(
     for g in gens:
         if g.ring != ring:
             raise ValueError("all generators must belong to the same polynomial ring")
-    if not ring.domain.is_Field:
-        raise ValueError(f"Groebner bases need a field of coefficients, got {ring.domain}")
+    if not ring.domain.is_QQ:  # cofactor expansion relies on numerator/denominator of rationals
+        raise ValueError(f"Groebner bases here are over QQ, got coefficients in {ring.domain}")
     ctx = _Context(ring, deadline)
     ctx.check_deadline()
     run = _Run(ctx, track_cofactors)
@@ -439,8 +440,39 @@ def _add_product(
                     del acc[m]
 
 
+def _integer_form(poly: dict[Monom, Any]) -> tuple[dict[Monom, int], int]:
+    """``poly`` as (integer polynomial, positive denominator)."""
+    den = 1
+    for c in poly.values():
+        den = lcm(den, int(c.denominator))
+    return {m: int(c.numerator) * (den // int(c.denominator)) for m, c in poly.items()}, den
+
+
+def _add_scaled_product(
+    acc: dict[Monom, int], left: dict[Monom, int], scale: int, right: dict[Monom, int], ctx: _Context
+) -> None:
+    """acc += scale * left * right over the integers, in place."""
+    get = acc.get
+    deadline = ctx.deadline
+    for row, (lm, lc) in enumerate(left.items()):
+        if deadline is not None and row % 16 == 15 and time.monotonic() > deadline:
+            raise GroebnerTimeout("Groebner basis computation passed its deadline")
+        lc *= scale
+        for rm, rc in right.items():
+            m = tuple(map(add, lm, rm))
+            new = get(m, 0) + lc * rc
+            if new:
+                acc[m] = new
+            else:
+                del acc[m]
+
+
 def _expand_cofactors(run: _Run, final: list[int], count: int) -> tuple[tuple[PolyElement, ...], ...]:
-    """Expand the recipes reachable from ``final`` into cofactor vectors over the input generators."""
+    """Expand the recipes reachable from ``final`` into cofactor vectors over the input generators.
+
+    Vectors are kept as (integer polynomials, one common denominator): products of Python integers are
+    several times cheaper than products of rationals, and cofactors can have thousands of terms.
+    """
     ctx = run.ctx
     needed: set[int] = set()
     stack = list(final)
@@ -450,20 +482,46 @@ def _expand_cofactors(run: _Run, final: list[int], count: int) -> tuple[tuple[Po
             continue
         needed.add(k)
         stack.extend(src for src, _ in run.recipes[k] if src >= 0 and src not in needed)
-    vectors: dict[int, list[dict[Monom, Any]]] = {}
+    zero_monom = ctx.ring.zero_monom
+    unit = {zero_monom: 1}
+    vectors: dict[int, tuple[list[dict[Monom, int]], int]] = {}
     for k in sorted(needed):  # a recipe only refers to earlier polynomials
         ctx.check_deadline()
-        acc: list[dict[Monom, Any]] = [{} for _ in range(count)]
+        parts = []
+        common = 1
         for src, mult in run.recipes[k]:
+            numerators, den = _integer_form(mult)
+            if src >= 0:
+                den *= vectors[src][1]
+            common = lcm(common, den)
+            parts.append((src, numerators, den))
+        acc: list[dict[Monom, int]] = [{} for _ in range(count)]
+        for src, numerators, den in parts:
+            scale = common // den
             if src < 0:
-                _add_product(acc[~src], mult, {ctx.ring.zero_monom: ctx.one}, ctx)
+                _add_scaled_product(acc[~src], numerators, scale, unit, ctx)
             else:
-                for j, part in enumerate(vectors[src]):
+                for j, part in enumerate(vectors[src][0]):
                     if part:
-                        _add_product(acc[j], mult, part, ctx)
-        vectors[k] = acc
+                        _add_scaled_product(acc[j], numerators, scale, part, ctx)
+        divisor = common
+        for part in acc:
+            for value in part.values():
+                divisor = gcd(divisor, value)
+                if divisor == 1:
+                    break
+            if divisor == 1:
+                break
+        if divisor != 1:
+            acc = [{m: v // divisor for m, v in part.items()} for part in acc]
+        vectors[k] = (acc, common // divisor)
     ring = ctx.ring
-    return tuple(tuple(ring.dtype(part) for part in vectors[k]) for k in final)
+    domain = ring.domain
+    result = []
+    for k in final:
+        acc, den = vectors[k]
+        result.append(tuple(ring.dtype({m: domain(v, den) for m, v in part.items()}) for part in acc))
+    return tuple(result)
 
 
 # ------------------------------------------------------------------------------------ division, membership
