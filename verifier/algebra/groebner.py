@@ -418,28 +418,6 @@ def _interreduce(run: _Run) -> list[int]:
     return final
 
 
-def _add_product(
-    acc: dict[Monom, Any], left: dict[Monom, Any], right: dict[Monom, Any], ctx: _Context
-) -> None:
-    """acc += left * right, in place (checks the deadline every few rows: products can be large)."""
-    get = acc.get
-    deadline = ctx.deadline
-    for row, (lm, lc) in enumerate(left.items()):
-        if deadline is not None and row % 16 == 15 and time.monotonic() > deadline:
-            raise GroebnerTimeout("Groebner basis computation passed its deadline")
-        for rm, rc in right.items():
-            m = tuple(map(add, lm, rm))
-            old = get(m)
-            if old is None:
-                acc[m] = lc * rc
-            else:
-                new = old + lc * rc
-                if new:
-                    acc[m] = new
-                else:
-                    del acc[m]
-
-
 def _integer_form(poly: dict[Monom, Any]) -> tuple[dict[Monom, int], int]:
     """``poly`` as (integer polynomial, positive denominator)."""
     den = 1
@@ -574,12 +552,21 @@ def membership_cofactors(
     if remainder:
         return None
     ctx = _Context(ring, deadline)
-    acc: list[dict[Monom, Any]] = [{} for _ in range(count)]
+    # Integer arithmetic with one common denominator, as in _expand_cofactors.
+    products = []
+    common = 1
     for q, row in zip(quotients, result.cofactors):
         if not q:
             continue
         ctx.check_deadline()
+        q_int, q_den = _integer_form(q)
         for j, part in enumerate(row):
             if part:
-                _add_product(acc[j], q, part, ctx)
-    return tuple(ring.dtype(part) for part in acc)
+                part_int, part_den = _integer_form(part)
+                common = lcm(common, q_den * part_den)
+                products.append((j, q_int, part_int, q_den * part_den))
+    acc: list[dict[Monom, int]] = [{} for _ in range(count)]
+    for j, q_int, part_int, den in products:
+        _add_scaled_product(acc[j], q_int, common // den, part_int, ctx)
+    domain = ring.domain
+    return tuple(ring.dtype({m: domain(v, common) for m, v in part.items()}) for part in acc)
