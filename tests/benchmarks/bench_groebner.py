@@ -66,6 +66,8 @@ SYSTEMS: list[tuple[str, Callable[[], list[PolyElement]]]] = [
     ("cyclic-4 lex", lambda: cyclic(4, lex)),
     ("katsura-3 grevlex", lambda: katsura(3)),
     ("katsura-4 grevlex", lambda: katsura(4)),
+    ("katsura-5 grevlex", lambda: katsura(5)),
+    ("cyclic-5 grevlex", lambda: cyclic(5)),
     ("katsura-3 lex", lambda: katsura(3, lex)),
     ("three quadrics lex (CLO)", three_quadrics),
     ("three quadrics grevlex (CLO)", lambda: three_quadrics(grevlex)),
