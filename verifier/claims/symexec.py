@@ -565,7 +565,7 @@ class Executor:
             if stmt.value is None:
                 alternatives = [(state, NONE)]
             else:
-                alternatives = self.eval(stmt.value, state, frame)
+                alternatives = self.symbolic_value(stmt.value, state, frame)
             for after, value in alternatives:
                 self._record(stmt, state, after, value, frame)
                 outcomes.append(Outcome(after, "return", value, line=line))
@@ -602,7 +602,7 @@ class Executor:
                 current = state.get(target)
                 if isinstance(current, Seq) and current.kind == "list":
                     outcomes = []
-                    for after, value in self.eval(node.args[0].value, state, frame):
+                    for after, value in self.symbolic_value(node.args[0].value, state, frame):
                         updated = Seq(current.items + (value,), "list", current.ident, current.owner)
                         outcomes.append(Outcome(self._replace_list(after, current, updated, frame, line), "next"))
                     return outcomes
@@ -611,7 +611,7 @@ class Executor:
                 if isinstance(receiver, cst.Name) and isinstance(state.get(receiver.value), Seq):
                     raise Stuck(f"the in-place method call {_spelling(func)}(...) at line {line} is not supported")
             outcomes = []
-            for after, _ in self.eval(node, state, frame):
+            for after, _ in self.symbolic_value(node, state, frame):
                 for arg in node.args:
                     if isinstance(arg.value, cst.Name) and isinstance(after.get(arg.value.value), Seq):
                         bound = after.get(arg.value.value)
@@ -642,7 +642,7 @@ class Executor:
     def _assign_alternatives(self, stmt: cst.CSTNode, targets: Sequence[cst.BaseExpression],
                              value_node: cst.BaseExpression, state: State, frame: Frame) -> list[Outcome]:
         outcomes = []
-        for after, value in self.eval(value_node, state, frame):
+        for after, value in self.symbolic_value(value_node, state, frame):
             self._record(stmt, state, after, value, frame)
             current = after
             for target in targets:
@@ -693,7 +693,7 @@ class Executor:
     def _constant_index(self, node: cst.Subscript, state: State, frame: Frame) -> int | None:
         if len(node.slice) != 1 or not isinstance(node.slice[0].slice, cst.Index):
             return None
-        alternatives = self.eval(node.slice[0].slice.value, state, frame)
+        alternatives = self.symbolic_value(node.slice[0].slice.value, state, frame)
         if len(alternatives) != 1:
             return None
         value = alternatives[0][1]
@@ -705,8 +705,8 @@ class Executor:
         line = frame.module.line(stmt)
         op = _AUG_OPERATORS.get(type(stmt.operator))
         outcomes = []
-        for after, right in self.eval(stmt.value, state, frame):
-            for after2, left in self.eval(stmt.target, after, frame):
+        for after, right in self.symbolic_value(stmt.value, state, frame):
+            for after2, left in self.symbolic_value(stmt.target, after, frame):
                 if op is None:
                     value: Value = Unknown(f"the operator {stmt.operator.__class__.__name__} at line {line} "
                                            "is not supported")
@@ -770,7 +770,7 @@ class Executor:
     def _iteration_values(self, node: cst.BaseExpression, state: State, frame: Frame,
                           line: int) -> list[tuple[State, list[Value]]]:
         result = []
-        for after, value in self.eval(node, state, frame, iterable=True):
+        for after, value in self.symbolic_value(node, state, frame, iterable=True):
             if isinstance(value, Seq):
                 result.append((after, list(value.items)))
             elif isinstance(value, Unknown):
@@ -800,7 +800,7 @@ class Executor:
         if isinstance(node, cst.Name) and node.value in ("True", "False") and state.get(node.value) is None:
             return [state] if (node.value == "True") == want else []
         states = []
-        for after, value in self.eval(node, state, frame):
+        for after, value in self.symbolic_value(node, state, frame):
             states.extend(self._truth_of_value(value, after, want, line, frame))
         return states
 
@@ -820,7 +820,7 @@ class Executor:
         operators = [c.operator for c in node.comparisons]
         paths: list[tuple[State, list[Value]]] = [(state, [])]
         for operand in operands:
-            paths = [(after, values + [value]) for s, values in paths for after, value in self.eval(operand, s, frame)]
+            paths = [(after, values + [value]) for s, values in paths for after, value in self.symbolic_value(operand, s, frame)]
         result: list[State] = []
         for s, values in paths:
             result.extend(self._chain_truth(values, operators, s, want, line))
@@ -882,7 +882,7 @@ class Executor:
 
     # -- expressions
 
-    def eval(self, node: cst.BaseExpression, state: State, frame: Frame,
+    def symbolic_value(self, node: cst.BaseExpression, state: State, frame: Frame,
              iterable: bool = False) -> list[tuple[State, Value]]:
         """Every (path state, value) ``node`` can have; the env never changes, conditions may be added."""
         module = frame.module
@@ -905,8 +905,8 @@ class Executor:
         if isinstance(node, cst.BinaryOperation):
             op = _BIN_OPERATORS.get(type(node.operator))
             result = []
-            for s1, left in self.eval(node.left, state, frame):
-                for s2, right in self.eval(node.right, s1, frame):
+            for s1, left in self.symbolic_value(node.left, state, frame):
+                for s2, right in self.symbolic_value(node.right, s1, frame):
                     if op is None:
                         result.append((s2, self._other_binary(node, left, right, line)))
                     else:
@@ -914,15 +914,15 @@ class Executor:
             return result
         if isinstance(node, cst.UnaryOperation):
             result = []
-            for s1, operand in self.eval(node.expression, state, frame):
+            for s1, operand in self.symbolic_value(node.expression, state, frame):
                 result.append((s1, self._bounded(self._unary(node, operand, line), line)))
             return result
         if isinstance(node, cst.IfExp):
             result = []
             for s in self.truth(node.test, state, frame, True):
-                result.extend(self.eval(node.body, s, frame))
+                result.extend(self.symbolic_value(node.body, s, frame))
             for s in self.truth(node.test, state, frame, False):
-                result.extend(self.eval(node.orelse, s, frame))
+                result.extend(self.symbolic_value(node.orelse, s, frame))
             return result
         if isinstance(node, (cst.Tuple, cst.List)):
             kind = "tuple" if isinstance(node, cst.Tuple) else "list"
@@ -930,7 +930,7 @@ class Executor:
             for el in node.elements:
                 if isinstance(el, cst.StarredElement):
                     return [(state, Unknown(f"a starred element at line {line} is not supported"))]
-                paths = [(s2, items + (v,)) for s, items in paths for s2, v in self.eval(el.value, s, frame)]
+                paths = [(s2, items + (v,)) for s, items in paths for s2, v in self.symbolic_value(el.value, s, frame)]
             ident = self._new_ident() if kind == "list" else 0
             return [(s, Seq(items, kind, ident, frame.ident if kind == "list" else 0)) for s, items in paths]
         if isinstance(node, cst.Call):
@@ -989,7 +989,7 @@ class Executor:
         self._constant_busy.add(key)
         try:
             frame = Frame(module, None, 0, (), self._new_ident())
-            alternatives = self.eval(nodes[0], State(()), frame)
+            alternatives = self.symbolic_value(nodes[0], State(()), frame)
         except Stuck as exc:
             alternatives = [(State(()), Unknown(exc.reason))]
         finally:
@@ -1018,7 +1018,7 @@ class Executor:
                 return [(state, self._global(attr, info, line))]
             return [(state, Var(dotted or attr))]
         result = []
-        for after, base in self.eval(node.value, state, frame):
+        for after, base in self.symbolic_value(node.value, state, frame):
             if isinstance(base, Var):
                 result.append((after, Var(f"{base.name}.{attr}")))
             elif isinstance(base, Opaque):
@@ -1061,7 +1061,7 @@ class Executor:
 
     def _subscript(self, node: cst.Subscript, state: State, frame: Frame, line: int) -> list[tuple[State, Value]]:
         result = []
-        for after, base in self.eval(node.value, state, frame):
+        for after, base in self.symbolic_value(node.value, state, frame):
             if isinstance(base, Unknown):
                 result.append((after, base))
                 continue
@@ -1071,7 +1071,7 @@ class Executor:
                     if not isinstance(element.slice, cst.Index):
                         indices = None
                         break
-                    alts = self.eval(element.slice.value, after, frame)
+                    alts = self.symbolic_value(element.slice.value, after, frame)
                     if len(alts) != 1 or not _is_int(alts[0][1]):
                         indices = None
                         break
@@ -1092,7 +1092,7 @@ class Executor:
             if isinstance(element, cst.Slice):
                 result.append((after, self._slice(base, element, after, frame, line)))
                 continue
-            for after2, index in self.eval(element.value, after, frame):
+            for after2, index in self.symbolic_value(element.value, after, frame):
                 if not _is_int(index):
                     result.append((after2, Unknown(f"a subscript with a non-constant index at line {line} "
                                                    "is not supported")))
@@ -1118,7 +1118,7 @@ class Executor:
             if part is None:
                 bounds.append(None)
                 continue
-            alts = self.eval(part, state, frame)
+            alts = self.symbolic_value(part, state, frame)
             if len(alts) != 1 or not _is_int(alts[0][1]):
                 return Unknown(f"a slice with non-constant bounds at line {line} is not supported")
             bounds.append(int(alts[0][1].value))  # type: ignore[union-attr]
@@ -1303,7 +1303,7 @@ class Executor:
             receiver_node = func.value  # type: ignore[union-attr]
             attr = func.attr.value  # type: ignore[union-attr]
             result = []
-            for after, receiver in self.eval(receiver_node, state, frame):
+            for after, receiver in self.symbolic_value(receiver_node, state, frame):
                 if isinstance(receiver, Var):
                     name = f"{receiver.name}.{attr}"
                     result.extend(self._opaque(name, node, after, frame, line, prefix=()))
@@ -1413,7 +1413,7 @@ class Executor:
                 raise Stuck(f"`**` arguments at line {line} are not supported")
             new_paths = []
             for s, positional, keywords in paths:
-                for after, value in self.eval(arg.value, s, frame):
+                for after, value in self.symbolic_value(arg.value, s, frame):
                     if arg.star == "*":
                         if not isinstance(value, Seq):
                             raise Stuck(f"`*` arguments at line {line} are not supported here")
@@ -1671,7 +1671,7 @@ class Executor:
 
     def _default(self, node: cst.BaseExpression, ref: FunctionRef, line: int) -> Value:
         frame = Frame(ref.module, None, 0, (), self._new_ident())
-        alternatives = self.eval(node, State(()), frame)
+        alternatives = self.symbolic_value(node, State(()), frame)
         if len(alternatives) != 1 or alternatives[0][0].conditions:
             return Unknown(f"the default value of a parameter of {ref.qualname} is not supported")
         return alternatives[0][1]
