@@ -376,3 +376,14 @@ def test_constant_definitions_reach_inside_functions(text):
 
 def test_constant_definitions_keep_false_claims_false():
     assert_refuted("exp(x) == 2 given x == 0")
+
+
+def test_a_guard_that_zeroes_a_denominator_is_a_vacuous_path():
+    # the path `if s == 0: return 0` of a guarded a/s (common practice)
+    v = verdict_of("0 == a/s given s == 0")
+    assert v.verdict == "proved" and v.obligations[0].vacuous
+
+
+def test_denominators_that_cancel_completely():
+    assert_proved("(b/a)*(1/b) == 1/a")
+    assert_proved("(b/a)*(c/b) == c/a")

@@ -761,3 +761,31 @@ def test_module_values_changed_at_top_level_are_not_constants(tmp_path, monkeypa
     f, g = claims
     assert f.problem.verdict == "inconclusive" and "TABLE" in f.problem.message
     assert g.problem is None
+
+
+def test_a_parameter_named_pi_is_that_parameter_not_the_number(tmp_path, monkeypatch):
+    from verifier.algebra.decide import Limits, decide
+
+    claims = claims_in(tmp_path, monkeypatch, """
+        # idealcheck: returns 2*pi
+        def twice(pi):
+            return pi + pi
+
+
+        def area(r, pi):
+            a = pi * r * r  # idealcheck: == pi*r**2
+            return a
+        """)
+    for claim in claims:
+        assert PI not in (claim.obligations[0].left, claim.obligations[0].right)
+        assert decide(claim, Limits(timeout=10)).verdict == "proved"
+
+
+def test_yield_is_reported_with_its_line(tmp_path, monkeypatch):
+    claim = only(claims_in(tmp_path, monkeypatch, """
+        # idealcheck: returns x
+        def gen(x):
+            yield x
+        """))
+    assert claim.problem is not None and claim.problem.verdict == "inconclusive"
+    assert "yield" in claim.problem.message and "line 4" in claim.problem.message

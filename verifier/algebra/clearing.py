@@ -64,6 +64,8 @@ def cleared_membership(tr: Translation, *, deadline: float | None) -> tuple[Poly
     current = tr.difference
     scale = ring.one  # f == current * scale + sum(cofactors * generators) at every step
     for position, index, u in pairs:
+        if not current:
+            break  # everything cleared already: (b/a)*(1/b) == 1/a
         parts = _split_powers(current, index)
         top = max(parts)
         if top == 0:

@@ -178,6 +178,8 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
               "sides differ was found")
     if _has_opaque(tr):
         reason += "; the difference involves calls the tool cannot see into"
+        if notes:
+            reason += " (" + "; ".join(notes) + ")"
     elif tr.sign_conditions or any(a.kind == "radical" for a in tr.aux):
         reason += "; deciding it may need sign reasoning (inequalities, principal square roots)"
     else:

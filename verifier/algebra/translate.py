@@ -680,7 +680,18 @@ def _positive_variables(conditions: Sequence[Condition]) -> set[str]:
 
 def translate(obligation: Obligation) -> Translation:
     """Translate one obligation; raises TranslationError for what cannot be represented."""
-    obligation = _substitute_constants(obligation)
+    substituted = _substitute_constants(obligation)
+    if substituted is not obligation:
+        try:
+            return _translate(substituted)
+        except TranslationError:
+            # e.g. a/s on the path where s == 0: without the substitution, the inverse of s and s == 0
+            # make the conditions contradictory, which the decision procedure proves vacuously
+            pass
+    return _translate(obligation)
+
+
+def _translate(obligation: Obligation) -> Translation:
     exprs: list[Expr] = [obligation.left, obligation.right]
     for cond in obligation.conditions:
         exprs += [cond.left, cond.right]

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import ast
 import re
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import libcst as cst
 
@@ -17,6 +17,7 @@ from verifier.claims.comments import CommentClaim
 from verifier.claims.expression import error_claim, expression_claims
 from verifier.claims.language import ClaimSyntaxError, ParsedClaim, parse_claim_text
 from verifier.claims.model import (
+    PI,
     BinOp,
     Call,
     Claim,
@@ -67,6 +68,32 @@ class _StatementSite:
     function: FunctionRef | None
     line: int
     loops: tuple[tuple[int, int], ...]  # line ranges of the for loops around it
+
+
+def _replace_pi(expr: Expr) -> Expr:
+    if expr == PI:
+        return Var("pi")
+    if isinstance(expr, BinOp):
+        return BinOp(expr.op, _replace_pi(expr.left), _replace_pi(expr.right))
+    if isinstance(expr, Neg):
+        return Neg(_replace_pi(expr.operand))
+    if isinstance(expr, Pow):
+        return Pow(_replace_pi(expr.base), expr.exponent)
+    if isinstance(expr, Call):
+        return Call(expr.function, tuple(_replace_pi(a) for a in expr.args))
+    if isinstance(expr, Opaque):
+        return Opaque(expr.name, tuple(_replace_pi(a) for a in expr.args))
+    return expr
+
+
+def _pi_as_variable(parsed: ParsedClaim) -> ParsedClaim:
+    """The claim with ``pi`` read as the program's own variable of that name rather than the number."""
+    return replace(
+        parsed,
+        sides=tuple(_replace_pi(side) for side in parsed.sides),
+        conditions=tuple(replace(c, left=_replace_pi(c.left), right=_replace_pi(c.right))
+                         for c in parsed.conditions),
+    )
 
 
 def extract_python(path: str, text: str, comments: list[CommentClaim], context: ExtractionContext) -> list[Claim]:
@@ -254,6 +281,8 @@ class _FileReader:
         outcomes = executor.run_function(ref)
         paths = self._returned(outcomes, name)
         obligations: list[Obligation] = []
+        if "pi" in positional_parameters(ref.node):
+            parsed = _pi_as_variable(parsed)  # a parameter named pi: the claim's pi is that parameter
         if parsed.form == "returns":
             # EXPR is in the parameters; a module-level constant it names means that constant's value
             params = State(tuple((p, Var(p)) for p in positional_parameters(ref.node)))
@@ -374,6 +403,8 @@ class _FileReader:
         if not visits:
             raise _ClaimProblem("inconclusive", f"no path of {site.function.qualname} reaches the statement at "
                                                 f"line {site.line}")
+        if any(visit.state.get("pi") is not None for visit in visits):
+            parsed = _pi_as_variable(parsed)  # a local or parameter named pi: the claim's pi is that name
         target = parsed.sides[0] if len(parsed.sides) == 1 else None
         obligations: list[Obligation] = []
         what = "the statement"

@@ -593,6 +593,9 @@ class Executor:
         line = frame.module.line(stmt)
         if isinstance(node, (cst.SimpleString, cst.ConcatenatedString, cst.FormattedString, cst.Ellipsis)):
             return [Outcome(state, "next")]  # docstrings and `...`
+        if isinstance(node, (cst.Yield, cst.Await)):
+            word = "yield" if isinstance(node, cst.Yield) else "await"
+            raise Stuck(f"`{word}` at line {line} is not supported (generators and coroutines are not followed)")
         if isinstance(node, cst.Call):
             # `out.append(x)` on a local list is followed; other calls may change their list arguments
             func = node.func
