@@ -789,3 +789,39 @@ def test_yield_is_reported_with_its_line(tmp_path, monkeypatch):
         """))
     assert claim.problem is not None and claim.problem.verdict == "inconclusive"
     assert "yield" in claim.problem.message and "line 4" in claim.problem.message
+
+
+def test_nested_subscript_assignment_follows_a_local_matrix(tmp_path, monkeypatch):
+    from verifier.algebra.decide import Limits, decide
+
+    claims = claims_in(tmp_path, monkeypatch, """
+        # idealcheck: returns (a*c, a + c)
+        def fill(a, c):
+            m = [[0, 0], [0, 0]]
+            m[0][1] = a * c
+            m[1][0] += a
+            m[1][0] += c
+            return m[0][1], m[1][0]
+
+
+        # idealcheck: returns a
+        def aliased_row(a):
+            row = [0, 0]
+            m = [row, [0, 0]]
+            m[0][0] = a
+            return row[0]
+
+
+        # idealcheck: returns a
+        def shared_row(a):
+            row = [0, 0]
+            m = [row, row]
+            m[0][0] = a
+            return m[1][0]
+        """)
+    fill, aliased, shared = claims
+    assert decide(fill, Limits(timeout=10)).verdict == "proved"
+    # a change through one holder of a row would have to show through the other: not followed
+    for claim in (aliased, shared):
+        assert claim.problem is not None and claim.problem.verdict == "inconclusive", claim
+        assert "line" in claim.problem.message

@@ -676,9 +676,48 @@ class Executor:
                 updated = Seq(tuple(items), current.kind, current.ident, current.owner)
                 return self._replace_list(state, current, updated, frame, line)
             raise Stuck(f"assignment to a subscript at line {line} is not supported")
+        if (isinstance(target, cst.Subscript) and isinstance(target.value, cst.Subscript)
+                and isinstance(target.value.value, cst.Name)):
+            return self._assign_nested(target, value, state, frame, line)
         if isinstance(target, cst.Attribute):
             raise Stuck(f"attribute assignment at line {line} is not supported")
         raise Stuck(f"assignment to {type(target).__name__} at line {line} is not supported")
+
+    def _assign_nested(self, target: cst.Subscript, value: Value, state: State, frame: Frame, line: int) -> State:
+        """``m[i][j] = value`` on a local list of lists: the row is rebuilt and the outer list replaced.
+
+        Only when the row is held by the outer list alone, at that one place (no other name, no other
+        element): otherwise a change through one holder would have to show through the others.
+        """
+        outer_node = target.value
+        assert isinstance(outer_node, cst.Subscript) and isinstance(outer_node.value, cst.Name)
+        outer_name = outer_node.value.value
+        outer = state.get(outer_name)
+        row_index = self._constant_index(outer_node, state, frame)
+        column = self._constant_index(target, state, frame)
+        unsupported = Stuck(f"assignment to a nested subscript at line {line} is not supported")
+        if not (isinstance(outer, Seq) and outer.kind in MUTABLE and isinstance(row_index, int)
+                and isinstance(column, int) and -len(outer.items) <= row_index < len(outer.items)):
+            raise unsupported
+        row = outer.items[row_index]
+        if not (isinstance(row, Seq) and row.kind in MUTABLE and row.owner == frame.ident):
+            raise unsupported
+        if not -len(row.items) <= column < len(row.items):
+            raise Stuck(f"index {column} out of range at line {line}")
+        held_elsewhere = any(name != outer_name and (_contains_list(held, row.ident) or
+                                                     (isinstance(held, Seq) and held.ident == row.ident))
+                             for name, held in state.env)
+        position = row_index % len(outer.items)
+        twice = any(k != position and ((isinstance(item, Seq) and item.ident == row.ident)
+                                       or _contains_list(item, row.ident))
+                    for k, item in enumerate(outer.items))
+        if held_elsewhere or twice:
+            raise Stuck(f"changing a row that another value holds at line {line} is not supported")
+        items = list(row.items)
+        items[column] = value
+        rows = list(outer.items)
+        rows[position] = Seq(tuple(items), row.kind, row.ident, row.owner)
+        return self._replace_list(state, outer, Seq(tuple(rows), outer.kind, outer.ident, outer.owner), frame, line)
 
     def _unpack(self, value: Value, count: int, line: int) -> list[Value]:
         if isinstance(value, Seq):
