@@ -32,16 +32,6 @@ def parse_range(text: str) -> tuple[str | None, float, float]:
     return name, low, high
 
 
-def _samples(text: str) -> int:
-    try:
-        value = int(text)
-    except ValueError:
-        raise argparse.ArgumentTypeError(f"--accuracy-samples wants a whole number, got {text!r}") from None
-    if value < 1:
-        raise argparse.ArgumentTypeError(f"--accuracy-samples wants a number >= 1, got {text!r}")
-    return value
-
-
 def _seed(text: str) -> int:
     try:
         return int(text)
@@ -50,10 +40,12 @@ def _seed(text: str) -> int:
 
 
 def add_accuracy_options(parser: argparse.ArgumentParser) -> None:
+    from verifier.cli import _positive_int
+
     group = parser.add_argument_group("floating-point accuracy (a sampled estimate, not a bound)")
     group.add_argument("--accuracy", action="store_true",
                        help="for proved claims, estimate the rounding error of each side in IEEE double")
-    group.add_argument("--accuracy-samples", type=_samples, metavar="N",
+    group.add_argument("--accuracy-samples", type=_positive_int("--accuracy-samples"), metavar="N",
                        help=f"points per claim (config: accuracy.samples; default {DEFAULT_SAMPLES})")
     group.add_argument("--accuracy-seed", type=_seed, metavar="S", help="random seed (config: accuracy.seed; default 0)")
     group.add_argument("--accuracy-range", type=parse_range, action="append", default=[], metavar="[NAME=]LO:HI",

@@ -56,10 +56,9 @@ def run_audit_command(args: argparse.Namespace) -> int:
     from verifier import __version__
     from verifier.audit import AuditError, plan_audit, run_audit
     from verifier.claims.model import ExtractionContext
-    from verifier.cli import EXIT_FINDINGS, EXIT_OK, UsageError, load_config_or_exit
+    from verifier.cli import EXIT_FINDINGS, EXIT_OK, UsageError, load_config_or_exit, run_options
     from verifier.report import fails_run, render
     from verifier.report.audit_text import render_audit_text
-    from verifier.runner import RunOptions
 
     cwd = Path.cwd()
     config = load_config_or_exit(args, cwd)
@@ -75,13 +74,7 @@ def run_audit_command(args: argparse.Namespace) -> int:
         plan = plan_audit(args.optimized, args.against, context, given, cwd=str(cwd))
     except AuditError as exc:
         raise UsageError(str(exc)) from exc
-    options = RunOptions(
-        timeout=args.timeout if args.timeout is not None else float(getattr(config, "timeout", 10.0)),
-        memory_mb=args.memory_mb if args.memory_mb is not None else int(getattr(config, "memory_mb", 2048)),
-        jobs=args.jobs if args.jobs is not None else getattr(config, "jobs", None),
-        progress=sys.stderr.isatty(),
-        in_process=args.in_process,
-    )
+    options = run_options(args, config)
     result = run_audit(plan, options)
     verdicts = list(result.verdicts)
     table = render_audit_text(result)

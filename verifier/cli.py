@@ -143,9 +143,22 @@ def config_start(paths: Sequence[str] | None, cwd: Path) -> Path:
     return cwd
 
 
+def run_options(args: argparse.Namespace, config: Any) -> Any:
+    """The worker limits of a run: the command line over the config over the defaults."""
+    from verifier.runner import RunOptions
+
+    return RunOptions(
+        timeout=args.timeout if args.timeout is not None else float(getattr(config, "timeout", 10.0)),
+        memory_mb=args.memory_mb if args.memory_mb is not None else int(getattr(config, "memory_mb", 2048)),
+        jobs=args.jobs if args.jobs is not None else getattr(config, "jobs", None),
+        progress=sys.stderr.isatty(),
+        in_process=args.in_process,
+    )
+
+
 def run_check(args: argparse.Namespace) -> int:
     from verifier.report import fails_run, render
-    from verifier.runner import CheckRequest, RunOptions, check
+    from verifier.runner import CheckRequest, check
 
     if args.staged and args.since:
         raise UsageError("--staged and --since cannot be combined")
@@ -156,13 +169,7 @@ def run_check(args: argparse.Namespace) -> int:
             raise UsageError(f"PATH: no such file or folder: {', '.join(missing)}")
     config = load_config_or_exit(args, config_start(args.paths, cwd))
     on_inconclusive = args.on_inconclusive or getattr(config, "on_inconclusive", "fail")
-    options = RunOptions(
-        timeout=args.timeout if args.timeout is not None else float(getattr(config, "timeout", 10.0)),
-        memory_mb=args.memory_mb if args.memory_mb is not None else int(getattr(config, "memory_mb", 2048)),
-        jobs=args.jobs if args.jobs is not None else getattr(config, "jobs", None),
-        progress=sys.stderr.isatty(),
-        in_process=args.in_process,
-    )
+    options = run_options(args, config)
     request = CheckRequest(
         config=config,
         cwd=str(cwd),
