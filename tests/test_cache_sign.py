@@ -91,3 +91,20 @@ def test_a_real_square_proof_survives_the_round_trip(tmp_path: Path) -> None:
     cache.entry_path(REAL_SQUARE).write_text(json.dumps(document), encoding="utf-8")
     loaded = cache.load(REAL_SQUARE)
     assert loaded is None or loaded.verdict != "proved"
+
+
+SHIFTED = _claim(6, "y == 5 given r > 1, r*r <= 1")
+
+
+def test_a_shifted_contradiction_survives_the_round_trip(tmp_path: Path) -> None:
+    verdict = decide(SHIFTED, Limits(timeout=20))
+    assert verdict.verdict == "proved" and verdict.obligations[0].certificate.shift_contradiction is not None
+    cache = _cache(tmp_path)
+    cache.store(SHIFTED, verdict)
+    loaded = cache.load(SHIFTED)
+    assert loaded is not None and loaded.verdict == "proved"
+    document = json.loads(cache.entry_path(SHIFTED).read_text(encoding="utf-8"))
+    document["obligations"][0]["certificate"]["shift_contradiction"]["bound_strict"] = False
+    cache.entry_path(SHIFTED).write_text(json.dumps(document), encoding="utf-8")
+    loaded = cache.load(SHIFTED)
+    assert loaded is None or loaded.verdict != "proved"

@@ -387,3 +387,35 @@ def test_a_guard_that_zeroes_a_denominator_is_a_vacuous_path():
 def test_denominators_that_cancel_completely():
     assert_proved("(b/a)*(1/b) == 1/a")
     assert_proved("(b/a)*(c/b) == c/a")
+
+
+@pytest.mark.parametrize("text", [
+    "x == 5 given r > 1, r*r <= 1",  # r > 1 makes r*r > 1 (common practice)
+    "x == 5 given r >= 2, r**3 - 8 < 0",
+    "x == 5 given r > 0, r**2 + r <= 0",
+])
+def test_shifted_bounds_make_branches_vacuous(text):
+    v = verdict_of(text)
+    assert v.verdict == "proved" and v.obligations[0].vacuous, v.reason
+    assert certificate_is_valid(v.obligations[0].certificate)
+    assert certificate_matches(v.claim, v.obligations)
+
+
+@pytest.mark.parametrize("text", [
+    "x == 5 given r >= 1, r*r <= 1",  # r == 1 satisfies both
+    "x == 5 given r > -1, r*r <= 1",
+])
+def test_shifted_bounds_that_leave_room_are_not_contradictions(text):
+    assert verdict_of(text).verdict == "refuted"
+
+
+def test_tampered_shift_certificate_is_rejected():
+    import dataclasses
+
+    v = verdict_of("x == 5 given r > 1, r*r <= 1")
+    cert = v.obligations[0].certificate
+    weaker = dataclasses.replace(cert.shift_contradiction, bound_strict=False)
+    assert not certificate_is_valid(dataclasses.replace(cert, shift_contradiction=weaker))
+    moved = dataclasses.replace(cert.shift_contradiction, shift="0")
+    assert not certificate_is_valid(dataclasses.replace(cert, shift_contradiction=moved))
+    assert not certificate_matches(claim_of("x == 5 given r >= 1, r*r <= 1"), v.obligations)

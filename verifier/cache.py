@@ -33,6 +33,7 @@ from verifier.algebra.verdict import (
     Certificate,
     ObligationResult,
     RealSquare,
+    ShiftContradiction,
     SignArgument,
     SignContradiction,
     Verdict,
@@ -108,6 +109,17 @@ def _certificate_to_json(cert: Certificate) -> dict[str, Any]:
             "nonnegative_cofactors": [_poly_to_json(c) for c in arg.nonnegative_cofactors],
             "nonnegative_symbols": list(arg.nonnegative_symbols),
             "hypotheses": [[_poly_to_json(h), lam] for h, lam in arg.hypotheses],
+        }
+    if cert.shift_contradiction is not None:
+        shifted = cert.shift_contradiction
+        data["shift_contradiction"] = {
+            "bound": _poly_to_json(shifted.bound),
+            "bound_strict": shifted.bound_strict,
+            "variable": shifted.variable,
+            "shift": shifted.shift,
+            "other": _poly_to_json(shifted.other),
+            "other_strict": shifted.other_strict,
+            "nonnegative_symbols": list(shifted.nonnegative_symbols),
         }
     if cert.real_square is not None:
         data["real_square"] = {
@@ -204,7 +216,24 @@ def _certificate_from_json(value: Any) -> Certificate | None:
         raise Invalid("one cofactor per generator")
     return Certificate(symbols, _poly_from_json(value.get("target"), width), power, generators, cofactors,
                        _sign_from_json(value.get("sign"), width), _contradiction_from_json(value.get("contradiction"), width),
-                       _real_square_from_json(value.get("real_square"), width))
+                       _real_square_from_json(value.get("real_square"), width),
+                       _shift_from_json(value.get("shift_contradiction"), width))
+
+
+def _shift_from_json(value: Any, width: int) -> ShiftContradiction | None:
+    if value is None:
+        return None
+    if not isinstance(value, dict):
+        raise Invalid("shift_contradiction must be an object")
+    return ShiftContradiction(
+        bound=_poly_from_json(value.get("bound"), width),
+        bound_strict=_bool(value.get("bound_strict")),
+        variable=_str(value.get("variable")),
+        shift=_str(value.get("shift")),
+        other=_poly_from_json(value.get("other"), width),
+        other_strict=_bool(value.get("other_strict")),
+        nonnegative_symbols=tuple(_str(s) for s in _list(value.get("nonnegative_symbols"))),
+    )
 
 
 def _real_square_from_json(value: Any, width: int) -> RealSquare | None:

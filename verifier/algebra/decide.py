@@ -23,6 +23,7 @@ from verifier.algebra.groebner import GroebnerTimeout, groebner_basis, membershi
 from verifier.algebra.sign import (
     certificate_is_valid,
     find_real_square,
+    find_shift_contradiction,
     find_sign_contradiction,
     find_sign_proof,
     nonnegative_symbols,
@@ -148,7 +149,8 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
                                    f"(LEFT - RIGHT)**{k} lies in the ideal of the conditions, so LEFT - RIGHT "
                                    "vanishes wherever they hold (radical membership)")
         _check_time(deadline)
-        contradiction = find_sign_contradiction(tr, basis_result, deadline=deadline)
+        contradiction = (find_sign_contradiction(tr, basis_result, deadline=deadline)
+                         or find_shift_contradiction(tr))
         if contradiction is not None:
             return _contradiction_result(tr, label, contradiction)
         real_square = (find_real_square(tr, basis_result, deadline=deadline)
@@ -166,7 +168,7 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
     else:
         normal_form = f
         _check_time(deadline)
-        contradiction = find_sign_contradiction(tr, None, deadline=deadline)
+        contradiction = find_sign_contradiction(tr, None, deadline=deadline) or find_shift_contradiction(tr)
         if contradiction is not None:
             return _contradiction_result(tr, label, contradiction)
     cnf = tr.printed(normal_form)
@@ -306,6 +308,13 @@ def certificate_matches(claim: Claim, results: Sequence[ObligationResult]) -> bo
             if not set(cert.sign.nonnegative_symbols) <= set(nonnegative_symbols(tr)):
                 return False
             if any(h not in known_signs for h, _lam in cert.sign.hypotheses):
+                return False
+        if cert.shift_contradiction is not None:
+            shifted = cert.shift_contradiction
+            known = {(poly_to_data(p), strict) for p, strict in tr.signs}
+            if ((shifted.bound, shifted.bound_strict) not in known
+                    or (shifted.other, shifted.other_strict) not in known
+                    or not set(shifted.nonnegative_symbols) <= set(nonnegative_symbols(tr))):
                 return False
         if cert.contradiction is not None:
             known = {(poly_to_data(p), strict) for p, strict in tr.signs}

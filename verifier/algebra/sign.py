@@ -23,7 +23,13 @@ from verifier.algebra.clearing import inverse_pairs
 from verifier.algebra.certificate import check_certificate, data_to_poly, make_certificate, poly_to_data
 from verifier.algebra.groebner import GroebnerResult, membership_cofactors, reduce
 from verifier.algebra.translate import Translation
-from verifier.algebra.verdict import Certificate, RealSquare, SignArgument, SignContradiction
+from verifier.algebra.verdict import (
+    Certificate,
+    RealSquare,
+    ShiftContradiction,
+    SignArgument,
+    SignContradiction,
+)
 
 
 def nonnegative_symbols(tr: Translation) -> tuple[str, ...]:
@@ -393,8 +399,93 @@ def check_real_square_certificate(cert: Certificate) -> bool:
         return False
 
 
+def _shifted_negation(other: PolyElement, index: int, shift: Fraction) -> PolyElement:
+    """-other with the generator ``index`` replaced by itself + shift (it then stands for t = v - shift)."""
+    ring = other.ring
+    v = ring.gens[index]
+    return -other.compose(v, v + ring.domain.convert(shift.numerator) / shift.denominator)
+
+
+def _shift_contradicts(q: PolyElement, index: int, bound_strict: bool, other_strict: bool,
+                       positive_index: set[int]) -> bool:
+    if not _sign_pattern_ok(q, positive_index | {index}):
+        return False
+    if other_strict:
+        return True
+    for monom, coeff in q.terms():
+        if coeff > 0 and sum(monom) == 0:
+            return True
+        if coeff > 0 and bound_strict and monom[index] > 0 and sum(monom) == monom[index]:
+            return True
+    return False
+
+
+def find_shift_contradiction(tr: Translation) -> Certificate | None:
+    """Sign hypotheses that contradict once a variable is shifted by its lower bound (see
+    ``ShiftContradiction``); the variable must not occur in any other nonnegative symbol's role."""
+    ring = tr.ring
+    symbols = [str(x) for x in ring.symbols]
+    positive = nonnegative_symbols(tr)
+    for bound, bound_strict in tr.signs:
+        terms = bound.terms()
+        linear = [(m, c) for m, c in terms if sum(m) == 1]
+        if len(linear) != 1 or linear[0][1] != 1 or any(sum(m) > 1 for m, _ in terms):
+            continue
+        index = linear[0][0].index(1)
+        shift = -_fraction(bound.coeff(1)) if len(terms) == 2 else Fraction(0)
+        if symbols[index] in positive and shift < 0:
+            continue  # the shift would lose the known sign of the variable itself
+        positive_index = {symbols.index(n) for n in positive if n != symbols[index]}
+        for other, other_strict in tr.signs:
+            if other == bound or other.degree(index) <= 0:
+                continue
+            q = _shifted_negation(other, index, shift)
+            if _shift_contradicts(q, index, bound_strict, other_strict, positive_index):
+                contradiction = ShiftContradiction(
+                    bound=poly_to_data(bound), bound_strict=bound_strict, variable=symbols[index],
+                    shift=_fraction_text(shift), other=poly_to_data(other), other_strict=other_strict,
+                    nonnegative_symbols=tuple(n for n in positive if n != symbols[index]),
+                )
+                generators = tuple(g.poly for g in tr.generators)
+                base = make_certificate(tuple(symbols), tr.difference, 1, generators,
+                                        tuple(ring.zero for _ in generators))
+                return Certificate(base.symbols, base.target, 1, base.generators, base.cofactors,
+                                   shift_contradiction=contradiction)
+    return None
+
+
+def check_shift_contradiction_certificate(cert: Certificate) -> bool:
+    arg = cert.shift_contradiction
+    if arg is None or cert.sign is not None or cert.contradiction is not None or cert.real_square is not None:
+        return False
+    try:
+        from sympy import QQ, Symbol
+        from sympy.polys.orderings import grevlex
+        from sympy.polys.rings import PolyRing
+
+        if arg.variable not in cert.symbols or arg.variable in arg.nonnegative_symbols:
+            return False
+        if any(s not in cert.symbols for s in arg.nonnegative_symbols):
+            return False
+        ring = PolyRing([Symbol(s) for s in cert.symbols], QQ, grevlex)
+        index = list(cert.symbols).index(arg.variable)
+        shift = _strict_fraction(arg.shift)
+        bound = data_to_poly(arg.bound, ring)
+        expected_bound = ring.gens[index] - QQ(shift.numerator, shift.denominator)
+        if bound != expected_bound:
+            return False
+        other = data_to_poly(arg.other, ring)
+        q = _shifted_negation(other, index, shift)
+        positive_index = {list(cert.symbols).index(s) for s in arg.nonnegative_symbols}
+        return _shift_contradicts(q, index, arg.bound_strict, arg.other_strict, positive_index)
+    except (ValueError, TypeError, ZeroDivisionError, IndexError):
+        return False
+
+
 def certificate_is_valid(cert: Certificate) -> bool:
     """The right re-check for each kind of certificate."""
+    if cert.shift_contradiction is not None:
+        return check_shift_contradiction_certificate(cert)
     if cert.real_square is not None:
         return check_real_square_certificate(cert)
     if cert.contradiction is not None:

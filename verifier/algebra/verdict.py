@@ -56,6 +56,26 @@ class SignContradiction:
 
 
 @dataclass(frozen=True)
+class ShiftContradiction:
+    """Two sign hypotheses that cannot hold together once a variable is shifted by its lower bound.
+
+    With ``bound`` = variable - shift (>= 0, or > 0 when strict) and ``other`` (>= 0 / > 0): writing the
+    variable as t + shift, ``-other`` becomes a polynomial in t whose terms have positive coefficients and
+    odd powers only of t and ``nonnegative_symbols``; so other <= 0, which fails when other is strict,
+    when that polynomial has a positive constant term, or when the bound is strict and it has a pure
+    power of t.  (``x > 1`` and ``x*x <= 1``: -(1 - (t + 1)**2) = t**2 + 2*t > 0.)
+    """
+
+    bound: PolyData
+    bound_strict: bool
+    variable: str
+    shift: str
+    other: PolyData
+    other_strict: bool
+    nonnegative_symbols: tuple[str, ...]
+
+
+@dataclass(frozen=True)
 class RealSquare:
     """``target**2 + remainder`` is in the ideal and ``remainder`` is >= 0 by its sign pattern (positive
     coefficients, odd powers only of ``nonnegative_symbols``): so target**2 <= 0, i.e. target == 0."""
@@ -79,6 +99,7 @@ class Certificate:
     sign: SignArgument | None = None
     contradiction: SignContradiction | None = None
     real_square: RealSquare | None = None
+    shift_contradiction: ShiftContradiction | None = None
 
 
 @dataclass(frozen=True)
