@@ -3,12 +3,14 @@
 For each obligation ``left == right`` under its conditions:
 1. without conditions, a random evaluation modulo a large prime refutes most false claims at once;
 2. the translation gives the difference f and the generators G (conditions and auxiliary equations);
-3. f reduces to 0 modulo a Groebner basis of G -> proved, with cofactors c such that f = sum c_i g_i
-   (method: expansion when no generator is needed, saturation when an inverse variable is, else ideal);
-   f**k reduces to 0 for a small k -> proved (radical);
-4. otherwise the counter-normal-form is shown, and the claim is refuted only if a real witness is found.
-A certificate is re-checked by plain expansion (``certificate.check_certificate``) before ``proved`` is
-returned; if that check fails the obligation is inconclusive, never proved.
+3. f in the ideal of G -> proved, with cofactors c such that f = sum c_i g_i (denominators cleared
+   first, then a Groebner basis of G; method: expansion when no generator is needed, saturation when an
+   inverse variable is, else ideal); f**k in it for a small k -> proved (radical);
+4. real reasoning (``sign.py``, method sign): contradictory sign hypotheses (vacuous), a real sum of
+   squares, the conjugate argument for principal roots;
+5. otherwise the counter-normal-form is shown, and the claim is refuted only if a real witness is found.
+Every certificate is re-checked without a Groebner basis (``sign.certificate_is_valid``) before
+``proved`` is returned; if that check fails the obligation is inconclusive, never proved.
 """
 from __future__ import annotations
 
@@ -134,6 +136,7 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
         cofactors = tuple(f * c * scale for c in one_cofactors)
         return _proved(tr, label, _method_of(tr, cofactors), 1, cofactors,
                        "the conditions cannot all hold (1 is in their ideal): proved vacuously", vacuous=True)
+    normal_form = f
     if basis_result is not None:
         cofactors = membership_cofactors(f, basis_result, deadline=deadline)
         if cofactors is not None:
@@ -148,11 +151,12 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
                     return _proved(tr, label, "radical", k, tuple(power_cofactors),
                                    f"(LEFT - RIGHT)**{k} lies in the ideal of the conditions, so LEFT - RIGHT "
                                    "vanishes wherever they hold (radical membership)")
-        _check_time(deadline)
-        contradiction = (find_sign_contradiction(tr, basis_result, deadline=deadline)
-                         or find_shift_contradiction(tr))
-        if contradiction is not None:
-            return _contradiction_result(tr, label, contradiction)
+    # real reasoning: hypotheses that cannot hold together first (the report then says "vacuously")
+    _check_time(deadline)
+    contradiction = find_sign_contradiction(tr, basis_result, deadline=deadline) or find_shift_contradiction(tr)
+    if contradiction is not None:
+        return _contradiction_result(tr, label, contradiction)
+    if basis_result is not None:
         real_square = (find_real_square(tr, basis_result, deadline=deadline)
                        if len(f.terms()) <= _RADICAL_TERM_LIMIT else None)
         if real_square is not None:
@@ -165,12 +169,6 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
                            "proved with the sign of a principal square root and the sign hypotheses: "
                            "(LEFT - RIGHT) times its conjugate lies in the ideal, and the conjugate "
                            "cannot vanish where LEFT - RIGHT does not")
-    else:
-        normal_form = f
-        _check_time(deadline)
-        contradiction = find_sign_contradiction(tr, None, deadline=deadline) or find_shift_contradiction(tr)
-        if contradiction is not None:
-            return _contradiction_result(tr, label, contradiction)
     cnf = tr.printed(normal_form)
     witness = find_witness(ob.left, ob.right, ob.conditions, deadline=deadline, seed=seed)
     if witness is not None:

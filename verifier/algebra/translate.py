@@ -6,8 +6,13 @@ Every construct that is not a polynomial gets a fresh variable and the equations
 - ``sin``/``cos`` of integer-linear combinations of angles: one (s, c) pair per base angle with
   ``s**2 + c**2 - 1``; the multiple-angle and addition formulas are expanded exactly;
 - ``exp`` of linear combinations: one e and its inverse per base quantity with ``e*ei - 1``;
-- ``log`` and opaque calls: one variable per distinct argument (nothing else is known about it).
-Each auxiliary variable is shown in the original variables when a polynomial is printed.
+- ``log`` and opaque calls: one variable per distinct argument (nothing else is known about it), except
+  that the logarithm of a product of variables with positive hypotheses splits into a sum;
+- ``pi``: an opaque constant whose sine and cosine at pi/n (n = 1, 2, 3, 4, 6) are known exactly;
+- a square root of a rational constant: one radical per prime of its square-free part.
+A condition ``v == constant`` is substituted into everything else first.  Radicands (>= 0) and log
+arguments (> 0) join the sign hypotheses.  Each auxiliary variable is shown in the original variables
+when a polynomial is printed.
 """
 from __future__ import annotations
 
