@@ -825,3 +825,16 @@ def test_nested_subscript_assignment_follows_a_local_matrix(tmp_path, monkeypatc
     for claim in (aliased, shared):
         assert claim.problem is not None and claim.problem.verdict == "inconclusive", claim
         assert "line" in claim.problem.message
+
+
+def test_random_numbers_are_not_opaque_pure_values(tmp_path, monkeypatch):
+    # two calls of random() are two different numbers: the difference is not provably zero
+    claim = only(claims_in(tmp_path, monkeypatch, """
+        import random
+
+        # idealcheck: returns 0
+        def noise():
+            return random.random() - random.random()
+        """))
+    assert claim.problem is not None and claim.problem.verdict == "inconclusive"
+    assert "line 6" in claim.problem.message

@@ -1469,6 +1469,11 @@ class Executor:
 
     def _opaque(self, name: str, node: cst.Call, state: State, frame: Frame, line: int,
                 prefix: tuple) -> list[tuple[State, Value]]:
+        if _impure(name):
+            # an opaque value stands for a pure function (same arguments, same value); random numbers,
+            # clocks and I/O are not, and treating them so could prove random() - random() == 0
+            return [(state, Unknown(f"the call {name}(...) at line {line} may give a different value each "
+                                    "time (random numbers, clocks, I/O) and is not followed"))]
         result = []
         for after, positional, keywords in self._arguments(node, state, frame, line):
             args = list(prefix) + positional
@@ -1840,6 +1845,17 @@ def _first_unknown(*values: Value) -> Unknown | None:
         if found is not None:
             return found
     return None
+
+
+_IMPURE_PREFIXES = ("random.", "np.random.", "numpy.random.", "time.", "os.", "sys.", "secrets.", "uuid.",
+                    "datetime.", "io.", "socket.", "subprocess.", "rng.", "self.rng.")
+_IMPURE_NAMES = frozenset({"random", "rand", "randn", "randint", "uniform", "normal", "gauss", "input", "open",
+                           "print", "time", "perf_counter", "monotonic", "next", "id", "hash"})
+
+
+def _impure(name: str) -> bool:
+    """Calls whose value may differ between two calls with the same arguments (by name, conservatively)."""
+    return name.startswith(_IMPURE_PREFIXES) or name.rsplit(".", 1)[-1] in _IMPURE_NAMES
 
 
 def _contains_list(value: Value, ident: int) -> bool:
