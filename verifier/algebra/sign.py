@@ -17,10 +17,17 @@ from __future__ import annotations
 from fractions import Fraction
 from typing import Sequence
 
+from sympy import QQ
 from sympy.polys.rings import PolyElement
 
 from verifier.algebra.clearing import inverse_pairs
-from verifier.algebra.certificate import check_certificate, data_to_poly, make_certificate, poly_to_data
+from verifier.algebra.certificate import (
+    certificate_ring,
+    check_certificate,
+    data_to_poly,
+    make_certificate,
+    poly_to_data,
+)
 from verifier.algebra.groebner import GroebnerResult, membership_cofactors, reduce
 from verifier.algebra.translate import Translation
 from verifier.algebra.verdict import (
@@ -200,11 +207,7 @@ def check_sign_certificate(cert: Certificate) -> bool:
             return False
         if any(s not in cert.symbols for s in arg.nonnegative_symbols):
             return False
-        from sympy import QQ, Symbol
-        from sympy.polys.orderings import grevlex
-        from sympy.polys.rings import PolyRing
-
-        ring = PolyRing([Symbol(s) for s in cert.symbols], QQ, grevlex)
+        ring = certificate_ring(cert.symbols)
         target = data_to_poly(cert.target, ring)
         multiplier = data_to_poly(arg.multiplier, ring)
         generators = [data_to_poly(g, ring) for g in cert.generators]
@@ -321,16 +324,12 @@ def check_contradiction_certificate(cert: Certificate) -> bool:
     if arg is None or cert.sign is not None:
         return False
     try:
-        from sympy import QQ, Symbol
-        from sympy.polys.orderings import grevlex
-        from sympy.polys.rings import PolyRing
-
         ratio, constant = Fraction(_strict_fraction(arg.ratio)), Fraction(_strict_fraction(arg.constant))
         if not arg.second and (ratio != 0 or arg.second_strict):
             return False
         if not _contradicts(arg.first_strict, arg.second_strict, ratio, constant):
             return False
-        ring = PolyRing([Symbol(s) for s in cert.symbols], QQ, grevlex)
+        ring = certificate_ring(cert.symbols)
         first = data_to_poly(arg.first, ring)
         second = data_to_poly(arg.second, ring) if arg.second else ring.zero
         generators = [data_to_poly(g, ring) for g in cert.generators]
@@ -379,13 +378,9 @@ def check_real_square_certificate(cert: Certificate) -> bool:
     if arg is None or cert.power != 2 or cert.sign is not None or cert.contradiction is not None:
         return False
     try:
-        from sympy import QQ, Symbol
-        from sympy.polys.orderings import grevlex
-        from sympy.polys.rings import PolyRing
-
         if any(s not in cert.symbols for s in arg.nonnegative_symbols):
             return False
-        ring = PolyRing([Symbol(s) for s in cert.symbols], QQ, grevlex)
+        ring = certificate_ring(cert.symbols)
         target = data_to_poly(cert.target, ring)
         p = data_to_poly(arg.remainder, ring)
         generators = [data_to_poly(g, ring) for g in cert.generators]
@@ -459,15 +454,11 @@ def check_shift_contradiction_certificate(cert: Certificate) -> bool:
     if arg is None or cert.sign is not None or cert.contradiction is not None or cert.real_square is not None:
         return False
     try:
-        from sympy import QQ, Symbol
-        from sympy.polys.orderings import grevlex
-        from sympy.polys.rings import PolyRing
-
         if arg.variable not in cert.symbols or arg.variable in arg.nonnegative_symbols:
             return False
         if any(s not in cert.symbols for s in arg.nonnegative_symbols):
             return False
-        ring = PolyRing([Symbol(s) for s in cert.symbols], QQ, grevlex)
+        ring = certificate_ring(cert.symbols)
         index = list(cert.symbols).index(arg.variable)
         shift = _strict_fraction(arg.shift)
         bound = data_to_poly(arg.bound, ring)
