@@ -31,7 +31,7 @@ from verifier.algebra.sign import (
     nonnegative_symbols,
 )
 from verifier.algebra.translate import Translation, TranslationError, translate
-from verifier.algebra.verdict import Certificate, Method, ObligationResult, Verdict, Witness
+from verifier.algebra.verdict import Certificate, Method, ObligationResult, Verdict
 from verifier.algebra.witness import differs_mod_p, find_witness
 from verifier.claims.model import Claim, Obligation
 

@@ -78,7 +78,6 @@ def _bounded_variable(p: PolyElement) -> int | None:
 def _split_linear(f: PolyElement, index: int, radicand: PolyElement) -> tuple[PolyElement, PolyElement]:
     """f == A*r + B modulo r**2 - radicand, with A and B free of r (r is generator ``index``)."""
     ring = f.ring
-    r = ring.gens[index]
     a, b = ring.zero, ring.zero
     for monom, coeff in f.terms():
         e = monom[index]
@@ -88,7 +87,6 @@ def _split_linear(f: PolyElement, index: int, radicand: PolyElement) -> tuple[Po
             a += part
         else:
             b += part
-    del r
     return a, b
 
 
