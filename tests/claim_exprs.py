@@ -8,7 +8,8 @@ from __future__ import annotations
 import ast
 from fractions import Fraction
 
-from verifier.claims.model import BinOp, Call, Condition, Expr, Neg, Num, Pow, Var
+from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Pow, Var
+from verifier.model.claim import Condition
 
 _OPS = {ast.Add: "+", ast.Sub: "-", ast.Mult: "*", ast.Div: "/"}
 _RELATIONS = {ast.Eq: "==", ast.NotEq: "!=", ast.Lt: "<", ast.LtE: "<=", ast.Gt: ">", ast.GtE: ">="}

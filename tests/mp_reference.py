@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import mpmath
 
-from verifier.claims.model import BinOp, Call, Neg, Num, Pow, Var
+from verifier.model.expr import BinOp, Call, Neg, Num, Pow, Var
 
 _FUNCTIONS = {
     "sqrt": mpmath.sqrt,

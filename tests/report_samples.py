@@ -1,8 +1,8 @@
 """Hand-made verdicts for the report tests (invented claims; no algebra involved)."""
 from __future__ import annotations
 
-from verifier.algebra.verdict import ObligationResult, Verdict, Witness
-from verifier.claims.model import Claim, Location
+from verifier.model.verdict import ObligationResult, Verdict, Witness
+from verifier.model.claim import Claim, Location
 
 
 def claim(path: str, line: int, column: int, text: str, *, suffix: str = "", kind: str = "expression") -> Claim:

@@ -5,8 +5,8 @@ import os
 import signal
 import time
 
-from verifier.algebra.verdict import Verdict
-from verifier.claims.model import Claim
+from verifier.model.verdict import Verdict
+from verifier.model.claim import Claim
 
 
 def misbehave(claim: Claim, timeout: float) -> Verdict:

@@ -113,7 +113,7 @@ def bench_tree(source: Path, repeat: int) -> None:
 
 def time_startup() -> float:
     start = time.perf_counter()
-    subprocess.run([sys.executable, "-c", "import verifier.cli, verifier.algebra.decide, verifier.claims"],
+    subprocess.run([sys.executable, "-c", "import verifier.cli.main, verifier.algebra.decide, verifier.claims"],
                    check=True, capture_output=True)
     return time.perf_counter() - start
 

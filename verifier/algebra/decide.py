@@ -18,10 +18,15 @@ import time
 from dataclasses import dataclass
 from typing import Sequence
 
-from verifier.algebra.certificate import make_certificate, poly_to_data
 from verifier.algebra.clearing import cleared_membership
 from verifier.algebra.describe import describe_translation
-from verifier.algebra.groebner import GroebnerTimeout, groebner_basis, membership_cofactors, reduce
+from verifier.algebra.groebner import (
+    GroebnerTimeout,
+    groebner_basis,
+    membership_cofactors,
+    reduce,
+)
+from verifier.algebra.kernel.certificate import make_certificate, poly_to_data
 from verifier.algebra.sign import (
     certificate_is_valid,
     find_real_square,
@@ -31,9 +36,10 @@ from verifier.algebra.sign import (
     nonnegative_symbols,
 )
 from verifier.algebra.translate import Translation, TranslationError, translate
-from verifier.algebra.verdict import Certificate, Method, ObligationResult, Verdict
 from verifier.algebra.witness import differs_mod_p, find_witness
-from verifier.claims.model import Claim, Obligation
+from verifier.model.certificate import Certificate
+from verifier.model.claim import Claim, Obligation
+from verifier.model.verdict import Method, ObligationResult, Verdict
 
 _RANK = {"proved": 0, "inconclusive": 1, "refuted": 2, "error": 3}
 _METHOD_RANK = {None: -1, "expansion": 0, "ideal": 1, "saturation": 2, "radical": 3, "sign": 4}

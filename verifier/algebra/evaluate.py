@@ -14,7 +14,7 @@ from typing import Callable, Mapping, Union
 import mpmath
 from mpmath import mp, mpf
 
-from verifier.claims.model import PI, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
+from verifier.model.expr import PI, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
 
 Real = Union[mpf, Fraction]
 

@@ -14,8 +14,8 @@ from __future__ import annotations
 
 import heapq
 import time
-from math import gcd, lcm
 from dataclasses import dataclass
+from math import gcd, lcm
 from operator import add, ge, sub
 from typing import Any, Callable, Sequence
 

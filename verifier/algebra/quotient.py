@@ -10,29 +10,15 @@ standard monomials counts the complex common zeros with multiplicity.
 """
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import Sequence
 
 from sympy.polys.rings import PolyElement, PolyRing
 
+from verifier.model.explanation import QuotientStructure
+
 Monom = tuple[int, ...]
 
 STANDARD_MONOMIAL_LIMIT = 100_000  # counting stops here (the quotient is then reported as "more than")
-
-
-@dataclass(frozen=True)
-class QuotientStructure:
-    """What the leading-term ideal of a Groebner basis says about the ideal."""
-
-    variable_count: int
-    minimal_leading_monomials: tuple[Monom, ...]  # minimal generators of LT(I), largest first
-    dimension: int  # Krull dimension of the ideal; -1 for the unit ideal (no common zero at all)
-    independent_variables: tuple[int, ...]  # indices of a largest set independent modulo LT(I)
-    zero_dimensional: bool
-    standard_monomial_count: int | None  # dim of K[x]/I as a vector space when zero-dimensional
-    count_complete: bool  # False when counting stopped at STANDARD_MONOMIAL_LIMIT
-    standard_monomials: tuple[Monom, ...] | None  # listed when there are at most ``list_limit``
-    dimension_exact: bool = True  # False: the search stopped and ``dimension`` is only a lower bound
 
 
 def _divides(a: Monom, b: Monom) -> bool:

@@ -21,16 +21,16 @@ from sympy import QQ
 from sympy.polys.rings import PolyElement
 
 from verifier.algebra.clearing import inverse_pairs
-from verifier.algebra.certificate import (
+from verifier.algebra.groebner import GroebnerResult, membership_cofactors, reduce
+from verifier.algebra.kernel.certificate import (
     certificate_ring,
     check_certificate,
     data_to_poly,
     make_certificate,
     poly_to_data,
 )
-from verifier.algebra.groebner import GroebnerResult, membership_cofactors, reduce
 from verifier.algebra.translate import Translation
-from verifier.algebra.verdict import (
+from verifier.model.certificate import (
     Certificate,
     RealSquare,
     ShiftContradiction,

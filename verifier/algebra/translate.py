@@ -25,21 +25,12 @@ from sympy import QQ, Symbol
 from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
-from verifier.claims.model import (
-    BinOp,
-    Call,
-    Condition,
-    Expr,
-    Neg,
-    Num,
-    Obligation,
-    Opaque,
-    Pow,
-    Var,
-)
+from verifier.model.claim import Condition, Obligation
+from verifier.model.explanation import AuxKind, AuxVariable
+from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
 
 GeneratorKind = Literal["equation", "nonzero", "inverse", "radical", "trig", "exp"]
-AuxKind = Literal["inverse", "radical", "sin", "cos", "exp", "exp_inverse", "log", "opaque"]
+
 
 # Auxiliary names start with "$": no claim-language name (identifier, dotted name, subscript) can.
 _AUX_PREFIX = "$"
@@ -48,13 +39,6 @@ MAX_POWER = 4096  # exponents beyond this are refused rather than expanded
 
 class TranslationError(Exception):
     """The obligation uses something the polynomial translation cannot represent (reason is specific)."""
-
-
-@dataclass(frozen=True)
-class AuxVariable:
-    name: str
-    meaning: str  # how it prints in the original variables, e.g. "1/(x - y)", "sqrt(x)", "sin(t/2)"
-    kind: AuxKind
 
 
 @dataclass(frozen=True)

@@ -28,8 +28,8 @@ from mpmath import mp, mpf
 
 from verifier.algebra.evaluate import (
     DomainError,
-    children,
     NotEvaluable,
+    children,
     exact_value,
     has_opaque,
     numeric_value,
@@ -38,8 +38,9 @@ from verifier.algebra.evaluate import (
     to_mpf,
     variables,
 )
-from verifier.algebra.verdict import Witness
-from verifier.claims.model import BinOp, Call, Condition, Expr, Neg, Num, Opaque, Pow, Var
+from verifier.model.claim import Condition
+from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
+from verifier.model.verdict import Witness
 
 Real = Union[mpf, Fraction]
 

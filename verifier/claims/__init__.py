@@ -5,7 +5,7 @@ from collections.abc import Callable
 
 from verifier.claims.comments import CommentClaim, find_comments
 from verifier.claims.expression import PYTHON_EXTENSIONS, expression_claims
-from verifier.claims.model import Claim, ExtractionContext
+from verifier.model.claim import Claim, ExtractionContext
 
 PythonExtractor = Callable[[str, str, list[CommentClaim], ExtractionContext], list[Claim]]
 

@@ -13,7 +13,6 @@ from typing import Sequence
 
 import libcst as cst
 
-from verifier.claims.model import Claim, Condition, ExtractionContext, Location, Obligation, Problem, Var
 from verifier.claims.symexec import (
     EXPR_TYPES,
     NONE,
@@ -28,6 +27,15 @@ from verifier.claims.symexec import (
     parse_module_text,
     positional_parameters,
 )
+from verifier.model.claim import (
+    Claim,
+    Condition,
+    ExtractionContext,
+    Location,
+    Obligation,
+    Problem,
+)
+from verifier.model.expr import Var
 
 MAX_OBLIGATIONS = 256  # path pairs times components; more is reported as inconclusive
 

@@ -4,8 +4,12 @@ from __future__ import annotations
 import os
 
 from verifier.claims.comments import CommentClaim
-from verifier.claims.language import ClaimSyntaxError, equation_side_texts, parse_claim_text
-from verifier.claims.model import Claim, ExtractionContext, Location, Obligation, Problem
+from verifier.claims.language import (
+    ClaimSyntaxError,
+    equation_side_texts,
+    parse_claim_text,
+)
+from verifier.model.claim import Claim, ExtractionContext, Location, Obligation, Problem
 
 PYTHON_EXTENSIONS = (".py", ".pyi")
 _FORM_NAMES = {"same_as": "`same as`", "returns": "`returns`", "statement": "statement (`== EXPR`)"}

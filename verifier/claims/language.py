@@ -15,20 +15,22 @@ from dataclasses import dataclass
 from fractions import Fraction
 from typing import Literal, Union
 
-from verifier.claims.model import (
-    KNOWN_FUNCTIONS,
-    BinOp,
-    Call,
+from verifier.model.claim import (
     Condition,
-    Expr,
     ExtractionContext,
     NamedConditionSet,
+    Relation,
+)
+from verifier.model.expr import (
+    KNOWN_FUNCTIONS,
+    PI,
+    BinOp,
+    Call,
+    Expr,
     Neg,
     Num,
-    PI,
     Opaque,
     Pow,
-    Relation,
     Var,
 )
 

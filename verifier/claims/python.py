@@ -16,24 +16,6 @@ import libcst as cst
 from verifier.claims.comments import CommentClaim
 from verifier.claims.expression import error_claim, expression_claims
 from verifier.claims.language import ClaimSyntaxError, ParsedClaim, parse_claim_text
-from verifier.claims.model import (
-    PI,
-    BinOp,
-    Call,
-    Claim,
-    ClaimKind,
-    Condition,
-    Expr,
-    ExtractionContext,
-    Location,
-    Neg,
-    Num,
-    Obligation,
-    Opaque,
-    Pow,
-    Problem,
-    Var,
-)
 from verifier.claims.symexec import (
     NONE,
     Executor,
@@ -51,6 +33,16 @@ from verifier.claims.symexec import (
     parse_module_text,
     positional_parameters,
 )
+from verifier.model.claim import (
+    Claim,
+    ClaimKind,
+    Condition,
+    ExtractionContext,
+    Location,
+    Obligation,
+    Problem,
+)
+from verifier.model.expr import PI, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
 
 MAX_OBLIGATIONS = 2048  # more paths x components than this is inconclusive rather than slow
 

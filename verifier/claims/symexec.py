@@ -20,7 +20,8 @@ from typing import Iterable, Sequence, Union
 import libcst as cst
 from libcst.metadata import MetadataWrapper, PositionProvider
 
-from verifier.claims.model import PI, BinOp, Call, Condition, Expr, Neg, Num, Opaque, Pow, Var
+from verifier.model.claim import Condition
+from verifier.model.expr import PI, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
 
 MUTABLE = ("list", "array")
 MAX_PATHS = 512  # live paths at once; more is inconclusive rather than slow

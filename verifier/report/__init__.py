@@ -4,8 +4,14 @@ from __future__ import annotations
 from collections.abc import Sequence
 from typing import Literal
 
-from verifier.algebra.verdict import Verdict
-from verifier.report.common import OnInconclusive, fails_run, ordered, summary_counts, summary_line
+from verifier.model.verdict import Verdict
+from verifier.report.common import (
+    OnInconclusive,
+    fails_run,
+    ordered,
+    summary_counts,
+    summary_line,
+)
 from verifier.report.github import render_github
 from verifier.report.json_report import render_json
 from verifier.report.junit import render_junit

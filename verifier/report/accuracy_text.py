@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
-from verifier.algebra.accuracy import AccuracyEstimate, SideAccuracy
+from verifier.model.accuracy import AccuracyEstimate, SideAccuracy
 
 ACCURACY_DISCLAIMER = (
     "note: accuracy figures are a sampled estimate at random points, not a bound; rounding can be worse "

@@ -1,14 +1,10 @@
 """Text of an ``idealcheck audit`` run: a table of functions and verdicts, details, one-sided functions."""
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
-
-from verifier.algebra.verdict import Verdict
+from verifier.model.audit import AuditResult, OneSided
+from verifier.model.verdict import Verdict
 from verifier.report.common import EXACTNESS_REMINDER, summary_line, witness_values_text
 from verifier.report.text import verdict_lines
-
-if TYPE_CHECKING:  # the audit's data classes; the report layer does not import the orchestration at run time
-    from verifier.audit import AuditResult, OneSided
 
 _DETAIL_WIDTH = 72
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from typing import Literal
 
-from verifier.algebra.verdict import Verdict, Witness
+from verifier.model.verdict import Verdict, Witness
 
 OnInconclusive = Literal["fail", "warn"]
 VERDICT_NAMES: tuple[str, ...] = ("proved", "refuted", "inconclusive", "error")

@@ -1,13 +1,13 @@
 """Text of an ``idealcheck explain`` answer."""
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
-
+from verifier.model.explanation import (
+    ClaimExplanation,
+    Explanation,
+    ObligationExplanation,
+)
 from verifier.report.accuracy_text import ACCURACY_DISCLAIMER, accuracy_lines
 from verifier.report.common import witness_values_text
-
-if TYPE_CHECKING:  # the explanation's data classes; not imported at run time (report stays the last layer)
-    from verifier.explain import ClaimExplanation, Explanation, ObligationExplanation
 
 INDENT = "    "
 

@@ -8,8 +8,14 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
-from verifier.algebra.verdict import Verdict
-from verifier.report.common import OnInconclusive, fails_run, ordered, problem_message, summary_line
+from verifier.model.verdict import Verdict
+from verifier.report.common import (
+    OnInconclusive,
+    fails_run,
+    ordered,
+    problem_message,
+    summary_line,
+)
 
 
 def escape_data(text: str) -> str:

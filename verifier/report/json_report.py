@@ -5,7 +5,7 @@ import json
 from collections.abc import Sequence
 from typing import Any
 
-from verifier.algebra.verdict import Verdict
+from verifier.model.verdict import Verdict
 from verifier.report.common import ordered, summary_counts
 
 

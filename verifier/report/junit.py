@@ -4,7 +4,7 @@ from __future__ import annotations
 import xml.etree.ElementTree as ET
 from collections.abc import Sequence
 
-from verifier.algebra.verdict import Verdict
+from verifier.model.verdict import Verdict
 from verifier.report.common import OnInconclusive, fails_run, ordered, problem_message
 
 

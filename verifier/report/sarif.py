@@ -10,7 +10,7 @@ from collections.abc import Sequence
 from typing import Any
 from urllib.parse import quote
 
-from verifier.algebra.verdict import Verdict
+from verifier.model.verdict import Verdict
 from verifier.report.common import OnInconclusive, fails_run, ordered, problem_message
 
 SCHEMA_URI = "https://docs.oasis-open.org/sarif/sarif/v2.1.0/errata01/os/schemas/sarif-schema-2.1.0.json"

@@ -3,8 +3,13 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
-from verifier.algebra.verdict import ObligationResult, Verdict, Witness
-from verifier.report.common import EXACTNESS_REMINDER, ordered, summary_line, witness_values_text
+from verifier.model.verdict import ObligationResult, Verdict, Witness
+from verifier.report.common import (
+    EXACTNESS_REMINDER,
+    ordered,
+    summary_line,
+    witness_values_text,
+)
 
 INDENT = "    "
 

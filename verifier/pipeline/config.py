@@ -1,0 +1,263 @@
+"""``[tool.idealcheck]`` in the nearest pyproject.toml, validated strictly.
+
+Every key and type is checked; a mistake is a ``ConfigError`` naming the key and the file (the command
+line turns it into exit status 2).  The ``given`` texts of named condition sets are parsed here too, so a
+bad one is reported once, as a configuration error, rather than at every claim that uses it.
+"""
+from __future__ import annotations
+
+import math
+import sys
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any, Literal
+
+from verifier.claims.language import ClaimSyntaxError, parse_expression, parse_relation
+from verifier.model.claim import NamedConditionSet
+from verifier.model.expr import Var
+
+if sys.version_info >= (3, 11):
+    import tomllib
+else:  # pragma: no cover - exercised on Python 3.10 only
+    import tomli as tomllib
+
+TABLE = "tool.idealcheck"
+KNOWN_KEYS = ("include", "exclude", "conditions", "on_inconclusive", "timeout", "memory_mb", "jobs", "cache_dir",
+              "accuracy")
+CONDITION_KEYS = ("vars", "given")
+ACCURACY_KEYS = ("samples", "seed", "range", "ranges")
+
+
+class ConfigError(Exception):
+    """A bad configuration; the message names the key and the file."""
+
+
+@dataclass(frozen=True)
+class AccuracyConfig:
+    """``[tool.idealcheck.accuracy]``: sampling for ``--accuracy`` (command-line options override it)."""
+
+    samples: int | None = None
+    seed: int | None = None
+    range: tuple[float, float] | None = None  # for every variable
+    ranges: tuple[tuple[str, float, float], ...] = ()  # per variable: ranges = { b = [1e3, 1e6] }
+
+
+@dataclass(frozen=True)
+class Config:
+    path: Path | None  # the pyproject.toml used, None when there is none
+    root: Path  # the folder of that file (globs and the cache folder are relative to it)
+    include: tuple[str, ...] = ()
+    exclude: tuple[str, ...] = ()
+    conditions: tuple[NamedConditionSet, ...] = ()
+    on_inconclusive: Literal["fail", "warn"] = "fail"
+    timeout: float = 10.0  # seconds per claim
+    memory_mb: int = 2048  # per worker process
+    jobs: int | None = None  # worker processes; None: one per core
+    cache_dir: str = ".idealcheck_cache"
+    accuracy: AccuracyConfig = AccuracyConfig()
+
+    def named(self, name: str) -> NamedConditionSet | None:
+        return next((item for item in self.conditions if item.name == name), None)
+
+
+# ---------------------------------------------------------------- finding and reading the file
+
+
+def _read_toml(path: Path) -> dict[str, Any]:
+    try:
+        data = path.read_bytes()
+    except OSError as exc:
+        raise ConfigError(f"{path}: cannot read the file: {exc.strerror or exc}") from None
+    try:
+        text = data.decode("utf-8")
+    except UnicodeDecodeError:
+        raise ConfigError(f"{path}: not UTF-8 text") from None
+    try:
+        return tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        message = str(exc)
+        if "line" not in message:  # "at end of document": say which line that is
+            message += f" (line {text.count(chr(10)) + 1}, the end of the file)"
+        raise ConfigError(f"{path}: invalid TOML: {message}") from None
+
+
+def _our_table(document: dict[str, Any], path: Path) -> dict[str, Any] | None:
+    tool = document.get("tool")
+    if tool is None:
+        return None
+    if not isinstance(tool, dict):
+        raise ConfigError(f"{path}: `tool` must be a table")
+    table = tool.get("idealcheck")
+    if table is None:
+        return None
+    if not isinstance(table, dict):
+        raise ConfigError(f"{path}: `{TABLE}` must be a table, found {_type_name(table)}")
+    return table
+
+
+def find_config_file(start: Path) -> tuple[Path, dict[str, Any]] | None:
+    """The nearest pyproject.toml at or above ``start`` with a ``[tool.idealcheck]`` table.
+
+    The search stops at the top of a git working tree so that a project never picks up an outer one.
+    """
+    folder = start.resolve()
+    if not folder.is_dir():
+        folder = folder.parent
+    for candidate in (folder, *folder.parents):
+        pyproject = candidate / "pyproject.toml"
+        if pyproject.is_file():
+            table = _our_table(_read_toml(pyproject), pyproject)
+            if table is not None:
+                return pyproject, table
+        if (candidate / ".git").exists():
+            break
+    return None
+
+
+def load_config(start: Path, explicit: Path | None = None) -> Config:
+    """The configuration for a run started in ``start`` (or read from ``explicit``)."""
+    if explicit is not None:
+        explicit = Path(explicit)
+        if not explicit.is_file():
+            raise ConfigError(f"{explicit}: no such file")
+        table = _our_table(_read_toml(explicit), explicit)
+        root = explicit.resolve().parent
+        return _build(table or {}, explicit, root)
+    found = find_config_file(Path(start))
+    if found is None:
+        folder = Path(start).resolve()
+        return Config(path=None, root=folder if folder.is_dir() else folder.parent)
+    path, table = found
+    return _build(table, path, path.parent)
+
+
+# ---------------------------------------------------------------- validation
+
+
+def _type_name(value: Any) -> str:
+    names = {bool: "a boolean", int: "an integer", float: "a number", str: "a string", list: "an array", dict: "a table"}
+    return names.get(type(value), type(value).__name__)
+
+
+def _string_list(value: Any, key: str, path: Path) -> tuple[str, ...]:
+    if not isinstance(value, list) or not all(isinstance(item, str) for item in value):
+        raise ConfigError(f"{path}: `{key}` must be an array of strings, found {_type_name(value)}")
+    return tuple(value)
+
+
+def _positive_number(value: Any, key: str, path: Path) -> float:
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value) or value <= 0:
+        raise ConfigError(f"{path}: `{key}` must be a positive number, found {value!r}")
+    return float(value)
+
+
+def _positive_int(value: Any, key: str, path: Path) -> int:
+    if isinstance(value, bool) or not isinstance(value, int) or value <= 0:
+        raise ConfigError(f"{path}: `{key}` must be a positive integer, found {value!r}")
+    return value
+
+
+def _build(table: dict[str, Any], path: Path, root: Path) -> Config:
+    for key in table:
+        if key not in KNOWN_KEYS:
+            raise ConfigError(f"{path}: unknown key `{TABLE}.{key}` (known: {', '.join(KNOWN_KEYS)})")
+    values: dict[str, Any] = {}
+    for key in ("include", "exclude"):
+        if key in table:
+            values[key] = _string_list(table[key], f"{TABLE}.{key}", path)
+    if "on_inconclusive" in table:
+        value = table["on_inconclusive"]
+        if value not in ("fail", "warn"):
+            raise ConfigError(f"{path}: `{TABLE}.on_inconclusive` must be \"fail\" or \"warn\", found {value!r}")
+        values["on_inconclusive"] = value
+    if "timeout" in table:
+        values["timeout"] = _positive_number(table["timeout"], f"{TABLE}.timeout", path)
+    if "memory_mb" in table:
+        values["memory_mb"] = _positive_int(table["memory_mb"], f"{TABLE}.memory_mb", path)
+    if "jobs" in table:
+        values["jobs"] = _positive_int(table["jobs"], f"{TABLE}.jobs", path)
+    if "cache_dir" in table:
+        value = table["cache_dir"]
+        if not isinstance(value, str) or not value.strip():
+            raise ConfigError(f"{path}: `{TABLE}.cache_dir` must be a non-empty string, found {value!r}")
+        values["cache_dir"] = value
+    if "conditions" in table:
+        values["conditions"] = _condition_sets(table["conditions"], path)
+    if "accuracy" in table:
+        values["accuracy"] = _accuracy(table["accuracy"], path)
+    return Config(path=path, root=root, **values)
+
+
+def _interval(value: Any, key: str, path: Path) -> tuple[float, float]:
+    if (
+        not isinstance(value, list) or len(value) != 2
+        or any(isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v) for v in value)
+        or not value[0] < value[1]
+    ):
+        raise ConfigError(f"{path}: `{key}` must be an array [low, high] of two finite numbers with low < high, "
+                          f"found {value!r}")
+    return float(value[0]), float(value[1])
+
+
+def _accuracy(value: Any, path: Path) -> AccuracyConfig:
+    key = f"{TABLE}.accuracy"
+    if not isinstance(value, dict):
+        raise ConfigError(f"{path}: `{key}` must be a table, found {_type_name(value)}")
+    for item in value:
+        if item not in ACCURACY_KEYS:
+            raise ConfigError(f"{path}: unknown key `{key}.{item}` (known: {', '.join(ACCURACY_KEYS)})")
+    samples = _positive_int(value["samples"], f"{key}.samples", path) if "samples" in value else None
+    seed = value.get("seed")
+    if seed is not None and (isinstance(seed, bool) or not isinstance(seed, int)):
+        raise ConfigError(f"{path}: `{key}.seed` must be an integer, found {seed!r}")
+    default = _interval(value["range"], f"{key}.range", path) if "range" in value else None
+    ranges: list[tuple[str, float, float]] = []
+    per_variable = value.get("ranges", {})
+    if not isinstance(per_variable, dict):
+        raise ConfigError(f"{path}: `{key}.ranges` must be a table of variable = [low, high], "
+                          f"found {_type_name(per_variable)}")
+    for name, interval in per_variable.items():
+        low, high = _interval(interval, f"{key}.ranges.{name}", path)
+        ranges.append((name, low, high))
+    return AccuracyConfig(samples, seed, default, tuple(ranges))
+
+
+def _condition_sets(value: Any, path: Path) -> tuple[NamedConditionSet, ...]:
+    key = f"{TABLE}.conditions"
+    if not isinstance(value, dict):
+        raise ConfigError(f"{path}: `{key}` must be a table of condition sets, found {_type_name(value)}")
+    sets: list[NamedConditionSet] = []
+    for name, entry in value.items():
+        where = f"{key}.{name}"
+        if not name.isidentifier():
+            raise ConfigError(f"{path}: `{where}`: a condition set name must be an identifier")
+        if not isinstance(entry, dict):
+            raise ConfigError(f"{path}: `{where}` must be a table with `vars` and `given`, found {_type_name(entry)}")
+        for item in entry:
+            if item not in CONDITION_KEYS:
+                raise ConfigError(f"{path}: unknown key `{where}.{item}` (known: vars, given)")
+        for item in CONDITION_KEYS:
+            if item not in entry:
+                raise ConfigError(f"{path}: `{where}` needs `{item}`")
+        variables = _string_list(entry["vars"], f"{where}.vars", path)
+        given = _string_list(entry["given"], f"{where}.given", path)
+        for variable in variables:
+            try:
+                parsed = parse_expression(variable)
+            except ClaimSyntaxError:
+                parsed = None
+            if not isinstance(parsed, Var) or parsed.name != variable.strip():
+                raise ConfigError(f"{path}: `{where}.vars`: {variable!r} is not a variable name")
+        if len(set(variables)) != len(variables):
+            raise ConfigError(f"{path}: `{where}.vars` names a variable twice")
+        if not given:
+            raise ConfigError(f"{path}: `{where}.given` is empty")
+        for index, text in enumerate(given):
+            try:
+                parse_relation(text)
+            except ClaimSyntaxError as exc:
+                raise ConfigError(
+                    f"{path}: `{where}.given[{index}]` = {text!r}: {exc.message} (character {exc.offset + 1})"
+                ) from None
+        sets.append(NamedConditionSet(name, tuple(v.strip() for v in variables), given))
+    return tuple(sets)
