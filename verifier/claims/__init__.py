@@ -22,10 +22,36 @@ def _python_extractor() -> PythonExtractor | None:
     return extract_python
 
 
+def extract_python_module(path: str, text: str, context: ExtractionContext) -> list[Claim]:
+    """The claims of ``text`` read as a Python module, reported under ``path`` (notebooks build such a text)."""
+    comments = find_comments("module.py", text)  # the name only selects Python's comment syntax
+    extract_python = _python_extractor()
+    if extract_python is not None:
+        return extract_python(path, text, comments, context)
+    return [claim for comment in comments for claim in expression_claims(comment, path, context)]
+
+
+def _prose_comments(path: str, text: str) -> list[CommentClaim] | None:
+    """Markdown and reStructuredText comments, or None for other files."""
+    from verifier.claims.markup import MARKDOWN_EXTENSIONS, RST_EXTENSIONS, markdown_comments, rst_comments
+
+    lowered = path.lower()
+    if lowered.endswith(MARKDOWN_EXTENSIONS):
+        return markdown_comments(text)
+    if lowered.endswith(RST_EXTENSIONS):
+        return rst_comments(text)
+    return None
+
+
 def extract(path: str, text: str, context: ExtractionContext | None = None) -> list[Claim]:
     """Every claim in the file ``path`` (relative, forward slashes) whose content is ``text``."""
     context = context or ExtractionContext()
-    comments = find_comments(path, text)
+    if path.lower().endswith(".ipynb"):
+        from verifier.claims.notebook import extract_notebook
+
+        return extract_notebook(path, text, context, extract_python_module)
+    prose = _prose_comments(path, text)
+    comments = find_comments(path, text) if prose is None else prose
     if path.lower().endswith(PYTHON_EXTENSIONS):
         extract_python = _python_extractor()
         if extract_python is not None:
@@ -36,4 +62,4 @@ def extract(path: str, text: str, context: ExtractionContext | None = None) -> l
     return claims
 
 
-__all__ = ["extract", "find_comments", "expression_claims", "CommentClaim"]
+__all__ = ["extract", "extract_python_module", "find_comments", "expression_claims", "CommentClaim"]

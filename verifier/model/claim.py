@@ -9,13 +9,19 @@ from verifier.model.expr import Expr
 
 @dataclass(frozen=True)
 class Location:
-    """A place in a scanned file; ``path`` is relative to the working directory, line and column 1-based."""
+    """A place in a scanned file; ``path`` is relative to the working directory, line and column 1-based.
+
+    In a notebook ``cell`` is the 1-based position of the cell and ``line`` counts within that cell's source.
+    """
 
     path: str
     line: int
     column: int
+    cell: int | None = None
 
     def __str__(self) -> str:
+        if self.cell is not None:
+            return f"{self.path}:cell {self.cell}:{self.line}:{self.column}"
         return f"{self.path}:{self.line}:{self.column}"
 
 

@@ -17,10 +17,11 @@ EXACTNESS_REMINDER = (
 
 
 def ordered(verdicts: Sequence[Verdict]) -> list[Verdict]:
-    """Deterministic report order: by path, line, column, then claim id."""
+    """Deterministic report order: by path, (notebook cell,) line, column, then claim id."""
     return sorted(
         verdicts,
-        key=lambda v: (v.claim.location.path, v.claim.location.line, v.claim.location.column, v.claim.id),
+        key=lambda v: (v.claim.location.path, v.claim.location.cell or 0, v.claim.location.line,
+                       v.claim.location.column, v.claim.id),
     )
 
 

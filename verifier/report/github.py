@@ -27,6 +27,10 @@ def escape_property(text: str) -> str:
     return escape_data(text).replace(":", "%3A").replace(",", "%2C")
 
 
+def _cell(cell: int | None) -> str:
+    return "" if cell is None else f" (cell {cell})"  # notebooks: the line counts within that cell
+
+
 def annotation(verdict: Verdict, on_inconclusive: OnInconclusive) -> str | None:
     if verdict.verdict == "proved":
         return None
@@ -37,7 +41,7 @@ def annotation(verdict: Verdict, on_inconclusive: OnInconclusive) -> str | None:
             f"file={escape_property(loc.path)}",
             f"line={loc.line}",
             f"col={loc.column}",
-            f"title={escape_property(f'idealcheck {verdict.verdict}: {verdict.claim.text}')}",
+            f"title={escape_property(f'idealcheck {verdict.verdict}{_cell(loc.cell)}: {verdict.claim.text}')}",
         ]
     )
     return f"::{command} {properties}::{escape_data(problem_message(verdict))}"

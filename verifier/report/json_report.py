@@ -18,9 +18,11 @@ def claim_object(verdict: Verdict) -> dict[str, Any]:
             "left": verdict.witness.left,
             "right": verdict.witness.right,
         }
+    cell = {} if claim.location.cell is None else {"cell": claim.location.cell}  # notebooks: line is in the cell
     return {
         "id": claim.id,
         "path": claim.location.path,
+        **cell,
         "line": claim.location.line,
         "column": claim.location.column,
         "kind": claim.kind,

@@ -36,7 +36,7 @@ def render_junit(
             "testcase",
             {
                 "classname": loc.path,
-                "name": f"line {loc.line}: {verdict.claim.text}",
+                "name": f"{'' if loc.cell is None else f'cell {loc.cell} '}line {loc.line}: {verdict.claim.text}",
                 "file": loc.path,
                 "line": str(loc.line),
                 "time": f"{verdict.seconds:.3f}",

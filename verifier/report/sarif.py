@@ -72,6 +72,9 @@ def _result(verdict: Verdict, on_inconclusive: OnInconclusive) -> dict[str, Any]
         ],
         "properties": {"claimId": verdict.claim.id, "claimText": verdict.claim.text},
     }
+    if loc.cell is not None:  # a notebook: the region's lines count within this cell's source
+        result["locations"][0]["message"] = {"text": f"cell {loc.cell}"}
+        result["properties"]["cell"] = loc.cell
     if verdict.counter_normal_form is not None:
         result["properties"]["counterNormalForm"] = verdict.counter_normal_form
     if verdict.witness is not None:
