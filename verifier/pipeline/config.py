@@ -22,7 +22,7 @@ else:  # pragma: no cover - exercised on Python 3.10 only
     import tomli as tomllib
 
 TABLE = "tool.idealcheck"
-KNOWN_KEYS = ("include", "exclude", "conditions", "on_inconclusive", "timeout", "memory_mb", "jobs", "cache_dir",
+KNOWN_KEYS = ("paths", "include", "exclude", "conditions", "on_inconclusive", "timeout", "memory_mb", "jobs", "cache_dir",
               "accuracy")
 CONDITION_KEYS = ("vars", "given")
 ACCURACY_KEYS = ("samples", "seed", "range", "ranges")
@@ -46,6 +46,7 @@ class AccuracyConfig:
 class Config:
     path: Path | None  # the pyproject.toml used, None when there is none
     root: Path  # the folder of that file (globs and the cache folder are relative to it)
+    paths: tuple[str, ...] = ()  # what the pytest plugin and the Python API check by default (relative to root)
     include: tuple[str, ...] = ()
     exclude: tuple[str, ...] = ()
     conditions: tuple[NamedConditionSet, ...] = ()
@@ -162,7 +163,7 @@ def _build(table: dict[str, Any], path: Path, root: Path) -> Config:
         if key not in KNOWN_KEYS:
             raise ConfigError(f"{path}: unknown key `{TABLE}.{key}` (known: {', '.join(KNOWN_KEYS)})")
     values: dict[str, Any] = {}
-    for key in ("include", "exclude"):
+    for key in ("paths", "include", "exclude"):
         if key in table:
             values[key] = _string_list(table[key], f"{TABLE}.{key}", path)
     if "on_inconclusive" in table:

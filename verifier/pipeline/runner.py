@@ -528,32 +528,38 @@ def warm_up_workers(options: RunOptions) -> None:
             pass
 
 
+def with_cache(request: CheckRequest, texts: dict[str, str]) -> RunOptions:
+    """The request's run options with the result cache of ``request.cache_dir`` (unchanged without one);
+    ``texts`` are the files already read (``gather_claims``), other dependencies are read from disk."""
+    options = request.options
+    if request.cache_dir is None:
+        return options
+    from verifier import __version__
+    from verifier.pipeline.cache import ResultCache
+
+    def dependency_text(path: str) -> str | None:
+        key = normalize_path(path)
+        if key in texts:
+            return texts[key]
+        try:
+            with open(os.path.join(request.cwd, key), encoding="utf-8", errors="surrogateescape") as handle:
+                return handle.read()
+        except OSError:
+            return None
+
+    cache = ResultCache(
+        os.path.join(request.cwd, request.cache_dir),
+        version=__version__,
+        conditions=tuple(getattr(request.config, "conditions", ()) or ()),
+        dependency_text=dependency_text,
+        limits=(options.timeout, options.memory_mb),
+        reuse_inconclusive=request.on_inconclusive == "fail",
+    )
+    return dataclasses.replace(options, cache=cache)
+
+
 def check(request: CheckRequest) -> list[Verdict]:
     """Run a whole check and return the verdicts (in the order the claims were found)."""
     warm_up_workers(request.options)
     claims, texts = gather_claims(request)
-    options = request.options
-    if request.cache_dir is not None:
-        from verifier import __version__
-        from verifier.pipeline.cache import ResultCache
-
-        def dependency_text(path: str) -> str | None:
-            key = normalize_path(path)
-            if key in texts:
-                return texts[key]
-            try:
-                with open(os.path.join(request.cwd, key), encoding="utf-8", errors="surrogateescape") as handle:
-                    return handle.read()
-            except OSError:
-                return None
-
-        cache = ResultCache(
-            os.path.join(request.cwd, request.cache_dir),
-            version=__version__,
-            conditions=tuple(getattr(request.config, "conditions", ()) or ()),
-            dependency_text=dependency_text,
-            limits=(options.timeout, options.memory_mb),
-            reuse_inconclusive=request.on_inconclusive == "fail",
-        )
-        options = dataclasses.replace(options, cache=cache)
-    return run(claims, options)
+    return run(claims, with_cache(request, texts))
