@@ -152,7 +152,8 @@ def _certificate_text(certificate: Certificate) -> CertificateText:
     shifted = certificate
     note = (f"{_text(shifted.bound, ring)} {_strictly(shifted.bound_strict)} 0 and "
             f"{_text(shifted.other, ring)} {_strictly(shifted.other_strict)} 0 cannot both hold: with "
-            f"{shifted.variable} = t + {shifted.shift}, minus the second {_sign_pattern(('t',) + shifted.nonnegative_symbols)}")
+            f"{shifted.variable} = t + {shifted.shift}, minus the second {_sign_pattern(('t',) + shifted.nonnegative_symbols)}, "
+            "which the two signs rule out")
     return CertificateText(1, (), None, note, kind="shift_contradiction")
 
 

@@ -9,7 +9,8 @@ be re-checked, so it is read back only when inconclusive fails the run anyway (`
 "fail"``): a forged one can turn a failure into another failure, never into a pass.
 
 Nothing read back is trusted: the file may have been edited by hand or by an attacker.  It is parsed as
-JSON (never evaluated, never unpickled), checked field by field, and then
+JSON (never evaluated, never unpickled), read field by field by the kernel's strict codec
+(``algebra/kernel/codec.py``), and then
 - a ``proved`` obligation is accepted only if its certificate belongs to this claim's translation and
   re-checks by plain expansion (``algebra.decide.certificate_matches``);
 - a ``refuted`` obligation only if its witness re-checks against the obligation

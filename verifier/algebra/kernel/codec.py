@@ -41,7 +41,7 @@ def _field_types(cls: type) -> tuple[tuple[str, Any], ...]:
 def to_json(value: Any) -> Any:
     """A record (certificate, witness, obligation result) as JSON-ready lists, dicts and scalars."""
     if is_dataclass(value) and not isinstance(value, type):
-        data: dict[str, Any] = {"kind": value.kind} if type(value) in _KINDS.values() else {}
+        data: dict[str, Any] = {"kind": getattr(value, "kind")} if type(value) in _KINDS.values() else {}
         for name, _ in _field_types(type(value)):
             data[name] = to_json(getattr(value, name))
         return data
@@ -73,7 +73,7 @@ def from_json(value: Any, shape: Any) -> Any:
         return _from_union(value, args)
     if origin is tuple:
         return _from_list(value, args)
-    if is_dataclass(shape):
+    if isinstance(shape, type) and is_dataclass(shape):
         return _from_object(value, shape)
     raise CodecError(f"no JSON form for {shape!r}")  # a record field of a type this codec does not read
 
