@@ -218,3 +218,20 @@ def test_a_sign_argument_certificate_shows_its_multiplier(tmp_path, capsys, monk
     assert "verdict: proved (sign)" in out
     assert "certificate: (LEFT - RIGHT) * ($r1 + x) = sum of cofactor * generator:" in out
     assert "sign argument:" in out
+
+
+@pytest.mark.parametrize("claim,headline", [
+    # a real sum of squares vanishes only where every term does (common practice)
+    ("x == 0 given x**2 + y**2 == 0", "certificate: (LEFT - RIGHT)**2 + P = sum of cofactor * generator:"),
+    # a > b and a <= b cannot hold together
+    ("x == 1 given a > b, a <= b", "certificate: F - ratio*S - constant expands to 0"),
+    # r > 1 makes r*r > 1
+    ("y == 5 given r > 1, r*r <= 1", "certificate: no equation is needed"),
+])
+def test_each_real_proof_kind_shows_its_own_identity(tmp_path, capsys, monkeypatch, claim, headline):
+    (tmp_path / "s.py").write_text(f"# idealcheck: {claim}\n")
+    monkeypatch.chdir(tmp_path)
+    assert main(["explain", "s.py:1"]) == 0
+    out = capsys.readouterr().out
+    assert headline in out and "sign argument:" in out
+    assert "certificate: LEFT - RIGHT" not in out  # the identity is not LEFT - RIGHT in the ideal

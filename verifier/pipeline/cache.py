@@ -9,7 +9,8 @@ be re-checked, so it is read back only when inconclusive fails the run anyway (`
 "fail"``): a forged one can turn a failure into another failure, never into a pass.
 
 Nothing read back is trusted: the file may have been edited by hand or by an attacker.  It is parsed as
-JSON (never evaluated, never unpickled), checked field by field, and then
+JSON (never evaluated, never unpickled), read field by field by the kernel's strict codec
+(``algebra/kernel/codec.py``), and then
 - a ``proved`` obligation is accepted only if its certificate belongs to this claim's translation and
   re-checks by plain expansion (``algebra.decide.certificate_matches``);
 - a ``refuted`` obligation only if its witness re-checks against the obligation
@@ -29,19 +30,11 @@ from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Any
 
-from verifier.model.certificate import (
-    Certificate,
-    RealSquare,
-    ShiftContradiction,
-    SignArgument,
-    SignContradiction,
-)
+from verifier.algebra.kernel.codec import result_from_json, to_json
 from verifier.model.claim import Claim, NamedConditionSet
 from verifier.model.verdict import ObligationResult, Verdict, Witness
 
 FORMAT = 1
-_VERDICTS = ("proved", "refuted", "inconclusive", "error")
-_METHODS = (None, "expansion", "ideal", "saturation", "radical", "sign")
 CACHEDIR_TAG = "Signature: 8a477f597d28d172789f06886806bc55\n# idealcheck result cache; safe to delete.\n"
 
 
@@ -86,243 +79,18 @@ def claim_key(
 # ---------------------------------------------------------------- JSON <-> results
 
 
-def _poly_to_json(poly: Any) -> list:
-    return [[coefficient, list(exponents)] for coefficient, exponents in poly]
-
-
-def _certificate_to_json(cert: Certificate) -> dict[str, Any]:
-    data: dict[str, Any] = {
-        "symbols": list(cert.symbols),
-        "target": _poly_to_json(cert.target),
-        "power": cert.power,
-        "generators": [_poly_to_json(g) for g in cert.generators],
-        "cofactors": [_poly_to_json(c) for c in cert.cofactors],
-    }
-    if cert.sign is not None:
-        arg = cert.sign
-        data["sign"] = {
-            "root": arg.root,
-            "multiplier": _poly_to_json(arg.multiplier),
-            "nonnegative": _poly_to_json(arg.nonnegative),
-            "nonnegative_cofactors": [_poly_to_json(c) for c in arg.nonnegative_cofactors],
-            "nonnegative_symbols": list(arg.nonnegative_symbols),
-            "hypotheses": [[_poly_to_json(h), lam] for h, lam in arg.hypotheses],
-        }
-    if cert.shift_contradiction is not None:
-        shifted = cert.shift_contradiction
-        data["shift_contradiction"] = {
-            "bound": _poly_to_json(shifted.bound),
-            "bound_strict": shifted.bound_strict,
-            "variable": shifted.variable,
-            "shift": shifted.shift,
-            "other": _poly_to_json(shifted.other),
-            "other_strict": shifted.other_strict,
-            "nonnegative_symbols": list(shifted.nonnegative_symbols),
-        }
-    if cert.real_square is not None:
-        data["real_square"] = {
-            "remainder": _poly_to_json(cert.real_square.remainder),
-            "nonnegative_symbols": list(cert.real_square.nonnegative_symbols),
-        }
-    if cert.contradiction is not None:
-        con = cert.contradiction
-        data["contradiction"] = {
-            "first": _poly_to_json(con.first),
-            "first_strict": con.first_strict,
-            "second": _poly_to_json(con.second),
-            "second_strict": con.second_strict,
-            "ratio": con.ratio,
-            "constant": con.constant,
-        }
-    return data
-
-
-def _witness_to_json(witness: Witness | None) -> dict[str, Any] | None:
-    if witness is None:
-        return None
-    return {
-        "values": [[name, value] for name, value in witness.values],
-        "left": witness.left,
-        "right": witness.right,
-        "exact": witness.exact,
-    }
-
-
-def result_to_json(result: ObligationResult) -> dict[str, Any]:
-    return {
-        "label": result.label,
-        "verdict": result.verdict,
-        "method": result.method,
-        "reason": result.reason,
-        "counter_normal_form": result.counter_normal_form,
-        "witness": _witness_to_json(result.witness),
-        "assumed": list(result.assumed),
-        "certificate": None if result.certificate is None else _certificate_to_json(result.certificate),
-        "vacuous": result.vacuous,
-    }
-
-
-def _str(value: Any) -> str:
-    if not isinstance(value, str):
-        raise Invalid("expected a string")
-    return value
-
-
-def _opt_str(value: Any) -> str | None:
-    return None if value is None else _str(value)
-
-
-def _int(value: Any) -> int:
-    if not isinstance(value, int) or isinstance(value, bool):
-        raise Invalid("expected an integer")
-    return value
-
-
 def _list(value: Any) -> list:
     if not isinstance(value, list):
         raise Invalid("expected a list")
     return value
 
 
-def _poly_from_json(value: Any, width: int) -> tuple[tuple[str, tuple[int, ...]], ...]:
-    terms = []
-    for term in _list(value):
-        pair = _list(term)
-        if len(pair) != 2:
-            raise Invalid("a term is [coefficient, exponents]")
-        coefficient = _str(pair[0])
-        exponents = tuple(_int(e) for e in _list(pair[1]))
-        if len(exponents) != width or any(e < 0 for e in exponents):
-            raise Invalid("exponent vector of the wrong shape")
-        terms.append((coefficient, exponents))
-    return tuple(terms)
+def result_to_json(result: ObligationResult) -> dict[str, Any]:
+    """An obligation result as JSON data (the strict codec of the trusted kernel)."""
+    return to_json(result)  # type: ignore[no-any-return]
 
 
-def _certificate_from_json(value: Any) -> Certificate | None:
-    if value is None:
-        return None
-    if not isinstance(value, dict):
-        raise Invalid("certificate must be an object")
-    symbols = tuple(_str(s) for s in _list(value.get("symbols")))
-    width = len(symbols)
-    power = _int(value.get("power"))
-    if power < 1:
-        raise Invalid("certificate power must be >= 1")
-    generators = tuple(_poly_from_json(g, width) for g in _list(value.get("generators")))
-    cofactors = tuple(_poly_from_json(c, width) for c in _list(value.get("cofactors")))
-    if len(generators) != len(cofactors):
-        raise Invalid("one cofactor per generator")
-    return Certificate(symbols, _poly_from_json(value.get("target"), width), power, generators, cofactors,
-                       _sign_from_json(value.get("sign"), width), _contradiction_from_json(value.get("contradiction"), width),
-                       _real_square_from_json(value.get("real_square"), width),
-                       _shift_from_json(value.get("shift_contradiction"), width))
-
-
-def _shift_from_json(value: Any, width: int) -> ShiftContradiction | None:
-    if value is None:
-        return None
-    if not isinstance(value, dict):
-        raise Invalid("shift_contradiction must be an object")
-    return ShiftContradiction(
-        bound=_poly_from_json(value.get("bound"), width),
-        bound_strict=_bool(value.get("bound_strict")),
-        variable=_str(value.get("variable")),
-        shift=_str(value.get("shift")),
-        other=_poly_from_json(value.get("other"), width),
-        other_strict=_bool(value.get("other_strict")),
-        nonnegative_symbols=tuple(_str(s) for s in _list(value.get("nonnegative_symbols"))),
-    )
-
-
-def _real_square_from_json(value: Any, width: int) -> RealSquare | None:
-    if value is None:
-        return None
-    if not isinstance(value, dict):
-        raise Invalid("real_square must be an object")
-    return RealSquare(_poly_from_json(value.get("remainder"), width),
-                      tuple(_str(s) for s in _list(value.get("nonnegative_symbols"))))
-
-
-def _bool(value: Any) -> bool:
-    if not isinstance(value, bool):
-        raise Invalid("expected a boolean")
-    return value
-
-
-def _sign_from_json(value: Any, width: int) -> SignArgument | None:
-    if value is None:
-        return None
-    if not isinstance(value, dict):
-        raise Invalid("sign must be an object")
-    hypotheses = []
-    for item in _list(value.get("hypotheses", [])):
-        pair = _list(item)
-        if len(pair) != 2:
-            raise Invalid("a sign hypothesis is [polynomial, weight]")
-        hypotheses.append((_poly_from_json(pair[0], width), _str(pair[1])))
-    return SignArgument(
-        root=_str(value.get("root")),
-        multiplier=_poly_from_json(value.get("multiplier"), width),
-        nonnegative=_poly_from_json(value.get("nonnegative"), width),
-        nonnegative_cofactors=tuple(_poly_from_json(c, width) for c in _list(value.get("nonnegative_cofactors"))),
-        nonnegative_symbols=tuple(_str(s) for s in _list(value.get("nonnegative_symbols"))),
-        hypotheses=tuple(hypotheses),
-    )
-
-
-def _contradiction_from_json(value: Any, width: int) -> SignContradiction | None:
-    if value is None:
-        return None
-    if not isinstance(value, dict):
-        raise Invalid("contradiction must be an object")
-    return SignContradiction(
-        first=_poly_from_json(value.get("first"), width),
-        first_strict=_bool(value.get("first_strict")),
-        second=_poly_from_json(value.get("second"), width),
-        second_strict=_bool(value.get("second_strict")),
-        ratio=_str(value.get("ratio")),
-        constant=_str(value.get("constant")),
-    )
-
-
-def _witness_from_json(value: Any) -> Witness | None:
-    if value is None:
-        return None
-    if not isinstance(value, dict):
-        raise Invalid("witness must be an object")
-    values = []
-    for item in _list(value.get("values")):
-        pair = _list(item)
-        if len(pair) != 2:
-            raise Invalid("a witness value is [name, value]")
-        values.append((_str(pair[0]), _str(pair[1])))
-    exact = value.get("exact")
-    if not isinstance(exact, bool):
-        raise Invalid("witness.exact must be a boolean")
-    return Witness(tuple(values), _str(value.get("left")), _str(value.get("right")), exact)
-
-
-def result_from_json(value: Any) -> ObligationResult:
-    if not isinstance(value, dict):
-        raise Invalid("an obligation result must be an object")
-    verdict = value.get("verdict")
-    method = value.get("method")
-    if verdict not in _VERDICTS or method not in _METHODS:
-        raise Invalid("unknown verdict or method")
-    vacuous = value.get("vacuous", False)
-    if not isinstance(vacuous, bool):
-        raise Invalid("vacuous must be a boolean")
-    return ObligationResult(
-        label=_str(value.get("label")),
-        verdict=verdict,
-        method=method,
-        reason=_str(value.get("reason")),
-        counter_normal_form=_opt_str(value.get("counter_normal_form")),
-        witness=_witness_from_json(value.get("witness")),
-        assumed=tuple(_str(a) for a in _list(value.get("assumed"))),
-        certificate=_certificate_from_json(value.get("certificate")),
-        vacuous=vacuous,
-    )
+# reading one back is ``result_from_json`` of the kernel's codec (CodecError, a ValueError, when malformed)
 
 
 # ---------------------------------------------------------------- re-checking what was read

@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 from verifier.model.explanation import (
+    CertificateText,
     ClaimExplanation,
     Explanation,
     ObligationExplanation,
@@ -68,18 +69,7 @@ def _obligation_lines(item: ObligationExplanation, several: bool) -> list[str]:
     if item.difference_description:
         lines.append(f"{ind}  in plain terms: {item.difference_description}")
     if item.certificate is not None:
-        power = item.certificate.power
-        target = "LEFT - RIGHT" if power == 1 else f"(LEFT - RIGHT)**{power}"
-        if item.certificate.multiplier is not None:
-            target = f"(LEFT - RIGHT) * ({item.certificate.multiplier})"
-        if not item.certificate.terms:
-            lines.append(f"{ind}certificate: {target} expands to 0")
-        else:
-            lines.append(f"{ind}certificate: {target} = sum of cofactor * generator:")
-            for cofactor, generator in item.certificate.terms:
-                lines.append(f"{ind}  ({cofactor}) * ({generator})")
-        if item.certificate.sign_note is not None:
-            lines.append(f"{ind}  sign argument: {item.certificate.sign_note}")
+        lines.extend(_certificate_lines(item.certificate, ind))
     if result is not None and result.witness is not None:
         w = result.witness
         how = "checked exactly" if w.exact else "checked with high-precision arithmetic"
@@ -112,3 +102,32 @@ def render_explanation(explanation: Explanation) -> str:
     if any(o.accuracy is not None for c in explanation.claims for o in c.obligations):
         lines.append(ACCURACY_DISCLAIMER)
     return "\n".join(lines) + "\n"
+
+
+def _identity_left(certificate: CertificateText) -> str | None:
+    """The side of the certificate's identity that equals sum(cofactor * generator), by proof kind."""
+    if certificate.kind == "conjugate":
+        return f"(LEFT - RIGHT) * ({certificate.multiplier})"
+    if certificate.kind == "real_square":
+        return "(LEFT - RIGHT)**2 + P"
+    if certificate.kind == "sign_contradiction":
+        return "F - ratio*S - constant"
+    if certificate.kind == "shift_contradiction":
+        return None  # no equation is used
+    return "LEFT - RIGHT" if certificate.power == 1 else f"(LEFT - RIGHT)**{certificate.power}"
+
+
+def _certificate_lines(certificate: CertificateText, ind: str) -> list[str]:
+    lines = []
+    left = _identity_left(certificate)
+    if left is None:
+        lines.append(f"{ind}certificate: no equation is needed")
+    elif not certificate.terms:
+        lines.append(f"{ind}certificate: {left} expands to 0")
+    else:
+        lines.append(f"{ind}certificate: {left} = sum of cofactor * generator:")
+        for cofactor, generator in certificate.terms:
+            lines.append(f"{ind}  ({cofactor}) * ({generator})")
+    if certificate.sign_note is not None:
+        lines.append(f"{ind}  sign argument: {certificate.sign_note}")
+    return lines
