@@ -18,6 +18,7 @@ from sympy.polys.rings import PolyElement
 
 from verifier.algebra.groebner import reduce
 from verifier.algebra.translate import Translation, format_poly
+from verifier.model.numbers import fraction_text as _show
 
 MAX_DESCRIBED_TERMS = 4  # a larger difference is left to the counter-normal-form itself
 
@@ -69,10 +70,6 @@ def describe_difference(
             else:
                 phrases.append(f"the coefficient of {unit} is {_show(left)} on the left and {_show(right)} on the right")
     return "; ".join(phrases)
-
-
-def _show(value: Fraction) -> str:
-    return str(value.numerator) if value.denominator == 1 else f"{value.numerator}/{value.denominator}"
 
 
 def normal_forms(

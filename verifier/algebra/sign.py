@@ -37,6 +37,7 @@ from verifier.model.certificate import (
     SignArgument,
     SignContradiction,
 )
+from verifier.model.numbers import fraction_text as _fraction_text
 
 
 def nonnegative_symbols(tr: Translation) -> tuple[str, ...]:
@@ -302,10 +303,6 @@ def find_sign_contradiction(tr: Translation, basis: GroebnerResult | None, *,
             return Certificate(base.symbols, base.target, 1, base.generators, base.cofactors,
                                contradiction=contradiction)
     return None
-
-
-def _fraction_text(value: Fraction) -> str:
-    return str(value.numerator) if value.denominator == 1 else f"{value.numerator}/{value.denominator}"
 
 
 def _contradicts(strict1: bool, strict2: bool, ratio: Fraction, constant: Fraction) -> bool:

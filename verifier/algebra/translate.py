@@ -25,9 +25,11 @@ from sympy import QQ, Symbol
 from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
+from verifier.algebra.evaluate import rational_sqrt as _rational_sqrt  # callers pass only values > 0
 from verifier.model.claim import Condition, Obligation
 from verifier.model.explanation import AuxKind, AuxVariable
 from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
+from verifier.model.numbers import fraction_text as _fraction_text
 
 GeneratorKind = Literal["equation", "nonzero", "inverse", "radical", "trig", "exp"]
 
@@ -95,10 +97,6 @@ def _balanced_call(text: str) -> bool:
             if depth == 0 and i != len(text) - 1:
                 return False
     return True
-
-
-def _fraction_text(value: Fraction) -> str:
-    return str(value.numerator) if value.denominator == 1 else f"{value.numerator}/{value.denominator}"
 
 
 def format_poly(poly: PolyElement, names: dict[str, str] | None = None) -> str:
@@ -583,15 +581,6 @@ def _split_constant_radicand(value: Fraction) -> tuple[Fraction, list[int]] | No
     return outside, primes
 
 
-def _rational_sqrt(value: Fraction) -> Fraction | None:
-    if value < 0:
-        return None
-    n, d = math.isqrt(value.numerator), math.isqrt(value.denominator)
-    if n * n == value.numerator and d * d == value.denominator:
-        return Fraction(n, d)
-    return None
-
-
 def _multiple_angle(c: PolyElement, s: PolyElement, k: int, one: PolyElement) -> tuple[PolyElement, PolyElement]:
     """(cos(k*u), sin(k*u)) from c = cos(u), s = sin(u): the real and imaginary parts of (c + i*s)**k."""
     re, im = one, one * 0
@@ -631,7 +620,7 @@ def _substitute_constants(obligation: Obligation) -> Obligation:
     ``exp(x) == 1 given x == 0`` see the value inside exp, sin and cos."""
     from dataclasses import replace
 
-    from verifier.claims.language import substitute
+    from verifier.model.rewrite import substitute
 
     constants: dict[str, Expr] = {}
     defining: set[int] = set()

@@ -13,6 +13,7 @@ from typing import Sequence
 
 from verifier.model.audit import AuditedFunction, AuditPlan, AuditResult, OneSided
 from verifier.model.claim import Claim, Condition, ExtractionContext, Location, Problem
+from verifier.model.paths import relative_path
 
 _SKIPPED_DIRS = {"__pycache__", ".git", ".hg", ".svn", ".tox", ".venv", "venv", "node_modules", ".idealcheck_cache"}
 
@@ -22,10 +23,6 @@ class AuditError(Exception):
 
 
 # ---------------------------------------------------------------- matching modules and functions
-
-
-def _relative(path: Path, cwd: Path) -> str:
-    return os.path.relpath(path.resolve(), cwd.resolve()).replace(os.sep, "/")
 
 
 def python_modules(root: Path) -> dict[str, Path]:
@@ -61,7 +58,7 @@ def _read(path: Path, cwd: Path):
         text = path.read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError) as exc:
         raise AuditError(f"cannot read {path}: {exc}") from exc
-    return ModuleSource(_relative(path, cwd), text)
+    return ModuleSource(relative_path(path.absolute(), cwd), text)
 
 
 def _unreadable_claim(path: str, message: str) -> Claim:
@@ -138,8 +135,8 @@ def plan_audit(
         listed(key, path, only_a)
     for key, path in only_b_modules:
         listed(key, path, only_b)
-    return AuditPlan(_relative(opt_path, base), _relative(ref_path, base), tuple(functions), tuple(only_a),
-                     tuple(only_b), tuple(unreadable))
+    return AuditPlan(relative_path(opt_path.absolute(), base), relative_path(ref_path.absolute(), base),
+                     tuple(functions), tuple(only_a), tuple(only_b), tuple(unreadable))
 
 
 def run_audit(plan: AuditPlan, options) -> AuditResult:

@@ -38,6 +38,7 @@ from verifier.model.explanation import (
     GeneratorText,
     ObligationExplanation,
 )
+from verifier.model.paths import relative_path
 from verifier.model.verdict import ObligationResult
 
 
@@ -67,7 +68,7 @@ def claims_on_line(path: str, line: int, context: ExtractionContext, *, cwd: str
         text = Path(full).read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError) as exc:
         raise ExplainError(f"cannot read {path}: {exc}") from exc
-    relative = os.path.relpath(os.path.abspath(full), os.path.abspath(cwd)).replace(os.sep, "/")
+    relative = relative_path(path, cwd)
     claims = extract(relative, text, context)
     found = [c for c in claims if c.location.line == line]
     if not found:

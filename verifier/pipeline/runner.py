@@ -23,6 +23,7 @@ from multiprocessing.connection import Connection, wait
 from typing import Any, Protocol, TextIO
 
 from verifier.model.claim import Claim, FileProblem, Problem
+from verifier.model.paths import relative_path
 from verifier.model.verdict import Verdict
 
 # Seconds a worker may run past the claim's own time limit before it is killed: ``decide`` checks its
@@ -457,8 +458,7 @@ class CheckRequest:
 
 
 def _relative(path: str, cwd: str) -> str:
-    absolute = os.path.abspath(os.path.join(cwd, path))
-    return normalize_path(os.path.relpath(absolute, os.path.abspath(cwd)))
+    return relative_path(path, cwd)
 
 
 def _under(path: str, directory: str) -> bool:
