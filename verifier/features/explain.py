@@ -38,6 +38,7 @@ from verifier.model.explanation import (
     GeneratorText,
     ObligationExplanation,
 )
+from verifier.model.limits import DEFAULT_TIMEOUT_SECONDS
 from verifier.model.paths import relative_path
 from verifier.model.verdict import ObligationResult
 
@@ -202,7 +203,7 @@ def _explain_translation(
 def explain_claim(
     claim: Claim,
     *,
-    timeout: float = 10.0,
+    timeout: float = DEFAULT_TIMEOUT_SECONDS,
     accuracy: AccuracySettings | None = None,
     decider: Any = None,
 ) -> ClaimExplanation:
@@ -229,7 +230,7 @@ def explain(
     context: ExtractionContext,
     *,
     cwd: str = ".",
-    timeout: float = 10.0,
+    timeout: float = DEFAULT_TIMEOUT_SECONDS,
     accuracy: AccuracySettings | None = None,
 ) -> Explanation:
     """Explain every claim starting at ``target`` (``FILE:LINE``)."""

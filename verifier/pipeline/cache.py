@@ -37,6 +37,7 @@ from verifier.model.certificate import (
     SignContradiction,
 )
 from verifier.model.claim import Claim, NamedConditionSet
+from verifier.model.limits import DEFAULT_MEMORY_MB, DEFAULT_TIMEOUT_SECONDS
 from verifier.model.verdict import ObligationResult, Verdict, Witness
 
 FORMAT = 1
@@ -516,7 +517,7 @@ class ResultCache:
         version: str,
         conditions: Sequence[NamedConditionSet] = (),
         dependency_text: Callable[[str], str | None],
-        limits: tuple[float, int] = (10.0, 2048),
+        limits: tuple[float, int] = (DEFAULT_TIMEOUT_SECONDS, DEFAULT_MEMORY_MB),
         reuse_inconclusive: bool = False,
     ) -> None:
         self.directory = Path(directory)
