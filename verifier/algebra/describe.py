@@ -14,6 +14,7 @@ from __future__ import annotations
 from fractions import Fraction
 from typing import Callable, Sequence
 
+from sympy import QQ
 from sympy.polys.rings import PolyElement
 
 from verifier.algebra.groebner import reduce
@@ -30,8 +31,6 @@ def _fraction(coeff) -> Fraction:
 
 
 def _term(ring, monom, value: Fraction) -> PolyElement:
-    from sympy import QQ
-
     return ring({monom: QQ(value.numerator, value.denominator)})
 
 

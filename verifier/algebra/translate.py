@@ -21,7 +21,7 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 from typing import Literal, Sequence
 
-from sympy import QQ, Symbol
+from sympy import QQ, Symbol, factorint
 from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
@@ -565,8 +565,6 @@ _FACTOR_LIMIT = 10**12  # constant radicands beyond this are not factored
 
 def _split_constant_radicand(value: Fraction) -> tuple[Fraction, list[int]] | None:
     """sqrt(value) == outside * prod(sqrt(p) for p in primes), value > 0 rational, primes distinct."""
-    from sympy import factorint
-
     numerator = value.numerator * value.denominator  # sqrt(n/d) = sqrt(n*d)/d
     if value <= 0 or numerator > _FACTOR_LIMIT:
         return None

@@ -9,11 +9,14 @@ from __future__ import annotations
 
 import os
 from pathlib import Path
-from typing import Sequence
+from typing import TYPE_CHECKING, Sequence
 
 from verifier.model.audit import AuditedFunction, AuditPlan, AuditResult, OneSided
 from verifier.model.claim import Claim, Condition, ExtractionContext, Location, Problem
 from verifier.model.paths import relative_path
+
+if TYPE_CHECKING:
+    from verifier.claims.audit_pairs import ModuleSource
 
 _SKIPPED_DIRS = {"__pycache__", ".git", ".hg", ".svn", ".tox", ".venv", "venv", "node_modules", ".idealcheck_cache"}
 
@@ -51,7 +54,8 @@ def module_pairs(optimized: Path, reference: Path) -> tuple[list[tuple[str, Path
     raise AuditError("OPTIMIZED and --against must both be Python files or both be folders")
 
 
-def _read(path: Path, cwd: Path):
+def _read(path: Path, cwd: Path) -> ModuleSource:
+    # the audit's claims need libcst: loaded when an audit runs, not by `idealcheck --help`
     from verifier.claims.audit_pairs import ModuleSource
 
     try:
@@ -76,6 +80,7 @@ def plan_audit(
     cwd: str = ".",
 ) -> AuditPlan:
     """Match modules and functions and build one claim per function present in both versions."""
+    # libcst parses the modules: loaded when an audit runs, not by `idealcheck --help`
     from verifier.claims.audit_pairs import (
         ModuleUnreadable,
         function_pair_claim,

@@ -18,6 +18,7 @@ from sympy import QQ, Symbol
 from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
+from verifier.algebra.decide import Limits, decide
 from verifier.algebra.describe import describe_difference
 from verifier.algebra.groebner import GroebnerTimeout, groebner_basis, reduce
 from verifier.algebra.quotient import monomial_text, quotient_structure
@@ -209,8 +210,6 @@ def explain_claim(
 ) -> ClaimExplanation:
     """Decide ``claim`` and explain each of its obligations within ``timeout`` seconds of algebra."""
     if decider is None:
-        from verifier.algebra.decide import Limits, decide
-
         verdict = decide(claim, Limits(timeout=timeout))
     else:
         verdict = decider(claim)

@@ -330,6 +330,7 @@ def result_from_json(value: Any) -> ObligationResult:
 
 
 def _proof_holds(claim: Claim, index: int, result: ObligationResult) -> bool:
+    # the algebra (sympy) loads only when a cached proof is re-checked: keeps `idealcheck --help` fast
     from verifier.algebra.decide import certificate_matches
 
     single = replace(claim, obligations=(claim.obligations[index],))
@@ -366,6 +367,7 @@ def accept(
     Every proof and every witness is re-checked; an ``inconclusive`` claim (which cannot be re-checked)
     is accepted only when ``allow_inconclusive``, i.e. when inconclusive fails the run anyway.
     """
+    # the algebra (sympy) loads only when cached results are read back: keeps `idealcheck --help` fast
     from verifier.algebra.decide import combine
 
     if claim.problem is not None or len(results) != len(claim.obligations) or not results:

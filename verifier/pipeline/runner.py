@@ -187,6 +187,7 @@ def _resolve(decider: str) -> Callable[..., Verdict]:
 
 
 def decide_with_engine(claim: Claim, timeout: float) -> Verdict:
+    # the algebra (sympy) loads in the workers only: keeps `idealcheck --help` fast
     from verifier.algebra.decide import Limits, decide
 
     return decide(claim, Limits(timeout=timeout))
