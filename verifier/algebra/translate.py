@@ -21,13 +21,15 @@ from dataclasses import dataclass, field
 from fractions import Fraction
 from typing import Literal, Sequence
 
-from sympy import QQ, Symbol
+from sympy import QQ, Symbol, factorint
 from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
+from verifier.algebra.evaluate import rational_sqrt as _rational_sqrt  # callers pass only values > 0
 from verifier.model.claim import Condition, Obligation
 from verifier.model.explanation import AuxKind, AuxVariable
 from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
+from verifier.model.numbers import fraction_text as _fraction_text
 
 GeneratorKind = Literal["equation", "nonzero", "inverse", "radical", "trig", "exp"]
 
@@ -95,10 +97,6 @@ def _balanced_call(text: str) -> bool:
             if depth == 0 and i != len(text) - 1:
                 return False
     return True
-
-
-def _fraction_text(value: Fraction) -> str:
-    return str(value.numerator) if value.denominator == 1 else f"{value.numerator}/{value.denominator}"
 
 
 def format_poly(poly: PolyElement, names: dict[str, str] | None = None) -> str:
@@ -567,8 +565,6 @@ _FACTOR_LIMIT = 10**12  # constant radicands beyond this are not factored
 
 def _split_constant_radicand(value: Fraction) -> tuple[Fraction, list[int]] | None:
     """sqrt(value) == outside * prod(sqrt(p) for p in primes), value > 0 rational, primes distinct."""
-    from sympy import factorint
-
     numerator = value.numerator * value.denominator  # sqrt(n/d) = sqrt(n*d)/d
     if value <= 0 or numerator > _FACTOR_LIMIT:
         return None
@@ -581,15 +577,6 @@ def _split_constant_radicand(value: Fraction) -> tuple[Fraction, list[int]] | No
     if len(primes) <= 1 and outside == 1:
         return None  # already a single prime radical: nothing to split
     return outside, primes
-
-
-def _rational_sqrt(value: Fraction) -> Fraction | None:
-    if value < 0:
-        return None
-    n, d = math.isqrt(value.numerator), math.isqrt(value.denominator)
-    if n * n == value.numerator and d * d == value.denominator:
-        return Fraction(n, d)
-    return None
 
 
 def _multiple_angle(c: PolyElement, s: PolyElement, k: int, one: PolyElement) -> tuple[PolyElement, PolyElement]:
@@ -631,7 +618,7 @@ def _substitute_constants(obligation: Obligation) -> Obligation:
     ``exp(x) == 1 given x == 0`` see the value inside exp, sin and cos."""
     from dataclasses import replace
 
-    from verifier.claims.language import substitute
+    from verifier.model.rewrite import substitute
 
     constants: dict[str, Expr] = {}
     defining: set[int] = set()

@@ -40,6 +40,7 @@ from verifier.algebra.evaluate import (
 )
 from verifier.model.claim import Condition
 from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
+from verifier.model.numbers import fraction_text as _fraction_text
 from verifier.model.verdict import Witness
 
 Real = Union[mpf, Fraction]
@@ -289,10 +290,6 @@ def _exact_side_text(x: Fraction) -> str:
         return text
     with mp.workdps(_SIDE_DIGITS + 10):
         return mpmath.nstr(to_mpf(x), _SIDE_DIGITS)
-
-
-def _fraction_text(x: Fraction) -> str:
-    return str(x.numerator) if x.denominator == 1 else f"{x.numerator}/{x.denominator}"
 
 
 # ---------------------------------------------------------------- numeric check

@@ -33,6 +33,8 @@ from verifier.model.expr import (
     Pow,
     Var,
 )
+from verifier.model.numbers import fraction_text
+from verifier.model.rewrite import substitute  # re-exported: callers of the parser use it with parsed trees
 
 # Prefixes that may stand before a known function name (``math.sqrt``, ``np.sqrt``, ``numpy.sqrt``).
 FUNCTION_MODULES = ("math", "np", "numpy")
@@ -552,7 +554,7 @@ _PRECEDENCE = {"+": 1, "-": 1, "*": 2, "/": 2}
 def _show(expr: Expr, context: int) -> str:
     if isinstance(expr, Num):
         value = expr.value
-        text = str(value.numerator) if value.denominator == 1 else f"{value.numerator}/{value.denominator}"
+        text = fraction_text(value)
         needs = value < 0 or (value.denominator != 1 and context >= 2)
         return f"({text})" if needs and context > 0 else text
     if isinstance(expr, Var):
@@ -576,25 +578,6 @@ def _show(expr: Expr, context: int) -> str:
     if isinstance(expr, (Call, Opaque)):
         name = expr.function if isinstance(expr, Call) else expr.name
         return f"{name}({', '.join(_show(arg, 0) for arg in expr.args)})"
-    raise TypeError(f"not an expression: {expr!r}")
-
-
-def substitute(expr: Expr, mapping: Mapping[str, Expr]) -> Expr:
-    """``expr`` with the variables named in ``mapping`` replaced, all at once."""
-    if isinstance(expr, Var):
-        return mapping.get(expr.name, expr)
-    if isinstance(expr, Num):
-        return expr
-    if isinstance(expr, Neg):
-        return Neg(substitute(expr.operand, mapping))
-    if isinstance(expr, BinOp):
-        return BinOp(expr.op, substitute(expr.left, mapping), substitute(expr.right, mapping))
-    if isinstance(expr, Pow):
-        return Pow(substitute(expr.base, mapping), expr.exponent)
-    if isinstance(expr, Call):
-        return Call(expr.function, tuple(substitute(arg, mapping) for arg in expr.args))
-    if isinstance(expr, Opaque):
-        return Opaque(expr.name, tuple(substitute(arg, mapping) for arg in expr.args))
     raise TypeError(f"not an expression: {expr!r}")
 
 

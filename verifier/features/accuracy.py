@@ -33,6 +33,7 @@ from verifier.model.accuracy import (
 )
 from verifier.model.claim import Condition, Obligation
 from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
+from verifier.model.verdict import Verdict
 
 EXACT_DIGITS = 60  # decimal digits of the reference value when it is irrational
 _ATTEMPTS_PER_SAMPLE = 20
@@ -368,3 +369,18 @@ def _more_accurate(left: SideAccuracy, right: SideAccuracy) -> str | None:
         if b < a:
             return "right"
     return None
+
+
+def estimate_verdicts(
+    verdicts: Sequence[Verdict], settings: AccuracySettings
+) -> list[tuple[str, list[AccuracyEstimate]]]:
+    """(heading, estimates) for every proved verdict, one estimate per obligation (a refuted or open
+    claim has no identity whose rounding is worth measuring)."""
+    items: list[tuple[str, list[AccuracyEstimate]]] = []
+    for verdict in verdicts:
+        if verdict.verdict != "proved":
+            continue
+        claim = verdict.claim
+        estimates = [estimate_accuracy(ob, settings) for ob in claim.obligations]
+        items.append((f"{claim.location}: {claim.text}", estimates))
+    return items

@@ -9,10 +9,14 @@ from __future__ import annotations
 
 import os
 from pathlib import Path
-from typing import Sequence
+from typing import TYPE_CHECKING, Sequence
 
 from verifier.model.audit import AuditedFunction, AuditPlan, AuditResult, OneSided
 from verifier.model.claim import Claim, Condition, ExtractionContext, Location, Problem
+from verifier.model.paths import relative_path
+
+if TYPE_CHECKING:
+    from verifier.claims.audit_pairs import ModuleSource
 
 _SKIPPED_DIRS = {"__pycache__", ".git", ".hg", ".svn", ".tox", ".venv", "venv", "node_modules", ".idealcheck_cache"}
 
@@ -22,10 +26,6 @@ class AuditError(Exception):
 
 
 # ---------------------------------------------------------------- matching modules and functions
-
-
-def _relative(path: Path, cwd: Path) -> str:
-    return os.path.relpath(path.resolve(), cwd.resolve()).replace(os.sep, "/")
 
 
 def python_modules(root: Path) -> dict[str, Path]:
@@ -54,14 +54,15 @@ def module_pairs(optimized: Path, reference: Path) -> tuple[list[tuple[str, Path
     raise AuditError("OPTIMIZED and --against must both be Python files or both be folders")
 
 
-def _read(path: Path, cwd: Path):
+def _read(path: Path, cwd: Path) -> ModuleSource:
+    # the audit's claims need libcst: loaded when an audit runs, not by `idealcheck --help`
     from verifier.claims.audit_pairs import ModuleSource
 
     try:
         text = path.read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError) as exc:
         raise AuditError(f"cannot read {path}: {exc}") from exc
-    return ModuleSource(_relative(path, cwd), text)
+    return ModuleSource(relative_path(path.absolute(), cwd), text)
 
 
 def _unreadable_claim(path: str, message: str) -> Claim:
@@ -79,6 +80,7 @@ def plan_audit(
     cwd: str = ".",
 ) -> AuditPlan:
     """Match modules and functions and build one claim per function present in both versions."""
+    # libcst parses the modules: loaded when an audit runs, not by `idealcheck --help`
     from verifier.claims.audit_pairs import (
         ModuleUnreadable,
         function_pair_claim,
@@ -138,8 +140,8 @@ def plan_audit(
         listed(key, path, only_a)
     for key, path in only_b_modules:
         listed(key, path, only_b)
-    return AuditPlan(_relative(opt_path, base), _relative(ref_path, base), tuple(functions), tuple(only_a),
-                     tuple(only_b), tuple(unreadable))
+    return AuditPlan(relative_path(opt_path.absolute(), base), relative_path(ref_path.absolute(), base),
+                     tuple(functions), tuple(only_a), tuple(only_b), tuple(unreadable))
 
 
 def run_audit(plan: AuditPlan, options) -> AuditResult:

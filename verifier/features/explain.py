@@ -18,6 +18,7 @@ from sympy import QQ, Symbol
 from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
+from verifier.algebra.decide import Limits, decide
 from verifier.algebra.describe import describe_difference
 from verifier.algebra.groebner import GroebnerTimeout, groebner_basis, reduce
 from verifier.algebra.quotient import monomial_text, quotient_structure
@@ -46,6 +47,8 @@ from verifier.model.explanation import (
     GeneratorText,
     ObligationExplanation,
 )
+from verifier.model.limits import DEFAULT_TIMEOUT_SECONDS
+from verifier.model.paths import relative_path
 from verifier.model.verdict import ObligationResult
 
 
@@ -75,7 +78,7 @@ def claims_on_line(path: str, line: int, context: ExtractionContext, *, cwd: str
         text = Path(full).read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError) as exc:
         raise ExplainError(f"cannot read {path}: {exc}") from exc
-    relative = os.path.relpath(os.path.abspath(full), os.path.abspath(cwd)).replace(os.sep, "/")
+    relative = relative_path(path, cwd)
     claims = extract(relative, text, context)
     found = [c for c in claims if c.location.line == line]
     if not found:
@@ -240,14 +243,12 @@ def _explain_translation(
 def explain_claim(
     claim: Claim,
     *,
-    timeout: float = 10.0,
+    timeout: float = DEFAULT_TIMEOUT_SECONDS,
     accuracy: AccuracySettings | None = None,
     decider: Any = None,
 ) -> ClaimExplanation:
     """Decide ``claim`` and explain each of its obligations within ``timeout`` seconds of algebra."""
     if decider is None:
-        from verifier.algebra.decide import Limits, decide
-
         verdict = decide(claim, Limits(timeout=timeout))
     else:
         verdict = decider(claim)
@@ -267,7 +268,7 @@ def explain(
     context: ExtractionContext,
     *,
     cwd: str = ".",
-    timeout: float = 10.0,
+    timeout: float = DEFAULT_TIMEOUT_SECONDS,
     accuracy: AccuracySettings | None = None,
 ) -> Explanation:
     """Explain every claim starting at ``target`` (``FILE:LINE``)."""

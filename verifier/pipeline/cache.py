@@ -32,6 +32,7 @@ from typing import Any
 
 from verifier.algebra.kernel.codec import result_from_json, to_json
 from verifier.model.claim import Claim, NamedConditionSet
+from verifier.model.limits import DEFAULT_MEMORY_MB, DEFAULT_TIMEOUT_SECONDS
 from verifier.model.verdict import ObligationResult, Verdict, Witness
 
 FORMAT = 1
@@ -97,6 +98,7 @@ def result_to_json(result: ObligationResult) -> dict[str, Any]:
 
 
 def _proof_holds(claim: Claim, index: int, result: ObligationResult) -> bool:
+    # the algebra (sympy) loads only when a cached proof is re-checked: keeps `idealcheck --help` fast
     from verifier.algebra.decide import certificate_matches
 
     single = replace(claim, obligations=(claim.obligations[index],))
@@ -133,6 +135,7 @@ def accept(
     Every proof and every witness is re-checked; an ``inconclusive`` claim (which cannot be re-checked)
     is accepted only when ``allow_inconclusive``, i.e. when inconclusive fails the run anyway.
     """
+    # the algebra (sympy) loads only when cached results are read back: keeps `idealcheck --help` fast
     from verifier.algebra.decide import combine
 
     if claim.problem is not None or len(results) != len(claim.obligations) or not results:
@@ -284,7 +287,7 @@ class ResultCache:
         version: str,
         conditions: Sequence[NamedConditionSet] = (),
         dependency_text: Callable[[str], str | None],
-        limits: tuple[float, int] = (10.0, 2048),
+        limits: tuple[float, int] = (DEFAULT_TIMEOUT_SECONDS, DEFAULT_MEMORY_MB),
         reuse_inconclusive: bool = False,
     ) -> None:
         self.directory = Path(directory)

@@ -17,6 +17,7 @@ from pathlib import Path
 from typing import Literal
 
 from verifier.model.claim import FileProblem, Location
+from verifier.model.paths import relative_path  # re-exported: discovery names files this way
 
 # Folder names never walked into (explicitly named files inside them are still read).
 SKIPPED_DIRS = frozenset({
@@ -45,13 +46,6 @@ class Discovery:
 
 
 # ---------------------------------------------------------------- paths and globs
-
-
-def relative_path(path: Path | str, cwd: Path) -> str:
-    """``path`` relative to ``cwd`` with forward slashes (``..`` segments for paths outside it)."""
-    absolute = os.path.abspath(os.path.join(str(cwd), str(path)))
-    relative = os.path.relpath(absolute, os.path.abspath(str(cwd)))
-    return relative.replace(os.sep, "/")
 
 
 @lru_cache(maxsize=512)

@@ -20,10 +20,15 @@ import time
 from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass, field
 from multiprocessing.connection import Connection, wait
-from typing import Any, Protocol, TextIO
+from typing import TYPE_CHECKING, Any, Protocol, TextIO
 
 from verifier.model.claim import Claim, FileProblem, Problem
+from verifier.model.limits import DEFAULT_MEMORY_MB, DEFAULT_TIMEOUT_SECONDS
+from verifier.model.paths import relative_path
 from verifier.model.verdict import Verdict
+
+if TYPE_CHECKING:  # the config module is only a type here; workers need not import it
+    from verifier.pipeline.config import Config
 
 # Seconds a worker may run past the claim's own time limit before it is killed: ``decide`` checks its
 # deadline itself and normally returns in time (with a more specific reason); the kill is for a single
@@ -43,8 +48,8 @@ class VerdictCache(Protocol):
 
 @dataclass(frozen=True)
 class RunOptions:
-    timeout: float = 10.0  # seconds per claim
-    memory_mb: int = 2048  # address-space limit of each worker process
+    timeout: float = DEFAULT_TIMEOUT_SECONDS  # seconds per claim
+    memory_mb: int = DEFAULT_MEMORY_MB  # address-space limit of each worker process
     jobs: int | None = None  # worker processes; None = number of cores
     cache: VerdictCache | None = field(default=None, compare=False)
     progress: bool = False  # a progress line on stderr (the command line sets it when stderr is a terminal)
@@ -182,6 +187,7 @@ def _resolve(decider: str) -> Callable[..., Verdict]:
 
 
 def decide_with_engine(claim: Claim, timeout: float) -> Verdict:
+    # the algebra (sympy) loads in the workers only: keeps `idealcheck --help` fast
     from verifier.algebra.decide import Limits, decide
 
     return decide(claim, Limits(timeout=timeout))
@@ -445,7 +451,7 @@ def run(claims: Sequence[Claim], options: RunOptions = RunOptions()) -> list[Ver
 class CheckRequest:
     """What ``idealcheck check`` was asked to do, with the command line already merged into the config."""
 
-    config: Any  # verifier.pipeline.config.Config
+    config: Config
     cwd: str = "."
     paths: tuple[str, ...] = (".",)
     staged: bool = False  # read texts from the git index; only claims touched by staged files
@@ -457,8 +463,7 @@ class CheckRequest:
 
 
 def _relative(path: str, cwd: str) -> str:
-    absolute = os.path.abspath(os.path.join(cwd, path))
-    return normalize_path(os.path.relpath(absolute, os.path.abspath(cwd)))
+    return relative_path(path, cwd)
 
 
 def _under(path: str, directory: str) -> bool:
@@ -481,18 +486,18 @@ def gather_claims(request: CheckRequest) -> tuple[list[Claim], dict[str, str]]:
     directories = [p for p in args if os.path.isdir(os.path.join(cwd, p))]
     files = [p for p in args if p not in directories]
     scan = list(directories) + list(files)
-    root = _relative(str(getattr(config, "root", cwd) or cwd), cwd)
+    root = _relative(str(config.root), cwd)
     if files and not any(_under(root, d) for d in directories):
         scan.append(root)
     discovery = discover.collect(
         tuple(scan),
-        include=tuple(getattr(config, "include", ()) or ()),
-        exclude=tuple(getattr(config, "exclude", ()) or ()),
+        include=config.include,
+        exclude=config.exclude,
         cwd=cwd,
         source="staged" if request.staged else "worktree",
     )
     roots = tuple(dict.fromkeys(directories + [root] if files or not directories else directories))
-    context = ExtractionContext(named_conditions=tuple(getattr(config, "conditions", ()) or ()), roots=roots)
+    context = ExtractionContext(named_conditions=config.conditions, roots=roots)
     texts = {normalize_path(str(f.path)): f.text for f in discovery.files}
     claims = collect_claims(discovery, context)
     unique: dict[str, Claim] = {}
@@ -550,7 +555,7 @@ def with_cache(request: CheckRequest, texts: dict[str, str]) -> RunOptions:
     cache = ResultCache(
         os.path.join(request.cwd, request.cache_dir),
         version=__version__,
-        conditions=tuple(getattr(request.config, "conditions", ()) or ()),
+        conditions=request.config.conditions,
         dependency_text=dependency_text,
         limits=(options.timeout, options.memory_mb),
         reuse_inconclusive=request.on_inconclusive == "fail",

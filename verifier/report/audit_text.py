@@ -49,7 +49,9 @@ def _one_sided(items: tuple[OneSided, ...], where: str) -> list[str]:
 def render_audit_text(result: AuditResult) -> str:
     plan = result.plan
     lines = [f"audit of {plan.optimized} against {plan.reference}"]
-    rows = [(function_label(f.module, f.name), v.verdict, short_detail(v)) for f, v in result.function_verdicts()]
+    rows: list[tuple[str, str, str]] = [
+        (function_label(f.module, f.name), v.verdict, short_detail(v)) for f, v in result.function_verdicts()
+    ]
     extra = result.verdicts[len(plan.functions):]
     rows += [(v.claim.location.path, v.verdict, _short(v.reason)) for v in extra]
     if rows:

@@ -46,22 +46,22 @@ def _obligation_lines(item: ObligationExplanation, several: bool) -> list[str]:
         lines.append(f"{ind}leading-term ideal, minimal generators: " + ", ".join(item.leading_generators))
     s = item.structure
     if s is not None:
-        n = f"{s.variable_count} variables"
+        variables = f"{s.variable_count} variables"
         if item.aux:
-            n += f" ({len(item.aux)} of them auxiliary)"
+            variables += f" ({len(item.aux)} of them auxiliary)"
         if s.dimension < 0:
             lines.append(f"{ind}condition variety: empty (1 is in the ideal)")
         elif s.zero_dimensional:
-            count = str(s.standard_monomial_count) if s.count_complete else f"more than {s.standard_monomial_count}"
-            lines.append(f"{ind}condition variety: dimension 0 in {n} (finitely many points)")
-            lines.append(f"{ind}standard monomials: {count} (the dimension of the quotient ring as a vector space,"
+            monomials = str(s.standard_monomial_count) if s.count_complete else f"more than {s.standard_monomial_count}"
+            lines.append(f"{ind}condition variety: dimension 0 in {variables} (finitely many points)")
+            lines.append(f"{ind}standard monomials: {monomials} (the dimension of the quotient ring as a vector space,"
                          " the number of complex solutions counted with multiplicity)")
             if item.standard_monomials is not None:
                 lines.append(f"{ind}  " + ", ".join(item.standard_monomials))
         else:
             free = ", ".join(item.independent_variables)
             qualifier = "" if s.dimension_exact else "at least "
-            lines.append(f"{ind}condition variety: dimension {qualifier}{s.dimension} in {n}; "
+            lines.append(f"{ind}condition variety: dimension {qualifier}{s.dimension} in {variables}; "
                          f"independent modulo the leading terms: {free}")
     lines.append(f"{ind}normal form of the left side:  {item.left_normal_form}")
     lines.append(f"{ind}normal form of the right side: {item.right_normal_form}")

@@ -43,10 +43,10 @@ def verdict_lines(verdict: Verdict) -> list[str]:
     claim = verdict.claim
     lines = [f"{claim.location}: {verdict.verdict}: {claim.text}"]
     if verdict.method:
-        method = verdict.method
+        method_text: str = verdict.method
         if verdict.cached:
-            method += " (from cache, certificate re-checked)" if verdict.verdict == "proved" else " (from cache)"
-        lines.append(f"{INDENT}method: {method}")
+            method_text += " (from cache, certificate re-checked)" if verdict.verdict == "proved" else " (from cache)"
+        lines.append(f"{INDENT}method: {method_text}")
     elif verdict.cached:
         lines.append(f"{INDENT}from cache (witness re-checked)")
     if verdict.reason:

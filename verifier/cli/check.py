@@ -1,0 +1,118 @@
+"""``idealcheck check [PATH ...]``: argument parsing and exit status of a check (the work is in ``runner``)."""
+from __future__ import annotations
+
+import argparse
+import os
+from collections.abc import Sequence
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+from verifier import __version__
+from verifier.cli.options import (
+    EXIT_FINDINGS,
+    EXIT_OK,
+    UsageError,
+    accuracy_section,
+    accuracy_settings,
+    add_accuracy_options,
+    add_config_option,
+    add_format_options,
+    add_run_mode_options,
+    add_worker_options,
+    emit_report,
+    load_config_or_exit,
+    on_inconclusive,
+    run_options,
+)
+from verifier.pipeline.config import Config
+from verifier.pipeline.discover import DiscoveryError
+from verifier.pipeline.runner import CheckRequest, check, parse_shard
+from verifier.report import fails_run, render
+
+if TYPE_CHECKING:
+    from verifier.cli.options import Subparsers
+
+
+def _shard(text: str) -> tuple[int, int]:
+    try:
+        return parse_shard(text)
+    except ValueError as exc:
+        raise argparse.ArgumentTypeError(str(exc)) from None
+
+
+def register(subparsers: Subparsers) -> None:
+    parser = subparsers.add_parser(
+        "check",
+        help="decide every claim under the given paths",
+        description="Find the idealcheck claims under PATH (default: .) and decide each one exactly.",
+    )
+    parser.add_argument("paths", nargs="*", metavar="PATH", help="files or folders (default: .); "
+                        "a file selects the claims that depend on it, wherever they are in the project")
+    add_format_options(parser, stdout_text="the text report")
+    add_worker_options(parser, unit="claim")
+    parser.add_argument("--shard", type=_shard, metavar="K/N", help="decide only the K-th of N deterministic shares of the claims")
+    parser.add_argument("--staged", action="store_true", help="read the git index and check only claims touched by staged files")
+    parser.add_argument("--since", metavar="REF", help="check only claims touched by files changed since git revision REF")
+    parser.add_argument("--no-cache", action="store_true", help="neither read nor write the result cache")
+    parser.add_argument("--cache-dir", metavar="DIR", help="result cache folder (config: cache_dir; default .idealcheck_cache)")
+    add_run_mode_options(parser, unit="claim")
+    add_config_option(parser)
+    add_accuracy_options(parser)
+    parser.set_defaults(handler=run_check)
+
+
+def cache_dir(args: argparse.Namespace, config: Config, cwd: Path) -> str | None:
+    """The cache folder relative to ``cwd`` (None with ``--no-cache``); a configured one is relative to
+    the folder of the pyproject.toml."""
+    if args.no_cache:
+        return None
+    if args.cache_dir:
+        return str(Path(args.cache_dir))
+    configured_path = Path(config.cache_dir)
+    if not configured_path.is_absolute():
+        configured_path = config.root / configured_path
+    return os.path.relpath(configured_path.resolve(), cwd.resolve())
+
+
+def config_start(paths: Sequence[str] | None, cwd: Path) -> Path:
+    """Where the search for the nearest pyproject.toml starts: the first path checked (so that
+    `idealcheck check some/project` uses that project's settings), else the working directory."""
+    if paths:
+        first = (cwd / paths[0])
+        if first.exists():
+            return first if first.is_dir() else first.parent
+    return cwd
+
+
+def run_check(args: argparse.Namespace) -> int:
+    if args.staged and args.since:
+        raise UsageError("--staged and --since cannot be combined")
+    cwd = Path.cwd()
+    if not args.staged:  # with --staged the index decides what exists
+        missing = [p for p in args.paths if not (cwd / p).exists()]
+        if missing:
+            raise UsageError(f"PATH: no such file or folder: {', '.join(missing)}")
+    config = load_config_or_exit(args, config_start(args.paths, cwd))
+    failing = on_inconclusive(args, config)
+    request = CheckRequest(
+        config=config,
+        cwd=str(cwd),
+        paths=tuple(args.paths) or (".",),
+        staged=args.staged,
+        since=args.since,
+        shard=args.shard,
+        cache_dir=cache_dir(args, config, cwd),
+        options=run_options(args, config),
+        on_inconclusive=failing,
+    )
+    try:
+        verdicts = check(request)
+    except DiscoveryError as exc:
+        raise UsageError(str(exc)) from exc
+    emit_report(
+        args.format,
+        args.output,
+        lambda report_format: render(verdicts, report_format, version=__version__, on_inconclusive=failing),
+        extra=accuracy_section(verdicts, accuracy_settings(args, config)),
+    )
+    return EXIT_FINDINGS if any(fails_run(v, failing) for v in verdicts) else EXIT_OK

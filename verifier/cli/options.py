@@ -1,0 +1,245 @@
+"""What the subcommands share: exit status, option parsers, the config, the limits, ``--accuracy`` and
+where a report goes.
+
+Every option that more than one subcommand takes is added here, so its spelling, help and validation
+are the same everywhere; the command line overrides ``[tool.idealcheck]``, which overrides the defaults
+(``pipeline/config.py``).  ``emit_report`` is the one place that decides which stream or file gets the
+machine-readable report and which the text for people.
+
+``--accuracy-range`` takes ``LO:HI`` (every variable) or ``NAME=LO:HI`` (one variable) and may be given
+several times; write a negative low end as ``--accuracy-range=-5:5`` so it is not read as an option.
+"""
+from __future__ import annotations
+
+import argparse
+import math
+import sys
+from collections.abc import Callable, Sequence
+from pathlib import Path
+from typing import TYPE_CHECKING
+
+from verifier.model.accuracy import DEFAULT_RANGE, DEFAULT_SAMPLES, AccuracySettings
+from verifier.model.verdict import Verdict
+from verifier.pipeline.config import Config, ConfigError, OnInconclusive, load_config
+from verifier.pipeline.runner import RunOptions
+from verifier.report import FORMATS, Format
+
+if TYPE_CHECKING:
+    Subparsers = argparse._SubParsersAction[argparse.ArgumentParser]
+
+EXIT_OK = 0
+EXIT_FINDINGS = 1  # some claim refuted, inconclusive (unless configured to warn) or in error
+EXIT_USAGE = 2  # a bad option value or configuration
+EXIT_INTERRUPTED = 130  # the shell's status for a run stopped by Ctrl-C
+
+FORMAT_CHOICES = FORMATS
+ON_INCONCLUSIVE_CHOICES = ("fail", "warn")
+
+
+class UsageError(Exception):
+    """A bad option value or configuration; printed with the option or key named, exit status 2."""
+
+
+# ---------------------------------------------------------------- value parsers
+
+
+def positive_float(option: str) -> Callable[[str], float]:
+    def parse(text: str) -> float:
+        try:
+            value = float(text)
+        except ValueError:
+            raise argparse.ArgumentTypeError(f"{option} wants a number of seconds, got {text!r}") from None
+        if not value > 0 or value != value or value == float("inf"):
+            raise argparse.ArgumentTypeError(f"{option} wants a positive number, got {text!r}")
+        return value
+
+    return parse
+
+
+def positive_int(option: str) -> Callable[[str], int]:
+    def parse(text: str) -> int:
+        try:
+            value = int(text)
+        except ValueError:
+            raise argparse.ArgumentTypeError(f"{option} wants a whole number, got {text!r}") from None
+        if value < 1:
+            raise argparse.ArgumentTypeError(f"{option} wants a number >= 1, got {text!r}")
+        return value
+
+    return parse
+
+
+def parse_range(text: str) -> tuple[str | None, float, float]:
+    """``LO:HI`` or ``NAME=LO:HI`` -> (name or None, low, high); ArgumentTypeError when malformed."""
+    name: str | None = None
+    body = text
+    if "=" in text:
+        name, body = (part.strip() for part in text.split("=", 1))
+        if not name:
+            raise argparse.ArgumentTypeError(f"--accuracy-range wants NAME=LO:HI or LO:HI, got {text!r}")
+    low_text, sep, high_text = body.partition(":")
+    try:
+        low, high = float(low_text), float(high_text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"--accuracy-range wants numbers LO:HI, got {text!r}") from None
+    if not sep or not (math.isfinite(low) and math.isfinite(high)) or not low < high:
+        raise argparse.ArgumentTypeError(f"--accuracy-range wants finite LO < HI, got {text!r}")
+    return name, low, high
+
+
+def _seed(text: str) -> int:
+    try:
+        return int(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"--accuracy-seed wants a whole number, got {text!r}") from None
+
+
+# ---------------------------------------------------------------- options
+
+
+def add_format_options(parser: argparse.ArgumentParser, *, stdout_text: str) -> None:
+    """``--format`` and ``--output``; ``stdout_text`` names what goes to stdout when ``--output`` is given."""
+    parser.add_argument("--format", choices=FORMAT_CHOICES, default="text", help="report format (default: text)")
+    parser.add_argument("--output", metavar="FILE",
+                        help=f"write the report in --format to FILE; {stdout_text} goes to stdout")
+
+
+def add_timeout_option(parser: argparse.ArgumentParser, help_text: str) -> None:
+    parser.add_argument("--timeout", type=positive_float("--timeout"), metavar="S", help=help_text)
+
+
+def add_worker_options(parser: argparse.ArgumentParser, *, unit: str) -> None:
+    """``--timeout``, ``--memory-mb`` and ``--jobs``: the limits of the workers that decide each ``unit``."""
+    add_timeout_option(parser, f"seconds per {unit} (config: timeout)")
+    parser.add_argument("--memory-mb", type=positive_int("--memory-mb"), metavar="N",
+                        help="memory per worker in MB (config: memory_mb)")
+    parser.add_argument("--jobs", type=positive_int("--jobs"), metavar="N",
+                        help="worker processes (config: jobs; default: number of cores)")
+
+
+def add_run_mode_options(parser: argparse.ArgumentParser, *, unit: str) -> None:
+    """``--on-inconclusive`` and the hidden ``--in-process`` (debugging: no workers, no limits)."""
+    parser.add_argument("--on-inconclusive", choices=ON_INCONCLUSIVE_CHOICES,
+                        help=f"whether an inconclusive {unit} fails the run (config: on_inconclusive)")
+    parser.add_argument("--in-process", action="store_true", help=argparse.SUPPRESS)
+
+
+def add_config_option(parser: argparse.ArgumentParser) -> None:
+    parser.add_argument(
+        "--config", metavar="FILE", help="pyproject.toml to read [tool.idealcheck] from (default: the nearest one)"
+    )
+
+
+def add_accuracy_options(parser: argparse.ArgumentParser) -> None:
+    group = parser.add_argument_group("floating-point accuracy (a sampled estimate, not a bound)")
+    group.add_argument("--accuracy", action="store_true",
+                       help="for proved claims, estimate the rounding error of each side in IEEE double")
+    group.add_argument("--accuracy-samples", type=positive_int("--accuracy-samples"), metavar="N",
+                       help=f"points per claim (config: accuracy.samples; default {DEFAULT_SAMPLES})")
+    group.add_argument("--accuracy-seed", type=_seed, metavar="S", help="random seed (config: accuracy.seed; default 0)")
+    group.add_argument("--accuracy-range", type=parse_range, action="append", default=[], metavar="[NAME=]LO:HI",
+                       help="sampling range for every variable or one, repeatable (config: accuracy.range and "
+                            f"accuracy.ranges; default {DEFAULT_RANGE[0]:g}:{DEFAULT_RANGE[1]:g})")
+
+
+# ---------------------------------------------------------------- the command line over the config
+
+
+def load_config_or_exit(args: argparse.Namespace, start: Path | None = None) -> Config:
+    """The config for ``args.config`` (or the nearest pyproject.toml); ``UsageError`` naming the key if bad."""
+    explicit = Path(args.config) if args.config else None
+    if explicit is not None and not explicit.is_file():
+        raise UsageError(f"--config: no such file: {explicit}")
+    try:
+        return load_config(start or Path.cwd(), explicit)
+    except ConfigError as exc:
+        raise UsageError(f"configuration error: {exc}") from exc
+
+
+def on_inconclusive(args: argparse.Namespace, config: Config) -> OnInconclusive:
+    chosen: OnInconclusive | None = args.on_inconclusive
+    return chosen or config.on_inconclusive
+
+
+def timeout(args: argparse.Namespace, config: Config) -> float:
+    return float(args.timeout) if args.timeout is not None else config.timeout
+
+
+def run_options(args: argparse.Namespace, config: Config) -> RunOptions:
+    """The worker limits of a run: the command line over the config over the defaults."""
+    return RunOptions(
+        timeout=timeout(args, config),
+        memory_mb=args.memory_mb if args.memory_mb is not None else config.memory_mb,
+        jobs=args.jobs if args.jobs is not None else config.jobs,
+        progress=sys.stderr.isatty(),
+        in_process=args.in_process,
+    )
+
+
+def accuracy_settings(args: argparse.Namespace, config: Config) -> AccuracySettings | None:
+    """The settings for ``--accuracy`` (None without it): command line over ``[tool.idealcheck.accuracy]``."""
+    if not args.accuracy:
+        return None
+    configured = config.accuracy
+    samples: int = args.accuracy_samples or configured.samples or DEFAULT_SAMPLES
+    seed: int | None = args.accuracy_seed
+    if seed is None:
+        seed = configured.seed or 0
+    default = configured.range or DEFAULT_RANGE
+    per_variable: dict[str, tuple[float, float]] = {name: (low, high) for name, low, high in configured.ranges}
+    for name, low, high in args.accuracy_range:
+        if name is None:
+            default = (low, high)
+        else:
+            per_variable[name] = (low, high)
+    return AccuracySettings(samples=samples, seed=seed, default_range=default,
+                            ranges=tuple((name, low, high) for name, (low, high) in per_variable.items()))
+
+
+# ---------------------------------------------------------------- where the report goes
+
+
+def accuracy_section(verdicts: Sequence[Verdict], settings: AccuracySettings | None,
+                     side_names: tuple[str, str] = ("left", "right")) -> str:
+    """The ``--accuracy`` text section for the proved verdicts ("" without ``--accuracy``)."""
+    if settings is None:
+        return ""
+    # mpmath (through the evaluators) loads only when accuracy is asked for: keeps --help fast
+    from verifier.features.accuracy import estimate_verdicts
+    from verifier.report.accuracy_text import render_accuracy_section
+
+    return render_accuracy_section(estimate_verdicts(verdicts, settings), side_names)
+
+
+def emit_report(
+    report_format: Format,
+    output: str | None,
+    render: Callable[[Format], str],
+    *,
+    extra: str = "",
+    text_beside_machine: bool = False,
+) -> None:
+    """Write a report where the options say.
+
+    ``render(format)`` gives the report in a format ("text": the report for people); ``extra`` is text
+    that only people read (the accuracy section).  With ``--output`` the file gets the report in
+    ``--format`` and stdout the text; without it stdout gets the report in ``--format``, and when that
+    is machine-readable the extra text (and the text report, if ``text_beside_machine``) goes to stderr
+    so that stdout stays parseable.
+    """
+    if output:
+        text = render("text")
+        written = text if report_format == "text" else render(report_format)
+        try:
+            Path(output).write_text(written, encoding="utf-8")
+        except OSError as exc:
+            raise UsageError(f"--output: cannot write {output}: {exc.strerror or exc}") from exc
+        sys.stdout.write(text + extra)
+    elif report_format == "text":
+        sys.stdout.write(render("text") + extra)
+    else:
+        sys.stdout.write(render(report_format))
+        aside = (render("text") if text_beside_machine else "") + extra
+        if aside:
+            sys.stderr.write(aside)
+    sys.stdout.flush()
