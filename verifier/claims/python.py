@@ -3,7 +3,8 @@
 Plain ``LEFT == RIGHT`` comments go to the expression reader like in any file.  The other forms are tied
 to the code: a function claim sits in the comment lines directly above a ``def`` (decorators may sit in
 between), a statement claim trails an assignment, augmented or annotated assignment, or a return.  The
-code is read with libcst and executed symbolically (``verifier.claims.execute``, after the Python front end lowers it to the IR); it is never imported or run.
+code is read with libcst, lowered to the kernel IR by ``verifier.claims.frontends.python`` and executed
+symbolically by ``verifier.claims.execute``; it is never imported or run.
 """
 from __future__ import annotations
 
