@@ -25,8 +25,9 @@ How constructs of the front-end languages map onto the IR (the front end does th
 - Struct fields ``q.w`` / ``q->w`` / ``q%w``: reading is ``Field(Name("q"), "w")``; writing is
   ``ToField("q", "w")`` (nested ``q.a.b`` is ``ToField("q.a", "b")``).  A field that was never written
   reads as the variable ``q.w`` (the claim language spells it so).
-- Arrays: reading ``v[i]`` is ``Element(Name("v"), (i,))`` (``a[i][j]`` is ``Element(Element(a, (i,)),
-  (j,))``; Fortran ``a(i, j)`` and numpy ``a[i, j]`` are ``Element(a, (i, j))``).  Indices must evaluate
+- Arrays: reading ``v[i]`` is ``Element(Name("v"), (i,))``; ``a[i][j]`` and Fortran ``a(i, j)`` are
+  ``Element(Element(a, (i,)), (j,))`` so that reads see ``ToElement`` writes (numpy ``a[i, j]`` is
+  ``Element(a, (i, j))``).  Indices must evaluate
   to integer constants (literals, or loop counters of unrolled loops); an element never written reads as
   the variable ``v[0]``.  Writing is ``ToElement("v", (i,))`` (``a[i][j] = e`` is ``ToElement("a", (i, j))``
   - successive subscripts).  A local array declaration ``double v[3];`` is ``Assign((ToLocal("v"),),
