@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Callable, Iterator, Literal, MutableMapping, Protocol, Sequence, TypeVar, Union
+from typing import Callable, Iterator, Literal, Mapping, MutableMapping, Protocol, Sequence, TypeVar, Union
 
 from verifier.model.functions import CONSTANTS, FUNCTIONS
 
@@ -254,3 +254,10 @@ def variables(expr: Expr) -> set[str]:
 def has_opaque(expr: Expr) -> bool:
     """True when the expression has a value the tool cannot compute (pi is computable)."""
     return any(isinstance(node, Opaque) and not is_constant(node) for node in postorder(expr))
+
+
+def substitute(expr: Expr, mapping: Mapping[str, Expr]) -> Expr:
+    """``expr`` with the variables named in ``mapping`` replaced, all at once."""
+    if not mapping:
+        return expr
+    return map_expr(expr, lambda node: mapping.get(node.name, node) if isinstance(node, Var) else node)
