@@ -46,7 +46,7 @@ def format_poly(poly: PolyElement, names: dict[str, str] | None = None) -> str:
         return "0"
     ring = poly.ring
     symbols = [names.get(str(s), str(s)) for s in ring.symbols]
-    parts: list[str] = []
+    parts: list[tuple[str, str]] = []
     for monom, coeff in sorted(poly.terms(), key=lambda t: ring.order(t[0]), reverse=True):
         value = Fraction(int(coeff.numerator), int(coeff.denominator))
         factors = []
@@ -63,10 +63,10 @@ def format_poly(poly: PolyElement, names: dict[str, str] | None = None) -> str:
             body = "*".join(factors)
         else:
             body = fraction_text(magnitude) + "*" + "*".join(factors)
-        parts.append((sign, body))  # type: ignore[arg-type]
-    first_sign, first_body = parts[0]  # type: ignore[misc]
+        parts.append((sign, body))
+    first_sign, first_body = parts[0]
     text = ("-" if first_sign == "-" else "") + first_body
-    for sign, body in parts[1:]:  # type: ignore[misc]
+    for sign, body in parts[1:]:
         text += f" {sign} {body}"
     return text
 

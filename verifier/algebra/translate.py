@@ -86,6 +86,7 @@ def _positive_variables(conditions: Sequence[Condition]) -> set[str]:
     """Variables v with a hypothesis v > c (c >= 0) or v >= c (c > 0), in either orientation."""
     mirror = {"<": ">", "<=": ">=", ">": "<", ">=": "<="}
     out = set()
+    relation: str
     for cond in conditions:
         left, right, relation = cond.left, cond.right, cond.relation
         if isinstance(right, Var) and isinstance(left, Num) and relation in mirror:

@@ -382,7 +382,8 @@ class Translator:
     def prescan(self, exprs: Sequence[Expr]) -> None:
         for expr in exprs:
             for call in _scaled_calls(expr):
-                table = self._exp_scale if call.function == "exp" else self._angle_scale
+                exponential = FUNCTIONS[call.function].family == "exponential"
+                table = self._exp_scale if exponential else self._angle_scale
                 for key, _direction, coeff in self._directions(self.value(call.args[0])):
                     table[key] = _lcm(table.get(key, 1), coeff.denominator)
         # the pre-scan created no auxiliary variables for angles (only for the arguments' own

@@ -78,9 +78,7 @@ def exact_check(problem: WitnessProblem, point: Mapping[str, Fraction],
             equations_fail = True  # a decimal point may lie next to a true solution: refine numerically
     left = exact_value(problem.left, point)
     right = exact_value(problem.right, point)
-    if left is None or right is None:
-        undecided = True
-    if undecided or equations_fail:
+    if undecided or equations_fail or left is None or right is None:
         return "numeric", None
     if left == right:
         return "fails", None

@@ -79,6 +79,7 @@ _FLIPPED = {"<": ">", "<=": ">=", ">": "<", ">=": "<="}
 def variable_bounds(problem: WitnessProblem) -> dict[str, Bound]:
     """Bounds on single variables from sign conditions against constants (``x > 1/2``, ``0 <= y``)."""
     bounds: dict[str, Bound] = {}
+    relation: str
     for c in problem.others:
         if c.relation not in _FLIPPED:
             continue

@@ -128,21 +128,22 @@ def children(expr: Expr) -> tuple[Expr, ...]:
     return ()
 
 
-def _apply(folder: ExprFold[T], node: Expr, folded: Callable[[Expr], T]) -> T:
+def _apply(folder: ExprFold[T], node: Expr, folded: Mapping[int, T]) -> T:
+    """``node`` folded, its children's results looked up by identity in ``folded``."""
     if isinstance(node, Num):
         return folder.num(node)
     if isinstance(node, Var):
         return folder.var(node)
     if isinstance(node, BinOp):
-        return folder.binop(node, folded(node.left), folded(node.right))
+        return folder.binop(node, folded[id(node.left)], folded[id(node.right)])
     if isinstance(node, Neg):
-        return folder.neg(node, folded(node.operand))
+        return folder.neg(node, folded[id(node.operand)])
     if isinstance(node, Pow):
-        return folder.pow(node, folded(node.base))
+        return folder.pow(node, folded[id(node.base)])
     if isinstance(node, Call):
-        return folder.call(node, [folded(arg) for arg in node.args])
+        return folder.call(node, [folded[id(arg)] for arg in node.args])
     if isinstance(node, Opaque):
-        return folder.opaque(node, [folded(arg) for arg in node.args])
+        return folder.opaque(node, [folded[id(arg)] for arg in node.args])
     raise TypeError(f"not an expression: {node!r}")
 
 
@@ -150,30 +151,29 @@ def fold(expr: Expr, folder: ExprFold[T], memo: MutableMapping[Expr, T] | None =
     """``expr`` folded bottom-up: children first (left to right), then the node with their results.
 
     Each distinct node object is folded once.  With ``memo`` (kept by the caller across folds) nodes are
-    told apart by value instead: an equal sub-tree met again, in this fold or a later one, is not folded
+    also told apart by value: an equal sub-tree met again, in this fold or a later one, is not folded
     again.  (Hashing by value costs a walk of the sub-tree; identity is the cheap default.)
     """
-    by_value = memo is not None
-    results: MutableMapping = memo if memo is not None else {}
-
-    def key(node: Expr) -> object:
-        return node if by_value else id(node)
-
-    def folded(node: Expr) -> T:
-        return results[key(node)]
-
+    # every node folded or found in this fold, by identity; the stack holds (node, children done)
+    results: dict[int, T] = {}
     stack: list[tuple[Expr, bool]] = [(expr, False)]
     while stack:
         node, expanded = stack.pop()
         if expanded:
-            results[key(node)] = _apply(folder, node, folded)
+            value = _apply(folder, node, results)
+            results[id(node)] = value
+            if memo is not None:
+                memo[node] = value
             continue
-        if key(node) in results:
+        if id(node) in results:
+            continue
+        if memo is not None and node in memo:
+            results[id(node)] = memo[node]
             continue
         stack.append((node, True))
         for child in reversed(children(node)):
             stack.append((child, False))
-    return results[key(expr)]
+    return results[id(expr)]
 
 
 class _Rebuild:
