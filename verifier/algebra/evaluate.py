@@ -17,7 +17,7 @@ import mpmath
 from mpmath import mp, mpf
 
 from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold, is_constant
-from verifier.model.expr import children, has_opaque, postorder, variables  # noqa: F401  (re-exported)
+from verifier.model.expr import has_opaque, variables  # noqa: F401  (re-exported for the evaluators' callers)
 from verifier.model.functions import (
     CONSTANTS,
     FUNCTIONS,
@@ -25,13 +25,14 @@ from verifier.model.functions import (
     HighPrecision,
     NotEvaluable,
     NotRational,
+    exact_sqrt,
     numeric_sqrt,
     rational_sqrt,
 )
 
 __all__ = [
-    "DomainError", "NotEvaluable", "children", "exact_value", "float_value", "has_opaque", "numeric_value",
-    "postorder", "rational_sqrt", "tiny", "to_mpf", "variables",
+    "DomainError", "NotEvaluable", "exact_value", "float_value", "has_opaque", "numeric_value", "rational_sqrt",
+    "tiny", "to_mpf", "variables",
 ]
 
 Real = Union[mpf, Fraction]
@@ -91,7 +92,7 @@ class _ExactValues:
     def pow(self, node: Pow, base: Fraction) -> Fraction:
         exponent = Fraction(node.exponent)
         if exponent.denominator == 2:
-            base = _exact_sqrt(base)
+            base = exact_sqrt(base)
         elif exponent.denominator != 1:
             raise ValueError(f"unsupported exponent {exponent}")
         k = exponent.numerator
@@ -112,13 +113,6 @@ class _ExactValues:
         if is_constant(node):
             return self._bounded(CONSTANTS[node.name].exact(()))
         raise _opaque_error(node)
-
-
-def _exact_sqrt(value: Fraction) -> Fraction:
-    root = rational_sqrt(value)
-    if root is None:
-        raise NotRational()
-    return root
 
 
 def exact_value(expr: Expr, values: Mapping[str, Fraction]) -> Fraction | None:

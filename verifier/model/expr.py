@@ -1,10 +1,11 @@
 """Expression trees of the claim language: plain frozen data, never a sympy object, never evaluated.
 
 The claims layer builds them, the algebra layer translates them into polynomials, and the evaluators
-compute their values at points.  Every walk over a tree goes through ``fold`` (post-order, children
-already folded) or ``map_expr`` (a bottom-up rebuild), both iterative: symbolic execution builds deep
-trees (unrolled loops) that share sub-trees (DAGs), so each distinct node object is visited once and
-Python's recursion limit is never reached.
+compute their values at points.  Every walk over a tree goes through ``fold`` (post-order, one method
+per node kind receiving its children already folded) or ``map_expr`` (a bottom-up rebuild); ``preorder``
+lists nodes parents first where the order of first visits matters.  All are iterative: symbolic
+execution builds deep trees (unrolled loops) that share sub-trees (DAGs), so each distinct node object
+is visited once and Python's recursion limit is never reached.
 """
 from __future__ import annotations
 
