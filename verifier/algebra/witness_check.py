@@ -99,6 +99,9 @@ def fraction_text(x: Fraction) -> str:
     return str(x.numerator) if x.denominator == 1 else f"{x.numerator}/{x.denominator}"
 
 
+# ---------------------------------------------------------------- numeric check
+
+
 def _refine(problem: WitnessProblem, point: Mapping[str, Real], prec: int, deadline: float | None = None
             ) -> tuple[dict[str, Real], list[mpf]] | None:
     """Move the point onto the equations: Newton on a maximal set of equations whose Jacobian has full
