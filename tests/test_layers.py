@@ -31,13 +31,7 @@ TOP_LEVEL = {"verifier": -1, "verifier.api": 4, "verifier.__main__": 5, "verifie
 
 # being split: other changes are cutting these below the limit; empty this set once they are merged
 BEING_SPLIT = frozenset({
-    "verifier/claims/symexec.py",
-    "verifier/claims/language.py",
-    "verifier/claims/python.py",
-    "verifier/algebra/witness.py",
-    "verifier/algebra/translate.py",
     "verifier/pipeline/runner.py",
-    "verifier/pipeline/cache.py",
 })
 # over the limit too but on no one's list yet (found by this test): to split, then remove from here
 NOT_YET_SPLIT = frozenset({"verifier/algebra/groebner.py"})

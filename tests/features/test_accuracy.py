@@ -11,6 +11,7 @@ from exprs import cond, expr
 from verifier.model.accuracy import AccuracySettings
 from verifier.features.accuracy import estimate_accuracy, float_value, reference_value, ulp_error
 from verifier.model.claim import Obligation
+from verifier.claims.language import parse_expression
 
 NAIVE_ROOT = "(-b + sqrt(b*b - 4*a*c))/(2*a)"
 CONJUGATE_ROOT = "2*c/(-b - sqrt(b*b - 4*a*c))"
@@ -160,3 +161,27 @@ def test_bad_accuracy_config_is_a_usage_error(tmp_path, monkeypatch, table, cli)
     run = cli("check", ".", "--no-cache", "--in-process")
     assert run.code == 2
     assert "tool.idealcheck.accuracy" in run.err
+
+
+def test_check_accuracy_measures_a_claim_with_pi(tmp_path, cli):
+    # sin(x + pi/2) == cos(x) (the shift formula, common practice): proved with pi as an unknown constant,
+    # and measured in double with pi as math.pi (the double evaluator once refused pi: "not measured")
+    (tmp_path / "angles.txt").write_text("# idealcheck: sin(x + pi/2) == cos(x)\n")
+    code, out, _ = cli("check", "angles.txt", "--no-cache", "--in-process", "--accuracy", "--accuracy-samples", "25",
+                       cwd=tmp_path)
+    assert code == 0
+    assert "proved: sin(x + pi/2) == cos(x)" in out
+    assert "not measured" not in out
+    assert "25 sampled points" in out
+    left_line = next(line for line in out.splitlines() if line.strip().startswith("left"))
+    assert "ulp" in left_line and "x = " in left_line
+
+
+def test_estimate_with_pi_uses_its_double_value():
+    ob = Obligation(parse_expression("cos(pi - x)"), parse_expression("-cos(x)"))
+    estimate = estimate_accuracy(ob, AccuracySettings(samples=30, seed=3))
+    assert estimate.problem is None
+    assert estimate.samples == 30
+    # both sides are a cosine (and a subtraction): within a few ulps except near a zero of cos, where the
+    # rounding of pi - x is magnified; the median stays small
+    assert estimate.right.median_ulps < 2

@@ -10,7 +10,7 @@ from exprs import expr
 from verifier.model.expr import Var
 from verifier.model.numbers import fraction_text
 from verifier.model.paths import relative_path
-from verifier.model.rewrite import substitute
+from verifier.model.expr import substitute
 
 
 def test_fraction_text_is_lowest_terms_with_the_sign_in_front() -> None:

@@ -16,6 +16,7 @@ from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
 from verifier.model.certificate import PolyData
+from verifier.model.numbers import fraction_text  # re-exported
 
 _COEFFICIENT = re.compile(r"-?[0-9]{1,4000}(/[1-9][0-9]{0,3999})?")
 _FRACTION = re.compile(r"-?[0-9]{1,200}(/[1-9][0-9]{0,199})?")  # a weight, ratio or shift; zero allowed
@@ -32,10 +33,6 @@ def poly_to_data(p: PolyElement) -> PolyData:
         terms.append((text, tuple(int(e) for e in monom)))
     return tuple(sorted(terms, key=lambda t: t[1], reverse=True))
 
-
-def fraction_text(value: Fraction) -> str:
-    """``value`` as "p" or "p/q", the form ``strict_fraction`` reads back."""
-    return str(value.numerator) if value.denominator == 1 else f"{value.numerator}/{value.denominator}"
 
 
 def strict_fraction(text: Any) -> Fraction:

@@ -16,6 +16,7 @@ from verifier.claims.execute.values import (
     is_array,
 )
 from verifier.model.expr import BinOp, Call, Neg, Num, Opaque, Pow
+from verifier.model.numbers import fraction_text  # re-exported
 
 MAX_TREE_SIZE = 50000  # nodes of an expression counted as a tree (shared parts counted each time)
 MAX_CONSTANT_EXPONENT = 64  # folding n**k of constants beyond this is left symbolic
@@ -23,9 +24,6 @@ MAX_REPEAT = 4096  # longest sequence built by `seq * n` or zeros(n)
 ARITHMETIC = frozenset({"+", "-", "*", "/", "**"})
 BIT_OPERATORS = frozenset({"&", "|", "^", "<<", ">>"})
 
-
-def fraction_text(value: Fraction) -> str:
-    return str(value.numerator) if value.denominator == 1 else f"{value.numerator}/{value.denominator}"
 
 
 class Arithmetic:
