@@ -7,6 +7,7 @@ from verifier.model.explanation import (
     ObligationExplanation,
 )
 from verifier.report.accuracy_text import ACCURACY_DISCLAIMER, accuracy_lines
+from verifier.report.escape import shown_lines
 from verifier.report.common import witness_values_text
 
 INDENT = "    "
@@ -111,4 +112,4 @@ def render_explanation(explanation: Explanation) -> str:
         lines.extend(claim_lines(item))
     if any(o.accuracy is not None for c in explanation.claims for o in c.obligations):
         lines.append(ACCURACY_DISCLAIMER)
-    return "\n".join(lines) + "\n"
+    return shown_lines(lines)
