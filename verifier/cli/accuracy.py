@@ -45,13 +45,21 @@ def _seed(text: str) -> int:
         raise argparse.ArgumentTypeError(f"--accuracy-seed wants a whole number, got {text!r}") from None
 
 
-def add_accuracy_options(parser: argparse.ArgumentParser) -> None:
+def _bounded_samples(text: str) -> int:
     from verifier.cli.main import _positive_int
+    from verifier.pipeline.config import MAX_ACCURACY_SAMPLES as MAX_SAMPLES
 
+    value = _positive_int("--accuracy-samples")(text)
+    if value > MAX_SAMPLES:
+        raise argparse.ArgumentTypeError(f"--accuracy-samples wants at most {MAX_SAMPLES}, got {text!r}")
+    return value
+
+
+def add_accuracy_options(parser: argparse.ArgumentParser) -> None:
     group = parser.add_argument_group("floating-point accuracy (a sampled estimate, not a bound)")
     group.add_argument("--accuracy", action="store_true",
                        help="for proved claims, estimate the rounding error of each side in IEEE double")
-    group.add_argument("--accuracy-samples", type=_positive_int("--accuracy-samples"), metavar="N",
+    group.add_argument("--accuracy-samples", type=_bounded_samples, metavar="N",
                        help=f"points per claim (config: accuracy.samples; default {DEFAULT_SAMPLES})")
     group.add_argument("--accuracy-seed", type=_seed, metavar="S", help="random seed (config: accuracy.seed; default 0)")
     group.add_argument("--accuracy-range", type=parse_range, action="append", default=[], metavar="[NAME=]LO:HI",
@@ -81,21 +89,38 @@ def accuracy_settings(args: argparse.Namespace, config: Any = None) -> AccuracyS
                             ranges=tuple((name, low, high) for name, (low, high) in per_variable.items()))
 
 
-def estimates_for(verdicts: Sequence[Verdict], settings: AccuracySettings) -> list[tuple[str, list[AccuracyEstimate]]]:
-    """(heading, estimates) for every proved verdict, one estimate per obligation."""
+def estimates_for(verdicts: Sequence[Verdict], settings: AccuracySettings,
+                  options: Any = None) -> list[tuple[str, list[AccuracyEstimate]]]:
+    """(heading, estimates) for every proved verdict, one estimate per obligation.
+
+    With ``options`` (``runner.RunOptions``) each estimate is sampled in a worker under the claim's time
+    and memory limits, so a huge sample count cannot hold up the run.
+    """
+    proved = [v for v in verdicts if v.verdict == "proved"]
+    obligations = [ob for v in proved for ob in v.claim.obligations]
+    if options is None:
+        estimates = [estimate_accuracy(ob, settings) for ob in obligations]
+    else:
+        from verifier.pipeline.runner import run_limited
+
+        def stopped(args: tuple[Any, ...], why: str) -> AccuracyEstimate:
+            return AccuracyEstimate(args[0].label, 0, 0, None, None, None, problem=f"sampling stopped: {why}")
+
+        estimates = run_limited("verifier.features.accuracy:estimate_accuracy",
+                                [(ob, settings) for ob in obligations], options, stopped)
     items: list[tuple[str, list[AccuracyEstimate]]] = []
-    for verdict in verdicts:
-        if verdict.verdict != "proved":
-            continue
-        claim = verdict.claim
-        estimates = [estimate_accuracy(ob, settings) for ob in claim.obligations]
-        items.append((f"{claim.location}: {claim.text}", estimates))
+    position = 0
+    for verdict in proved:
+        count = len(verdict.claim.obligations)
+        items.append((f"{verdict.claim.location}: {verdict.claim.text}", estimates[position:position + count]))
+        position += count
     return items
 
 
 def accuracy_report(
-    verdicts: Sequence[Verdict], settings: AccuracySettings, side_names: tuple[str, str] = ("left", "right")
+    verdicts: Sequence[Verdict], settings: AccuracySettings, side_names: tuple[str, str] = ("left", "right"),
+    options: Any = None,
 ) -> str:
     from verifier.report.accuracy_text import render_accuracy_section
 
-    return render_accuracy_section(estimates_for(verdicts, settings), side_names)
+    return render_accuracy_section(estimates_for(verdicts, settings, options), side_names)

@@ -84,6 +84,15 @@ def _positive_int(option: str):
     return parse
 
 
+def _memory_mb(text: str) -> int:
+    from verifier.pipeline.workers import MAX_MEMORY_MB
+
+    value = _positive_int("--memory-mb")(text)
+    if value > MAX_MEMORY_MB:
+        raise argparse.ArgumentTypeError(f"--memory-mb wants at most {MAX_MEMORY_MB}, got {text!r}")
+    return value
+
+
 def _shard(text: str) -> tuple[int, int]:
     from verifier.pipeline.runner import parse_shard
 
@@ -104,7 +113,7 @@ def _register_check(subparsers: Any) -> None:
     parser.add_argument("--format", choices=FORMAT_CHOICES, default="text", help="report format (default: text)")
     parser.add_argument("--output", metavar="FILE", help="write the report in --format to FILE; the text report goes to stdout")
     parser.add_argument("--timeout", type=_positive_float("--timeout"), metavar="S", help="seconds per claim (config: timeout)")
-    parser.add_argument("--memory-mb", type=_positive_int("--memory-mb"), metavar="N", help="memory per worker in MB (config: memory_mb)")
+    parser.add_argument("--memory-mb", type=_memory_mb, metavar="N", help="memory per worker in MB (config: memory_mb)")
     parser.add_argument("--jobs", type=_positive_int("--jobs"), metavar="N", help="worker processes (config: jobs; default: number of cores)")
     parser.add_argument("--shard", type=_shard, metavar="K/N", help="decide only the K-th of N deterministic shares of the claims")
     parser.add_argument("--staged", action="store_true", help="read the git index and check only claims touched by staged files")
@@ -130,7 +139,8 @@ def _cache_dir(args: argparse.Namespace, config: Any, cwd: Path) -> str | None:
     if not configured_path.is_absolute():
         root = Path(getattr(config, "root", None) or cwd)
         configured_path = root / configured_path
-    return os.path.relpath(configured_path.resolve(), cwd.resolve())
+    # not resolved: a cache path that is a symbolic link must be seen as one (and refused)
+    return os.path.relpath(os.path.abspath(configured_path), os.path.abspath(cwd))
 
 
 def config_start(paths: Sequence[str] | None, cwd: Path) -> Path:
@@ -156,8 +166,23 @@ def run_options(args: argparse.Namespace, config: Any) -> Any:
     )
 
 
+def write_stdout(text: str) -> None:
+    """Write a report to stdout; a device that refuses it (full, closed) is a usage error, not a traceback."""
+    try:
+        sys.stdout.write(text)
+        sys.stdout.flush()
+    except OSError as exc:
+        try:  # nothing more can reach stdout: keep the interpreter from failing again at exit
+            devnull = os.open(os.devnull, os.O_WRONLY)
+            os.dup2(devnull, sys.stdout.fileno())
+            os.close(devnull)
+        except (OSError, ValueError):
+            pass
+        raise UsageError(f"cannot write the report to standard output: {exc.strerror or exc}") from None
+
+
 def run_check(args: argparse.Namespace) -> int:
-    from verifier.pipeline.runner import CheckRequest, check
+    from verifier.pipeline.runner import CheckRequest, check_run
     from verifier.report import fails_run, render
 
     if args.staged and args.since:
@@ -184,28 +209,28 @@ def run_check(args: argparse.Namespace) -> int:
     from verifier.pipeline.discover import DiscoveryError
 
     try:
-        verdicts = check(request)
+        result = check_run(request)
     except DiscoveryError as exc:
         raise UsageError(str(exc)) from exc
-    report = render(verdicts, args.format, version=__version__, on_inconclusive=on_inconclusive)
+    verdicts, skipped = list(result.verdicts), result.skipped
+    report = render(verdicts, args.format, version=__version__, on_inconclusive=on_inconclusive, skipped=skipped)
     if args.output:
         try:
             Path(args.output).write_text(report, encoding="utf-8")
         except OSError as exc:
             raise UsageError(f"--output: cannot write {args.output}: {exc.strerror or exc}") from exc
         if args.format != "text":
-            report = render(verdicts, "text", version=__version__, on_inconclusive=on_inconclusive)
+            report = render(verdicts, "text", version=__version__, on_inconclusive=on_inconclusive, skipped=skipped)
     from verifier.cli.accuracy import accuracy_report, accuracy_settings
 
     settings = accuracy_settings(args, config)
     if settings is not None:  # a text section: after the text report, else on stderr beside machine output
-        section = accuracy_report(verdicts, settings)
+        section = accuracy_report(verdicts, settings, options=options)
         if args.format == "text" or args.output:
             report += section
         else:
             sys.stderr.write(section)
-    sys.stdout.write(report)
-    sys.stdout.flush()
+    write_stdout(report)
     return EXIT_FINDINGS if any(fails_run(v, on_inconclusive) for v in verdicts) else EXIT_OK
 
 

@@ -156,6 +156,14 @@ def perform(job: Job, settings: PoolSettings) -> Any:
     if job.kind == "extract":
         path, text, context = job.payload
         return extract_guarded(path, text, context, settings.memory_mb)
+    if job.kind == "call":  # a named function of a higher layer (accuracy sampling), like the decider
+        function, args = job.payload
+        try:
+            return ("ok", _resolve(function)(*args))
+        except MemoryError:
+            return ("memory", memory_limit_reason(settings.memory_mb))
+        except Exception as exc:
+            return ("error", f"{type(exc).__name__}: {exc}")
     raise ValueError(f"unknown job kind {job.kind!r}")
 
 
@@ -165,5 +173,7 @@ def unsendable(job: Job, result: Any, exc: BaseException, settings: PoolSettings
     if job.kind == "decide":
         claim = job.payload[0]
         return limit_verdict(claim, why, getattr(result[0], "seconds", 0.0), verdict="error"), False
+    if job.kind == "call":
+        return ("error", why)
     path = job.payload[0]
     return [file_problem_claim(FileProblem(Location(path, 1, 1), why))]

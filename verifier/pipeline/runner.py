@@ -226,6 +226,25 @@ def _decide_all(
     return results
 
 
+def run_limited(function: str, calls: Sequence[tuple[Any, ...]], options: RunOptions,
+                fallback: Callable[[tuple[Any, ...], str], Any]) -> list[Any]:
+    """``function(*args)`` ("module:function") for every ``args`` of ``calls``, each in a worker under the
+    claim's time and memory limits; a call that fails or overruns gets ``fallback(args, why)``."""
+    if options.in_process:
+        from verifier.pipeline.jobs import perform
+
+        outcomes = [perform(Job("call", (function, args), options.timeout), options.pool()) for args in calls]
+    else:
+        jobs = [Job("call", (function, args), options.timeout) for args in calls]
+
+        def on_limit(index: int, job: Job, limit: Limit | None, reason: str, seconds: float) -> Any:
+            return ("limit", reason)
+
+        done = run_jobs(jobs, options.pool(), on_limit)
+        outcomes = [done[i] for i in range(len(jobs))]
+    return [value if status == "ok" else fallback(args, value) for (status, value), args in zip(outcomes, calls)]
+
+
 def _slot(cache: VerdictCache, claim: Claim) -> Any:
     try:
         return cache.slot(claim)

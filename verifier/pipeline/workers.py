@@ -39,6 +39,11 @@ KILL_GRACE_SECONDS = 0.25
 # constant past this many digits is reported on its claim.
 MAX_INTEGER_DIGITS = 100_000
 START_ATTEMPTS = 3
+DESCRIPTORS_PER_WORKER = 4  # pipe ends and sentinel here, the child's descriptor in the fork server
+DESCRIPTOR_RESERVE = 10  # for the fork server's own connections and the files the parent reads
+FORKSERVER_DESCRIPTORS = 24  # with fewer free, workers are spawned: a fork server short of them crashes
+# The largest memory limit the address-space limit can express (bytes in a signed 64-bit number).
+MAX_MEMORY_MB = (2**63 - 1) // (1024 * 1024)
 PRELOAD = ["verifier.pipeline.workers", "verifier.algebra.decide", "verifier.claims"]
 
 
@@ -120,7 +125,8 @@ def _worker_main(conn: Connection, settings: PoolSettings) -> None:
 
 def worker_context() -> multiprocessing.context.BaseContext:
     methods = multiprocessing.get_all_start_methods()
-    if "forkserver" in methods:
+    free = _free_descriptors()
+    if "forkserver" in methods and (free is None or free >= FORKSERVER_DESCRIPTORS):
         ctx = multiprocessing.get_context("forkserver")
         ctx.set_forkserver_preload(PRELOAD)
         return ctx
@@ -215,13 +221,39 @@ def memory_limit_reason(memory_mb: int) -> str:
     return f"memory limit of {memory_mb} MB exceeded"
 
 
+def _free_descriptors() -> int | None:
+    """File descriptors this process may still open (None: no limit known)."""
+    try:
+        import resource
+
+        soft, _hard = resource.getrlimit(resource.RLIMIT_NOFILE)
+    except (ImportError, OSError, ValueError):
+        return None
+    if soft == resource.RLIM_INFINITY:
+        return None
+    try:
+        used = len(os.listdir("/proc/self/fd"))
+    except OSError:
+        used = 16  # a guess where the count is not available
+    return soft - used
+
+
+def descriptor_budget(size: int) -> int:
+    """At most ``size`` workers, fewer when the open-file limit would not hold them all: each worker holds
+    descriptors here and in the fork server, and running out makes both fail (``ulimit -n`` in CI)."""
+    free = _free_descriptors()
+    if free is None:
+        return size
+    return max(1, min(size, (free - DESCRIPTOR_RESERVE) // DESCRIPTORS_PER_WORKER))
+
+
 def run_jobs(jobs: Sequence[Job], settings: PoolSettings, on_limit: OnLimit,
              on_done: Callable[[], None] = lambda: None) -> dict[int, Any]:
     """index -> result of every job (in ``jobs`` order by index), each run in a limited worker process."""
     results: dict[int, Any] = {}
     if not jobs:
         return results
-    size = max(1, min(settings.jobs or os.cpu_count() or 1, len(jobs)))
+    size = descriptor_budget(max(1, min(settings.jobs or os.cpu_count() or 1, len(jobs))))
     pool = _Pool(settings)
     queue = list(reversed(list(enumerate(jobs))))  # pop() from the end takes the jobs in order
     interrupted = False
