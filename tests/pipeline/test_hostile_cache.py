@@ -1,7 +1,7 @@
 """A hostile cache: it never writes outside its folder, never blocks on an entry, and no stored word
 reaches the report.
 
-Facts used (common practice): (a+b)**2 = a**2 + 2ab + b**2; x*y/y = x needs y != 0; x**2 = 0 forces
+Facts used (common practice): (a+b)**2 = a**2 + 2ab + b**2; x**3 = x where x**2 = 1; x*y/y = x needs y != 0; x**2 = 0 forces
 x = 0 over the reals; x = 1 and x = 2 cannot hold together; sqrt(x**2) = x for x >= 0; a > b and a <= b
 cannot hold together.  ``CACHEDIR.TAG`` follows the Cache Directory Tagging Specification.
 """
@@ -24,7 +24,7 @@ from verifier.pipeline.runner import CheckRequest, RunOptions, check_run
 TEXTS = {"k.c": "// claims\n"}
 KINDS = {
     "expansion": "(a+b)**2 == a**2 + 2*a*b + b**2",
-    "ideal": "x*y == 1 given x == 1, y == 1",
+    "ideal": "x**3 == x given x**2 == 1",
     "saturation": "x*y/y == x",
     "radical": "x == 0 given x**2 == 0",
     "vacuous": "y == 1 given x == 1, x == 2",
