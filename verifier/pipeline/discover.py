@@ -28,13 +28,7 @@ from typing import Literal
 
 from verifier.model.claim import FileProblem, Location
 from verifier.model.skipped import SkipKind, Skipped
-from verifier.pipeline.reading import (
-    DEFAULT_MAX_FILE_BYTES,
-    decode_source,
-    kind_of_file,
-    read_regular_file,
-    too_large,
-)
+from verifier.pipeline.reading import DEFAULT_MAX_FILE_BYTES, decode_source, kind_of_file, read_regular_file, too_large
 
 # Version-control metadata: never tracked content, so never listed.
 VCS_DIRS = frozenset({".git", ".hg", ".svn", ".bzr", "_darcs", "CVS"})
@@ -484,8 +478,7 @@ def collect(
 
     ``include``/``exclude`` are globs on the path relative to ``root`` (the config's folder; default ``cwd``,
     see ``matches_glob``); they apply to explicitly named files too, while the skipped folders only apply
-    when walking.  ``source="staged"``
-    reads the file list and texts from the git index.  ``only`` restricts the result to these relative paths.
+    when walking.  ``source="staged"`` reads the file list and texts from the git index.  ``only`` restricts the result to these relative paths.
     ``max_file_bytes`` is the size cap; a larger file is listed in ``skipped``, not read.
     """
     base = Path(cwd) if cwd is not None else Path.cwd()

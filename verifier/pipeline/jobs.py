@@ -20,13 +20,14 @@ TOO_DEEP = "the claim is nested too deeply to handle"
 
 
 def file_problem_claim(problem: FileProblem, verdict: str = "error") -> Claim:
-    """A pseudo-claim standing for a file that could not be read, so that it is reported."""
+    """A pseudo-claim standing for a file that could not be read (``error``) or whose claims could not be
+    read within the limits (``inconclusive``), so that it is reported."""
     loc = problem.location
     return Claim(
         id=f"{loc.path}:{loc.line}:{loc.column}",
         location=loc,
         kind="expression",
-        text="(file could not be read)",
+        text="(claims of this file not read)" if verdict == "inconclusive" else "(file could not be read)",
         problem=Problem("inconclusive" if verdict == "inconclusive" else "error", problem.message),
         dependencies=(loc.path,),
     )
