@@ -26,6 +26,9 @@ from verifier.model.functions import (
 # A constant exponent larger than this is refused: it would only blow up the algebra.
 MAX_EXPONENT = 1000
 MAX_TEXT_LENGTH = 20000
+# Nesting depth of a claim's syntax tree: deeper trees cannot be copied to a worker process or keyed for
+# the cache within Python's recursion limit, so they are rejected here, with the claim's place.
+MAX_NESTING = 200
 # Limits that keep hostile constants (``1e99999999``, towers of powers) from exhausting time or memory.
 MAX_LITERAL_EXPONENT = 4000
 MAX_CONSTANT_BITS = 100_000
@@ -104,12 +107,23 @@ def parse_ast(source: ClaimSource, what: str = "expression") -> ast.expr:
         raise ClaimSyntaxError(message, source.original_offset(offset)) from None
     except (ValueError, MemoryError, RecursionError) as exc:
         raise ClaimSyntaxError(f"cannot parse the {what}: {exc}", 0) from None
+    _check_nesting(tree, what)
     if lead:
         for node in ast.walk(tree):
             if hasattr(node, "col_offset"):
                 node.col_offset += len(source.text[:lead].encode("utf-8"))  # type: ignore[attr-defined]
                 node.end_col_offset = (node.end_col_offset or 0) + len(source.text[:lead].encode("utf-8"))  # type: ignore[attr-defined]
     return tree.body
+
+
+def _check_nesting(tree: ast.AST, what: str) -> None:
+    """ClaimSyntaxError when the tree is nested more than MAX_NESTING levels (walked without recursion)."""
+    stack: list[tuple[ast.AST, int]] = [(tree, 0)]
+    while stack:
+        node, depth = stack.pop()
+        if depth > MAX_NESTING:
+            raise ClaimSyntaxError(f"the {what} is nested too deeply (more than {MAX_NESTING} levels)", 0)
+        stack.extend((child, depth + 1) for child in ast.iter_child_nodes(node))
 
 
 class ExprConverter:

@@ -26,7 +26,7 @@ from verifier.cli.options import (
 )
 from verifier.pipeline.config import Config
 from verifier.pipeline.discover import DiscoveryError
-from verifier.pipeline.runner import CheckRequest, check, parse_shard
+from verifier.pipeline.runner import CheckRequest, check_run, parse_shard
 from verifier.report import fails_run, render
 
 if TYPE_CHECKING:
@@ -71,7 +71,8 @@ def cache_dir(args: argparse.Namespace, config: Config, cwd: Path) -> str | None
     configured_path = Path(config.cache_dir)
     if not configured_path.is_absolute():
         configured_path = config.root / configured_path
-    return os.path.relpath(configured_path.resolve(), cwd.resolve())
+    # not resolved: a cache path that is a symbolic link must be seen as one (and refused)
+    return os.path.relpath(os.path.abspath(configured_path), os.path.abspath(cwd))
 
 
 def config_start(paths: Sequence[str] | None, cwd: Path) -> Path:
@@ -106,13 +107,15 @@ def run_check(args: argparse.Namespace) -> int:
         on_inconclusive=failing,
     )
     try:
-        verdicts = check(request)
+        result = check_run(request)
     except DiscoveryError as exc:
         raise UsageError(str(exc)) from exc
+    verdicts, skipped = list(result.verdicts), result.skipped
     emit_report(
         args.format,
         args.output,
-        lambda report_format: render(verdicts, report_format, version=__version__, on_inconclusive=failing),
-        extra=accuracy_section(verdicts, accuracy_settings(args, config)),
+        lambda report_format: render(verdicts, report_format, version=__version__, on_inconclusive=failing,
+                                     skipped=skipped),
+        extra=accuracy_section(verdicts, accuracy_settings(args, config), options=request.options),
     )
     return EXIT_FINDINGS if any(fails_run(v, failing) for v in verdicts) else EXIT_OK

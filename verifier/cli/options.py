@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import argparse
 import math
+import os
 import sys
 from collections.abc import Callable, Sequence
 from pathlib import Path
@@ -20,8 +21,9 @@ from typing import TYPE_CHECKING
 
 from verifier.model.accuracy import DEFAULT_RANGE, DEFAULT_SAMPLES, AccuracySettings
 from verifier.model.verdict import Verdict
-from verifier.pipeline.config import Config, ConfigError, OnInconclusive, load_config
+from verifier.pipeline.config import MAX_ACCURACY_SAMPLES, Config, ConfigError, OnInconclusive, load_config
 from verifier.pipeline.runner import RunOptions
+from verifier.pipeline.workers import MAX_MEMORY_MB
 from verifier.report import FORMATS, Format
 
 if TYPE_CHECKING:
@@ -69,6 +71,20 @@ def positive_int(option: str) -> Callable[[str], int]:
     return parse
 
 
+def _memory_mb(text: str) -> int:
+    value = positive_int("--memory-mb")(text)
+    if value > MAX_MEMORY_MB:
+        raise argparse.ArgumentTypeError(f"--memory-mb wants at most {MAX_MEMORY_MB}, got {text!r}")
+    return value
+
+
+def _accuracy_samples(text: str) -> int:
+    value = positive_int("--accuracy-samples")(text)
+    if value > MAX_ACCURACY_SAMPLES:
+        raise argparse.ArgumentTypeError(f"--accuracy-samples wants at most {MAX_ACCURACY_SAMPLES}, got {text!r}")
+    return value
+
+
 def parse_range(text: str) -> tuple[str | None, float, float]:
     """``LO:HI`` or ``NAME=LO:HI`` -> (name or None, low, high); ArgumentTypeError when malformed."""
     name: str | None = None
@@ -111,7 +127,7 @@ def add_timeout_option(parser: argparse.ArgumentParser, help_text: str) -> None:
 def add_worker_options(parser: argparse.ArgumentParser, *, unit: str) -> None:
     """``--timeout``, ``--memory-mb`` and ``--jobs``: the limits of the workers that decide each ``unit``."""
     add_timeout_option(parser, f"seconds per {unit} (config: timeout)")
-    parser.add_argument("--memory-mb", type=positive_int("--memory-mb"), metavar="N",
+    parser.add_argument("--memory-mb", type=_memory_mb, metavar="N",
                         help="memory per worker in MB (config: memory_mb)")
     parser.add_argument("--jobs", type=positive_int("--jobs"), metavar="N",
                         help="worker processes (config: jobs; default: number of cores)")
@@ -134,7 +150,7 @@ def add_accuracy_options(parser: argparse.ArgumentParser) -> None:
     group = parser.add_argument_group("floating-point accuracy (a sampled estimate, not a bound)")
     group.add_argument("--accuracy", action="store_true",
                        help="for proved claims, estimate the rounding error of each side in IEEE double")
-    group.add_argument("--accuracy-samples", type=positive_int("--accuracy-samples"), metavar="N",
+    group.add_argument("--accuracy-samples", type=_accuracy_samples, metavar="N",
                        help=f"points per claim (config: accuracy.samples; default {DEFAULT_SAMPLES})")
     group.add_argument("--accuracy-seed", type=_seed, metavar="S", help="random seed (config: accuracy.seed; default 0)")
     group.add_argument("--accuracy-range", type=parse_range, action="append", default=[], metavar="[NAME=]LO:HI",
@@ -200,7 +216,7 @@ def accuracy_settings(args: argparse.Namespace, config: Config) -> AccuracySetti
 
 
 def accuracy_section(verdicts: Sequence[Verdict], settings: AccuracySettings | None,
-                     side_names: tuple[str, str] = ("left", "right")) -> str:
+                     side_names: tuple[str, str] = ("left", "right"), options: RunOptions | None = None) -> str:
     """The ``--accuracy`` text section for the proved verdicts ("" without ``--accuracy``)."""
     if settings is None:
         return ""
@@ -208,7 +224,7 @@ def accuracy_section(verdicts: Sequence[Verdict], settings: AccuracySettings | N
     from verifier.features.accuracy import estimate_verdicts
     from verifier.report.accuracy_text import render_accuracy_section
 
-    return render_accuracy_section(estimate_verdicts(verdicts, settings), side_names)
+    return render_accuracy_section(estimate_verdicts(verdicts, settings, options), side_names)
 
 
 def emit_report(
@@ -234,12 +250,26 @@ def emit_report(
             Path(output).write_text(written, encoding="utf-8")
         except OSError as exc:
             raise UsageError(f"--output: cannot write {output}: {exc.strerror or exc}") from exc
-        sys.stdout.write(text + extra)
+        write_stdout(text + extra)
     elif report_format == "text":
-        sys.stdout.write(render("text") + extra)
+        write_stdout(render("text") + extra)
     else:
-        sys.stdout.write(render(report_format))
+        write_stdout(render(report_format))
         aside = (render("text") if text_beside_machine else "") + extra
         if aside:
             sys.stderr.write(aside)
-    sys.stdout.flush()
+
+
+def write_stdout(text: str) -> None:
+    """Write a report to stdout; a device that refuses it (full, closed) is a usage error, not a traceback."""
+    try:
+        sys.stdout.write(text)
+        sys.stdout.flush()
+    except OSError as exc:
+        try:  # nothing more can reach stdout: keep the interpreter from failing again at exit
+            devnull = os.open(os.devnull, os.O_WRONLY)
+            os.dup2(devnull, sys.stdout.fileno())
+            os.close(devnull)
+        except (OSError, ValueError):
+            pass
+        raise UsageError(f"cannot write the report to standard output: {exc.strerror or exc}") from None

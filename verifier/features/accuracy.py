@@ -13,7 +13,7 @@ import math
 import random
 import statistics
 from fractions import Fraction
-from typing import Mapping, Sequence
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 import mpmath
 from mpmath import mp, mpf
@@ -35,6 +35,9 @@ from verifier.model.accuracy import (
 from verifier.model.claim import Condition, Obligation
 from verifier.model.expr import Expr
 from verifier.model.verdict import Verdict
+
+if TYPE_CHECKING:  # a type only: sampling in workers imports the runner when it is asked for
+    from verifier.pipeline.runner import RunOptions
 
 EXACT_DIGITS = 60  # decimal digits of the reference value when it is irrational
 _ATTEMPTS_PER_SAMPLE = 20
@@ -301,15 +304,30 @@ def _more_accurate(left: SideAccuracy, right: SideAccuracy) -> str | None:
 
 
 def estimate_verdicts(
-    verdicts: Sequence[Verdict], settings: AccuracySettings
+    verdicts: Sequence[Verdict], settings: AccuracySettings, options: RunOptions | None = None
 ) -> list[tuple[str, list[AccuracyEstimate]]]:
     """(heading, estimates) for every proved verdict, one estimate per obligation (a refuted or open
-    claim has no identity whose rounding is worth measuring)."""
+    claim has no identity whose rounding is worth measuring).
+
+    With ``options`` each estimate is sampled in a worker under the claim's time and memory limits, so a
+    huge sample count cannot hold up the run.
+    """
+    proved = [v for v in verdicts if v.verdict == "proved"]
+    obligations = [ob for v in proved for ob in v.claim.obligations]
+    if options is None:
+        estimates = [estimate_accuracy(ob, settings) for ob in obligations]
+    else:
+        from verifier.pipeline.runner import run_limited
+
+        def stopped(args: tuple[Any, ...], why: str) -> AccuracyEstimate:
+            return AccuracyEstimate(args[0].label, 0, 0, None, None, None, problem=f"sampling stopped: {why}")
+
+        estimates = run_limited("verifier.features.accuracy:estimate_accuracy",
+                                [(ob, settings) for ob in obligations], options, stopped)
     items: list[tuple[str, list[AccuracyEstimate]]] = []
-    for verdict in verdicts:
-        if verdict.verdict != "proved":
-            continue
-        claim = verdict.claim
-        estimates = [estimate_accuracy(ob, settings) for ob in claim.obligations]
-        items.append((f"{claim.location}: {claim.text}", estimates))
+    position = 0
+    for verdict in proved:
+        count = len(verdict.claim.obligations)
+        items.append((f"{verdict.claim.location}: {verdict.claim.text}", estimates[position:position + count]))
+        position += count
     return items

@@ -16,14 +16,21 @@ JSON (never evaluated, never unpickled), read field by field by the kernel's str
 - a ``refuted`` obligation only if its witness re-checks against the obligation
   (``algebra.witness.check_witness``).
 The claim's verdict is then combined afresh from the accepted obligation results, so a flipped top-level
-field has no effect.  Any failure means a cache miss: the claim is decided again and the entry rewritten.
+field has no effect, and every text reported for a cached result (method, reason, assumptions, the
+counter-normal-form, "vacuously") is derived again from the claim and the re-checked certificate or
+witness, never taken from the stored words.  Any failure means a cache miss: the claim is decided again
+and the entry rewritten.
+
+The store (``cache_store``) never writes outside the cache folder: it refuses a cache path that is a
+symbolic link or a folder it did not create, walks into its subfolders without following links, writes
+each entry atomically and removes its temporary file on any failure, and reads only regular files of
+bounded size.
 """
 from __future__ import annotations
 
 import hashlib
 import json
 import os
-import tempfile
 import time
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass, replace
@@ -34,9 +41,11 @@ from verifier.algebra.kernel.codec import result_from_json, to_json
 from verifier.model.claim import Claim, NamedConditionSet
 from verifier.model.limits import DEFAULT_MEMORY_MB, DEFAULT_TIMEOUT_SECONDS
 from verifier.model.verdict import ObligationResult, Verdict, Witness
+from verifier.pipeline.cache_store import CACHEDIR_TAG, directory_refusal, read_entry_text, write_entry
 
-FORMAT = 1
-CACHEDIR_TAG = "Signature: 8a477f597d28d172789f06886806bc55\n# idealcheck result cache; safe to delete.\n"
+__all__ = ["CACHEDIR_TAG", "ResultCache", "load_entry", "store_entry", "claim_key", "accept"]
+
+FORMAT = 2  # 2: one certificate class per proof kind (entries of format 1 are misses)
 
 
 class Invalid(Exception):
@@ -128,15 +137,18 @@ def _rechecked_refutation(claim: Claim, index: int, result: ObligationResult) ->
 
 
 def accept(
-    claim: Claim, results: Sequence[ObligationResult], seconds: float, *, allow_inconclusive: bool = False
+    claim: Claim, results: Sequence[ObligationResult], seconds: float, *, allow_inconclusive: bool = False,
+    timeout: float = 10.0,
 ) -> Verdict | None:
     """The verdict rebuilt from results read back from the cache, or None if any check fails.
 
-    Every proof and every witness is re-checked; an ``inconclusive`` claim (which cannot be re-checked)
-    is accepted only when ``allow_inconclusive``, i.e. when inconclusive fails the run anyway.
+    Every proof and every witness is re-checked, and every text is derived again (``cache_texts``); an
+    ``inconclusive`` claim (which cannot be re-checked) is accepted only when ``allow_inconclusive``,
+    i.e. when inconclusive fails the run anyway.  ``timeout`` bounds recomputing the counter-normal-form.
     """
     # the algebra (sympy) loads only when cached results are read back: keeps `idealcheck --help` fast
     from verifier.algebra.decide import combine
+    from verifier.pipeline.cache_texts import inconclusive_texts, proved_texts, refuted_texts
 
     if claim.problem is not None or len(results) != len(claim.obligations) or not results:
         return None
@@ -147,12 +159,18 @@ def accept(
         if result.verdict == "proved":
             if not _proof_holds(claim, index, result):
                 return None
+            texts = proved_texts(obligation, result)
+            if texts is None:
+                return None
+            result = texts
         elif result.verdict == "refuted":
             rechecked = _rechecked_refutation(claim, index, result)
             if rechecked is None:
                 return None
-            result = rechecked
-        elif result.verdict != "inconclusive":
+            result = refuted_texts(obligation, rechecked, timeout)
+        elif result.verdict == "inconclusive":
+            result = inconclusive_texts(result)
+        else:
             return None
         checked.append(result)
     verdict = combine(claim, tuple(checked), round(seconds, 3))
@@ -166,8 +184,7 @@ def accept(
 
 
 def _hit_a_limit(verdict: Verdict) -> bool:
-    texts = [verdict.reason] + [r.reason for r in verdict.obligations]
-    return any("time limit" in t or "memory limit" in t for t in texts)
+    return verdict.limit is not None or any(r.limit is not None for r in verdict.obligations)
 
 
 @dataclass
@@ -188,19 +205,23 @@ class EntrySlot:
     reuse_inconclusive: bool
     version: str
 
-    def path(self, *, inconclusive: bool = False) -> Path:
+    def parts(self, *, inconclusive: bool = False) -> tuple[str, str, str]:
         key = self.inconclusive if inconclusive else self.decisive
-        return Path(self.directory) / f"v{FORMAT}" / key[:2] / f"{key}.json"
+        return f"v{FORMAT}", key[:2], f"{key}.json"
+
+    def path(self, *, inconclusive: bool = False) -> Path:
+        return Path(self.directory).joinpath(*self.parts(inconclusive=inconclusive))
 
 
-def _load_one(claim: Claim, slot: EntrySlot, inconclusive: bool) -> tuple[Verdict | None, bool]:
+def _load_one(claim: Claim, slot: EntrySlot, inconclusive: bool, timeout: float) -> tuple[Verdict | None, bool]:
     """(verdict, rejected): the re-checked verdict of one entry, and whether an entry was there but refused."""
     start = time.monotonic()
     path = slot.path(inconclusive=inconclusive)
-    try:
-        raw = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError):
+    if not os.path.lexists(path):
         return None, False
+    raw = read_entry_text(path)  # None for anything but a regular file of bounded size
+    if raw is None:
+        return None, True
     try:
         document = json.loads(raw)
         if not isinstance(document, dict) or document.get("format") != FORMAT:
@@ -208,7 +229,7 @@ def _load_one(claim: Claim, slot: EntrySlot, inconclusive: bool) -> tuple[Verdic
         if document.get("key") != path.stem:
             raise Invalid("entry of another claim")
         results = tuple(result_from_json(r) for r in _list(document.get("obligations")))
-        verdict = accept(claim, results, time.monotonic() - start, allow_inconclusive=inconclusive)
+        verdict = accept(claim, results, time.monotonic() - start, allow_inconclusive=inconclusive, timeout=timeout)
         if verdict is not None and (verdict.verdict == "inconclusive") != inconclusive:
             verdict = None
     except (Invalid, ValueError, TypeError, RecursionError):
@@ -216,13 +237,13 @@ def _load_one(claim: Claim, slot: EntrySlot, inconclusive: bool) -> tuple[Verdic
     return verdict, verdict is None
 
 
-def load_entry(claim: Claim, slot: EntrySlot, stats: CacheStats | None = None) -> Verdict | None:
+def load_entry(claim: Claim, slot: EntrySlot, stats: CacheStats | None = None, *, timeout: float = 10.0) -> Verdict | None:
     """The cached verdict of ``claim`` after every check, or None (then the claim must be decided)."""
     stats = stats if stats is not None else CacheStats()
     if claim.problem is not None or not claim.obligations:
         return None
     for inconclusive in ((False, True) if slot.reuse_inconclusive else (False,)):
-        verdict, rejected = _load_one(claim, slot, inconclusive)
+        verdict, rejected = _load_one(claim, slot, inconclusive, timeout)
         if rejected:
             stats.rejected += 1
         if verdict is not None:
@@ -236,17 +257,15 @@ def store_entry(claim: Claim, verdict: Verdict, slot: EntrySlot) -> bool:
     """Write a fresh verdict (atomically); False when there is nothing worth storing or the disk refuses."""
     if not verdict.obligations or verdict.cached:
         return False
-    if verdict.verdict == "inconclusive":
-        if _hit_a_limit(verdict):
-            return False
-        path = slot.path(inconclusive=True)
-    elif verdict.verdict in ("proved", "refuted"):
-        path = slot.path()
-    else:
+    if _hit_a_limit(verdict):
         return False
+    inconclusive = verdict.verdict == "inconclusive"
+    if verdict.verdict not in ("proved", "refuted", "inconclusive"):
+        return False
+    parts = slot.parts(inconclusive=inconclusive)
     document = {
         "format": FORMAT,
-        "key": path.stem,
+        "key": parts[-1][: -len(".json")],
         "tool_version": slot.version,
         "claim": claim.id,
         "text": claim.text,
@@ -254,23 +273,10 @@ def store_entry(claim: Claim, verdict: Verdict, slot: EntrySlot) -> bool:
         "obligations": [result_to_json(r) for r in verdict.obligations],
     }
     try:
-        _prepare(Path(slot.directory))
-        path.parent.mkdir(parents=True, exist_ok=True)
-        handle, temporary = tempfile.mkstemp(dir=path.parent, prefix=".tmp-", suffix=".json")
-        with os.fdopen(handle, "w", encoding="utf-8") as out:
-            json.dump(document, out, ensure_ascii=False, indent=1)
-        os.replace(temporary, path)
-        return True
-    except OSError:
-        return False  # a read-only or full disk costs speed, never correctness
-
-
-def _prepare(directory: Path) -> None:
-    if (directory / "CACHEDIR.TAG").exists():
-        return
-    directory.mkdir(parents=True, exist_ok=True)
-    (directory / "CACHEDIR.TAG").write_text(CACHEDIR_TAG, encoding="utf-8")
-    (directory / ".gitignore").write_text("# written by idealcheck\n*\n", encoding="utf-8")
+        text = json.dumps(document, ensure_ascii=True, indent=1)  # ASCII: names that are not UTF-8 survive
+    except (ValueError, TypeError, RecursionError):
+        return False
+    return write_entry(Path(slot.directory), parts, text)
 
 
 class ResultCache:
@@ -298,6 +304,8 @@ class ResultCache:
         self.dependency_text = dependency_text
         self.stats = CacheStats()
         self._keys: dict[str, str] = {}
+        # why this folder must not be used (a symbolic link, a folder of someone else's), or None
+        self.refused: str | None = directory_refusal(self.directory)
 
     def key(self, claim: Claim) -> str:
         if claim.id not in self._keys:
@@ -316,10 +324,12 @@ class ResultCache:
         return self.slot(claim).path(inconclusive=inconclusive)
 
     def load(self, claim: Claim) -> Verdict | None:
-        return load_entry(claim, self.slot(claim), self.stats)
+        if self.refused is not None:
+            return None
+        return load_entry(claim, self.slot(claim), self.stats, timeout=float(self.limits[0]))
 
     def store(self, claim: Claim, verdict: Verdict) -> None:
-        if store_entry(claim, verdict, self.slot(claim)):
+        if self.refused is None and store_entry(claim, verdict, self.slot(claim)):
             self.stats.stored += 1
 
     def record(self, verdict: Verdict, *, stored: bool) -> None:

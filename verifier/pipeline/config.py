@@ -16,6 +16,7 @@ from verifier.claims.language import ClaimSyntaxError, parse_expression, parse_r
 from verifier.model.claim import NamedConditionSet
 from verifier.model.expr import Var
 from verifier.model.limits import DEFAULT_MEMORY_MB, DEFAULT_TIMEOUT_SECONDS
+from verifier.pipeline.workers import MAX_MEMORY_MB
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -24,7 +25,9 @@ else:  # pragma: no cover - exercised on Python 3.10 only
 
 TABLE = "tool.idealcheck"
 KNOWN_KEYS = ("paths", "include", "exclude", "conditions", "on_inconclusive", "timeout", "memory_mb", "jobs", "cache_dir",
-              "accuracy")
+              "accuracy", "max_file_kb")
+# Upper bound of the sampled points per claim: they are kept in memory.
+MAX_ACCURACY_SAMPLES = 1_000_000
 CONDITION_KEYS = ("vars", "given")
 ACCURACY_KEYS = ("samples", "seed", "range", "ranges")
 DEFAULT_CACHE_DIR = ".idealcheck_cache"  # relative to the folder of the pyproject.toml
@@ -61,6 +64,7 @@ class Config:
     jobs: int | None = None  # worker processes; None: one per core
     cache_dir: str = DEFAULT_CACHE_DIR
     accuracy: AccuracyConfig = AccuracyConfig()
+    max_file_kb: int | None = None  # size cap of a scanned file; None: the default (discover)
 
     def named(self, name: str) -> NamedConditionSet | None:
         return next((item for item in self.conditions if item.name == name), None)
@@ -80,6 +84,8 @@ def _read_toml(path: Path) -> TomlTable:
         raise ConfigError(f"{path}: not UTF-8 text") from None
     try:
         return tomllib.loads(text)
+    except RecursionError:
+        raise ConfigError(f"{path}: invalid TOML: nested too deeply to read") from None
     except tomllib.TOMLDecodeError as exc:
         message = str(exc)
         if "line" not in message:  # "at end of document": say which line that is
@@ -163,6 +169,13 @@ def _positive_int(value: object, key: str, path: Path) -> int:
     return value
 
 
+def _bounded_int(value: object, key: str, path: Path, most: int) -> int:
+    number = _positive_int(value, key, path)
+    if number > most:
+        raise ConfigError(f"{path}: `{key}` must be at most {most}, found {value!r}")
+    return number
+
+
 def _build(table: TomlTable, path: Path, root: Path) -> Config:
     for key in table:
         if key not in KNOWN_KEYS:
@@ -179,7 +192,9 @@ def _build(table: TomlTable, path: Path, root: Path) -> Config:
     if "timeout" in table:
         config = replace(config, timeout=_positive_number(table["timeout"], f"{TABLE}.timeout", path))
     if "memory_mb" in table:
-        config = replace(config, memory_mb=_positive_int(table["memory_mb"], f"{TABLE}.memory_mb", path))
+        config = replace(config, memory_mb=_bounded_int(table["memory_mb"], f"{TABLE}.memory_mb", path, MAX_MEMORY_MB))
+    if "max_file_kb" in table:
+        config = replace(config, max_file_kb=_bounded_int(table["max_file_kb"], f"{TABLE}.max_file_kb", path, MAX_MEMORY_MB))
     if "jobs" in table:
         config = replace(config, jobs=_positive_int(table["jobs"], f"{TABLE}.jobs", path))
     if "cache_dir" in table:
@@ -220,7 +235,7 @@ def _accuracy(value: object, path: Path) -> AccuracyConfig:
     for item in value:
         if item not in ACCURACY_KEYS:
             raise ConfigError(f"{path}: unknown key `{key}.{item}` (known: {', '.join(ACCURACY_KEYS)})")
-    samples = _positive_int(value["samples"], f"{key}.samples", path) if "samples" in value else None
+    samples = _bounded_int(value["samples"], f"{key}.samples", path, MAX_ACCURACY_SAMPLES) if "samples" in value else None
     seed = value.get("seed")
     if seed is not None and (isinstance(seed, bool) or not isinstance(seed, int)):
         raise ConfigError(f"{path}: `{key}.seed` must be an integer, found {seed!r}")

@@ -4,6 +4,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from typing import Literal
 
+from verifier.model.skipped import Skipped
 from verifier.model.verdict import Verdict
 from verifier.report.common import (
     OnInconclusive,
@@ -23,19 +24,21 @@ FORMATS: tuple[str, ...] = ("text", "json", "github", "sarif", "junit")
 
 
 def render(
-    verdicts: Sequence[Verdict], fmt: Format = "text", *, version: str, on_inconclusive: OnInconclusive = "fail"
+    verdicts: Sequence[Verdict], fmt: Format = "text", *, version: str, on_inconclusive: OnInconclusive = "fail",
+    skipped: Sequence[Skipped] = (),
 ) -> str:
-    """The report of ``verdicts`` in format ``fmt``; ``on_inconclusive`` decides error vs warning levels."""
+    """The report of ``verdicts`` in format ``fmt``; ``on_inconclusive`` decides error vs warning levels;
+    ``skipped`` lists what was not read (every format shows it)."""
     if fmt == "text":
-        return render_text(verdicts, version=version)
+        return render_text(verdicts, version=version, skipped=skipped)
     if fmt == "json":
-        return render_json(verdicts, version=version)
+        return render_json(verdicts, version=version, skipped=skipped)
     if fmt == "github":
-        return render_github(verdicts, version=version, on_inconclusive=on_inconclusive)
+        return render_github(verdicts, version=version, on_inconclusive=on_inconclusive, skipped=skipped)
     if fmt == "sarif":
-        return render_sarif(verdicts, version=version, on_inconclusive=on_inconclusive)
+        return render_sarif(verdicts, version=version, on_inconclusive=on_inconclusive, skipped=skipped)
     if fmt == "junit":
-        return render_junit(verdicts, version=version, on_inconclusive=on_inconclusive)
+        return render_junit(verdicts, version=version, on_inconclusive=on_inconclusive, skipped=skipped)
     raise ValueError(f"unknown report format {fmt!r}; choose one of {', '.join(FORMATS)}")
 
 

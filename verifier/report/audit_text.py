@@ -4,6 +4,7 @@ from __future__ import annotations
 from verifier.model.audit import AuditResult, OneSided
 from verifier.model.verdict import Verdict
 from verifier.report.common import EXACTNESS_REMINDER, summary_line, witness_values_text
+from verifier.report.escape import shown_lines
 from verifier.report.text import verdict_lines
 
 _DETAIL_WIDTH = 72
@@ -71,4 +72,4 @@ def render_audit_text(result: AuditResult) -> str:
     lines.append("")
     lines.append(summary_line(result.verdicts))
     lines.append(EXACTNESS_REMINDER)
-    return "\n".join(lines) + "\n"
+    return shown_lines(lines)

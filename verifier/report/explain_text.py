@@ -8,6 +8,7 @@ from verifier.model.explanation import (
     ObligationExplanation,
 )
 from verifier.report.accuracy_text import ACCURACY_DISCLAIMER, accuracy_lines
+from verifier.report.escape import shown_lines
 from verifier.report.common import witness_values_text
 
 INDENT = "    "
@@ -101,7 +102,7 @@ def render_explanation(explanation: Explanation) -> str:
         lines.extend(claim_lines(item))
     if any(o.accuracy is not None for c in explanation.claims for o in c.obligations):
         lines.append(ACCURACY_DISCLAIMER)
-    return "\n".join(lines) + "\n"
+    return shown_lines(lines)
 
 
 def _identity_left(certificate: CertificateText) -> str | None:

@@ -4,12 +4,24 @@ from __future__ import annotations
 import xml.etree.ElementTree as ET
 from collections.abc import Sequence
 
+from verifier.model.skipped import Skipped
 from verifier.model.verdict import Verdict
 from verifier.report.common import OnInconclusive, fails_run, ordered, problem_message
+from verifier.report.escape import xml_text
+
+
+def _clean(element: ET.Element) -> None:
+    """Every attribute and text made representable in XML 1.0 (control characters, undecodable bytes)."""
+    for item in element.iter():
+        for key, value in item.attrib.items():
+            item.attrib[key] = xml_text(value)
+        if item.text is not None:
+            item.text = xml_text(item.text)
 
 
 def render_junit(
-    verdicts: Sequence[Verdict], *, version: str, on_inconclusive: OnInconclusive = "fail"
+    verdicts: Sequence[Verdict], *, version: str, on_inconclusive: OnInconclusive = "fail",
+    skipped: Sequence[Skipped] = (),
 ) -> str:
     items = ordered(verdicts)
     failures = sum(1 for v in items if fails_run(v, on_inconclusive))
@@ -29,6 +41,8 @@ def render_junit(
     )
     properties = ET.SubElement(suite, "properties")
     ET.SubElement(properties, "property", {"name": "idealcheck.version", "value": version})
+    for item in skipped:  # files and folders left out unread, with the reason
+        ET.SubElement(properties, "property", {"name": "idealcheck.not-read", "value": f"{item.path}: {item.reason}"})
     for verdict in items:
         loc = verdict.claim.location
         case = ET.SubElement(
@@ -52,5 +66,6 @@ def render_junit(
             out.text = problem_message(verdict) if verdict.verdict != "proved" else (
                 f"proved ({verdict.method})" if verdict.method else "proved"
             )
+    _clean(suites)
     ET.indent(suites)
     return ET.tostring(suites, encoding="unicode", xml_declaration=True) + "\n"

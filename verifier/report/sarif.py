@@ -10,8 +10,10 @@ from collections.abc import Sequence
 from typing import Any
 from urllib.parse import quote
 
+from verifier.model.skipped import Skipped
 from verifier.model.verdict import Verdict
 from verifier.report.common import OnInconclusive, fails_run, ordered, problem_message
+from verifier.report.escape import portable_tree
 
 SCHEMA_URI = "https://docs.oasis-open.org/sarif/sarif/v2.1.0/errata01/os/schemas/sarif-schema-2.1.0.json"
 SOURCE_ROOT = "%SRCROOT%"
@@ -65,7 +67,7 @@ def _result(verdict: Verdict, on_inconclusive: OnInconclusive) -> dict[str, Any]
         "locations": [
             {
                 "physicalLocation": {
-                    "artifactLocation": {"uri": quote(loc.path), "uriBaseId": SOURCE_ROOT},
+                    "artifactLocation": {"uri": uri(loc.path), "uriBaseId": SOURCE_ROOT},
                     "region": {"startLine": max(1, loc.line), "startColumn": max(1, loc.column)},
                 }
             }
@@ -82,8 +84,20 @@ def _result(verdict: Verdict, on_inconclusive: OnInconclusive) -> dict[str, Any]
     return result
 
 
+def uri(path: str) -> str:
+    """A relative URI of the path's bytes (a name that is not UTF-8 keeps its bytes as %XX)."""
+    return quote(path.encode("utf-8", "surrogateescape"))
+
+
+def _notification(item: Skipped) -> dict[str, Any]:
+    location = {"physicalLocation": {"artifactLocation": {"uri": uri(item.path), "uriBaseId": SOURCE_ROOT}}}
+    return {"level": "warning", "message": {"text": f"not read: {item.path}: {item.reason}"},
+            "locations": [location]}
+
+
 def render_sarif(
-    verdicts: Sequence[Verdict], *, version: str, on_inconclusive: OnInconclusive = "fail"
+    verdicts: Sequence[Verdict], *, version: str, on_inconclusive: OnInconclusive = "fail",
+    skipped: Sequence[Skipped] = (),
 ) -> str:
     document = {
         "$schema": SCHEMA_URI,
@@ -98,4 +112,8 @@ def render_sarif(
             }
         ],
     }
-    return json.dumps(document, indent=2, ensure_ascii=False) + "\n"
+    if skipped:  # files and folders left out unread, as tool execution notifications
+        document["runs"][0]["invocations"] = [
+            {"executionSuccessful": True, "toolExecutionNotifications": [_notification(i) for i in skipped]}
+        ]
+    return json.dumps(portable_tree(document), indent=2, ensure_ascii=False) + "\n"

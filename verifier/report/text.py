@@ -3,7 +3,9 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
+from verifier.model.skipped import Skipped
 from verifier.model.verdict import ObligationResult, Verdict, Witness
+from verifier.report.escape import shown_lines
 from verifier.report.common import (
     EXACTNESS_REMINDER,
     ordered,
@@ -68,10 +70,21 @@ def verdict_lines(verdict: Verdict) -> list[str]:
     return lines
 
 
-def render_text(verdicts: Sequence[Verdict], *, version: str) -> str:
+def skipped_lines(skipped: Sequence[Skipped]) -> list[str]:
+    """What was left out unread, one line each (nothing when everything was read)."""
+    if not skipped:
+        return []
+    noun = "path" if len(skipped) == 1 else "paths"
+    lines = [f"not read ({len(skipped)} {noun}; claims in them, if any, were not checked):"]
+    lines.extend(f"{INDENT}{item.path}: {item.reason}" for item in skipped)
+    return lines
+
+
+def render_text(verdicts: Sequence[Verdict], *, version: str, skipped: Sequence[Skipped] = ()) -> str:
     lines: list[str] = []
     for verdict in ordered(verdicts):
         lines.extend(verdict_lines(verdict))
+    lines.extend(skipped_lines(skipped))
     lines.append(summary_line(verdicts))
     lines.append(EXACTNESS_REMINDER)
-    return "\n".join(lines) + "\n"
+    return shown_lines(lines)
