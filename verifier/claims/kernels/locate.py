@@ -142,7 +142,7 @@ class SourceIndex:
                     site = FunctionSite(name, node, self._first_line(node))
                     self.functions.append(site)
                     inner = site
-            if node.type in statement_types and inner is not None and node is not getattr(inner, "node", None):
+            if node.type in statement_types and inner is not None and node != getattr(inner, "node", None):
                 self.statements.append(StatementSite(node, inner, source.line(node), source.end_line(node)))
             stack.extend((child, inner) for child in reversed(node.children))
         for number, line in enumerate(self.lines, start=1):
