@@ -117,3 +117,16 @@ def test_help_does_not_load_tree_sitter():
            "print('tree_sitter' in sys.modules)"
     done = subprocess.run([sys.executable, "-c", code], cwd=ROOT, capture_output=True, text=True, timeout=120)
     assert done.stdout.strip().splitlines()[-1] == "False"
+
+
+@pytest.mark.parametrize("k2, verdict", [("a*(d - c)", "proved"), ("a*(d + c)", "refuted")])
+def test_audit_of_a_c_file_against_a_python_module(tmp_path, k2, verdict):
+    (tmp_path / "ref.py").write_text("def cmul(a, b, c, d):\n    return a*c - b*d, a*d + b*c\n")
+    (tmp_path / "fast.c").write_text(
+        "void cmul(double a, double b, double c, double d, double *re, double *im) {\n"
+        f"  double k1 = c*(a + b), k2 = {k2}, k3 = b*(c + d);\n  *re = k1 - k3; *im = k1 + k2;\n}}\n")
+    done = subprocess.run([sys.executable, "-m", "verifier", "audit", "fast.c", "--against", "ref.py"],
+                          cwd=tmp_path, capture_output=True, text=True, timeout=300,
+                          env={"PYTHONPATH": str(ROOT), "PATH": "/usr/bin:/bin"})
+    row = next(line for line in done.stdout.splitlines() if line.startswith("cmul "))
+    assert row.split()[1] == verdict, done.stdout

@@ -110,6 +110,24 @@ def extract_kernel(path: str, text: str, comments: list[CommentClaim], context: 
     return [claim for claims in per_comment for claim in claims]
 
 
+def kernel_same_as_claim(new_path: str, new_text: str, old_path: str, name: str, context: ExtractionContext,
+                         given: tuple = ()) -> Claim:
+    """`same as OLD::name` for the function ``name`` of the kernel file ``new_path`` (for audits)."""
+    import posixpath
+
+    library = KernelLibrary(context.roots)
+    home = library.add(new_path, new_text)
+    site = home.index.function_named(name)
+    line = site.first_line if site is not None else 1
+    relative = posixpath.relpath(old_path, posixpath.dirname(new_path) or ".")
+    text = f"same as {relative}::{name}"
+    comment = CommentClaim(max(1, line - 1), 1, text, max(1, line - 1), False)
+    parsed = ParsedClaim("same_as", (), name, tuple(given))
+    reader = _KernelReader(new_path, home, library, context)
+    claim = reader.claim(comment, parsed, relative, site)
+    return replace(claim, id=f"{new_path}:{line}:1", location=Location(new_path, line, 1))
+
+
 def _kind(parsed: ParsedClaim) -> ClaimKind:
     return "statement" if parsed.form == "statement" else "function"
 
@@ -131,7 +149,8 @@ class _KernelReader:
     def _runner(self) -> Runner:
         return Runner(self.library.resolver(self.home), self.context.unroll_limit, self.context.inline_depth)
 
-    def claim(self, comment: CommentClaim, parsed: ParsedClaim, other_path: str | None) -> Claim:
+    def claim(self, comment: CommentClaim, parsed: ParsedClaim, other_path: str | None, site: object = None) -> Claim:
+        self.site = site  # set by audits: the function itself rather than the one below the comment
         self.dependencies = []
         self.library.used = []
         claim_id = f"{self.path}:{comment.line}:{comment.column}"
@@ -157,7 +176,8 @@ class _KernelReader:
     def _function(self, comment: CommentClaim, parsed: ParsedClaim, other_path: str | None
                   ) -> tuple[list[Obligation], list[str]]:
         form = "`same as`" if parsed.form == "same_as" else "`returns`"
-        site = None if comment.trailing else self.home.index.function_below(comment.end_line)
+        site = getattr(self, "site", None) or (
+            None if comment.trailing else self.home.index.function_below(comment.end_line))
         if site is None:
             raise ClaimProblem("error", f"a {form} claim must be in the comment lines directly above a function "
                                         "definition (comments and attributes may sit in between); none follows")
