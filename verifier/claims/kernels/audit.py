@@ -28,10 +28,10 @@ def kernel_functions(path: str, text: str) -> dict[str, int] | str:
 
 def python_functions(path: str, text: str) -> dict[str, int] | str:
     # libcst is needed only when a Python module is audited against a kernel file.
-    from verifier.claims import symexec
+    from verifier.claims.frontends.python.modules import parse_module_text
 
     try:
-        module = symexec.parse_module_text(path, text)
+        module = parse_module_text(path, text)
     except Exception as exc:  # any parse failure of the scanned file is reported, never raised
         return f"cannot parse {path} as Python: {type(exc).__name__}"
     return {name: module.line(node) for name, node in module.functions.items()}

@@ -151,16 +151,18 @@ def _count(n: int) -> str:
 
 
 def python_reference(path: str, name: str, args: list[Value], context: ExtractionContext) -> list[PathResult]:
-    """The paths of the Python function ``name`` of ``path`` for the kernel's arguments."""
-    # The Python executor needs libcst; it is imported only when a kernel names a Python reference.
+    """The paths of the Python function ``name`` of ``path`` for the kernel's arguments (Python front end)."""
+    # The Python front end needs libcst; it is imported only when a kernel names a Python reference.
     import libcst as cst
 
-    from verifier.claims import symexec
+    from verifier.claims.execute import Executor, Status
+    from verifier.claims.frontends.python.modules import ModuleLoader, parse_module_text
+    from verifier.claims.frontends.python.scope import PythonScope
 
     try:
         with open(path, encoding="utf-8") as handle:
             text = handle.read()
-        module = symexec.parse_module_text(path, text)
+        module = parse_module_text(path, text)
     except OSError:
         raise ClaimProblem("error", f"cannot read {path}") from None
     except (cst.ParserSyntaxError, RecursionError, UnicodeDecodeError):
@@ -168,21 +170,22 @@ def python_reference(path: str, name: str, args: list[Value], context: Extractio
     node = module.functions.get(name)
     if node is None:
         raise ClaimProblem("error", f"cannot find the function `{name}` in {path}")
-    parameters = symexec.positional_parameters(node)
+    loader = ModuleLoader(context.roots)
+    loader.add(module)
+    scope = PythonScope(loader)
+    function = scope.lower(module, node, name, None)
+    parameters = function.positional_names()
     if len(parameters) != len(args):
         raise ClaimProblem("error", f"{name} in {path} takes {len(parameters)} arguments, the kernel passes "
                                     f"{len(args)}: `same as` compares them for the same arguments")
-    loader = symexec.ModuleLoader(context.roots)
-    loader.add(module)
-    executor = symexec.Executor(loader, unroll_limit=context.unroll_limit, inline_depth=context.inline_depth)
-    converted = [_to_python(a) for a in args]
+    executor = Executor(scope, unroll_limit=context.unroll_limit, inline_depth=context.inline_depth)
     out: list[PathResult] = []
-    for outcome in executor.run_function(symexec.FunctionRef(module, node, name), args=converted):
-        if outcome.status == "stuck":
+    for outcome in executor.run_function(function, args=[_to_python(a) for a in args]):
+        if outcome.status is Status.STUCK:
             raise ClaimProblem("inconclusive", f"{outcome.reason} (in {name}, {path})")
-        if outcome.status == "return" and outcome.value is not None:
+        if outcome.status is Status.RETURN and outcome.value is not None:
             out.append((_from_python(outcome.value), outcome.state.conditions))
-        elif outcome.status in ("return", "next"):
+        elif outcome.status in (Status.RETURN, Status.NEXT):
             raise ClaimProblem("inconclusive", f"{name} in {path} returns None on a path")
     if not out:
         raise ClaimProblem("inconclusive", f"{name} in {path} never returns a value")
@@ -190,28 +193,28 @@ def python_reference(path: str, name: str, args: list[Value], context: Extractio
 
 
 def _to_python(value: Value) -> object:
-    from verifier.claims import symexec
+    from verifier.claims import execute
 
     if isinstance(value, Agg):
-        return symexec.Seq(tuple(_to_python(v) for v in flatten(value)))
+        return execute.Seq(tuple(_to_python(v) for v in flatten(value)))  # type: ignore[arg-type]
     if isinstance(value, SymInt):
         return Var(value.name)
     real = as_real(value)
     if isinstance(real, Unknown):
-        return symexec.Unknown(real.reason)
+        return execute.Unknown(real.reason)
     return real
 
 
 def _from_python(value: object) -> tuple:
-    from verifier.claims import symexec
+    from verifier.claims import execute
 
-    if isinstance(value, symexec.Seq):
+    if isinstance(value, execute.Seq):
         out: list = []
         for item in value.items:
             out.extend(_from_python(item))
         return tuple(out)
-    if isinstance(value, symexec.Unknown):
+    if isinstance(value, execute.Unknown):
         return (Unknown(value.reason),)
-    if isinstance(value, symexec.NoneValue):
+    if isinstance(value, execute.NoneValue):
         return (Unknown("None is not a number"),)
     return (value,)
