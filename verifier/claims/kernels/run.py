@@ -1,94 +1,38 @@
-"""Symbolic execution of lowered kernel functions (``tree``): paths, values, out-parameters, visits.
+"""Symbolic execution of lowered kernel functions (``tree``): paths, out-parameters, visits; never run.
 
-Floating values are real expressions of the claim language; integers are exact only while they are
-constants (loop counters, indices, sizes): integer arithmetic on unknown integers may overflow or
-truncate, so its value is unknown with that reason.  Arrays and structs are aggregates whose unset
-components are the variables ``v[0]``, ``q.w`` of the parameter they come from.  Pointers and references
-point into cells of the store, so a callee's writes reach its caller.  The code is never run.
+Values are in ``kvalues`` (reals, exact integer constants, aggregates, pointers into cells of the store, so
+a callee's writes reach its caller); calls of known functions and conditional expressions are hoisted
+out of a statement first, each path of them continuing the statement.
 """
 from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass, replace
 from fractions import Fraction
-from typing import Union
 
 from verifier.claims.kernels import tree as t
+from verifier.claims.kernels.kvalues import (
+    _NEGATION,
+    Stuck,
+    binary,
+    convert,
+    Agg,
+    Int,
+    Key,
+    Ptr,
+    SymInt,
+    Unknown,
+    Value,
+    _compare,
+    _put,
+    as_real,
+    flatten,
+)
+from verifier.claims.kernels.tree import first_hoistable as _first_hoistable, substitute_node as _substitute
 from verifier.model.claim import Condition
-from verifier.model.expr import KNOWN_FUNCTIONS, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
+from verifier.model.expr import KNOWN_FUNCTIONS, Call, Neg, Num, Opaque, Pow, Var
 
 MAX_PATHS = 512
-
-
-@dataclass(frozen=True)
-class Int:
-    value: int
-
-
-@dataclass(frozen=True)
-class SymInt:
-    """An integer parameter: a real variable once converted, unknown under integer arithmetic."""
-
-    name: str
-
-
-Key = Union[str, int]
-
-
-@dataclass(frozen=True)
-class Agg:
-    """An array, struct or tuple: set components, and the variable prefix of the unset ones."""
-
-    items: tuple[tuple[Key, "Value"], ...] = ()
-    prefix: str | None = None
-    size: int = 0  # arrays of fixed size
-    fields: tuple[str, ...] = ()  # structs: the declared field order, when known
-    base: int = 0  # the first index of the language (0 or 1)
-
-    def get(self, key: Key) -> "Value":
-        for k, v in self.items:
-            if k == key:
-                return v
-        if self.prefix is None:
-            return Unknown(f"the component {_spell('', key)} is read before it is set")
-        return Agg(prefix=self.prefix + _spell("", key), base=self.base)
-
-    def set(self, key: Key, value: "Value") -> "Agg":
-        items = tuple((k, v) for k, v in self.items if k != key) + ((key, value),)
-        return replace(self, items=items)
-
-    def keys(self) -> list[Key]:
-        if self.fields:
-            return list(self.fields)
-        if self.size:
-            return list(range(self.base, self.base + self.size))
-        return [k for k, _ in self.items]
-
-
-@dataclass(frozen=True)
-class Ptr:
-    cell: int
-    path: tuple[Key, ...] = ()
-
-
-@dataclass(frozen=True)
-class Unknown:
-    reason: str
-
-
-Value = Union[Expr, Int, SymInt, Agg, Ptr, Unknown]
-_EXPR_TYPES = (Num, Var, BinOp, Neg, Pow, Call, Opaque)
-
-
-def _spell(prefix: str, key: Key) -> str:
-    return f"{prefix}.{key}" if isinstance(key, str) else f"{prefix}[{key}]"
-
-
-class Stuck(Exception):
-    def __init__(self, reason: str, line: int):
-        super().__init__(reason)
-        self.reason = reason
-        self.line = line
 
 
 @dataclass
@@ -99,7 +43,7 @@ class Path:
     returned: Value | None = None
     done: bool = False
 
-    def fork(self) -> "Path":
+    def fork(self) -> "Path":  # a copy the other branch changes independently
         return Path(dict(self.store), [dict(f) for f in self.frames], self.conditions, self.returned, self.done)
 
 
@@ -121,20 +65,6 @@ class Outcome:
 Resolver = Callable[[str], "t.Function | None"]
 
 
-def as_real(value: Value) -> Expr | Unknown:
-    if isinstance(value, _EXPR_TYPES):
-        return value  # type: ignore[return-value]
-    if isinstance(value, Int):
-        return Num(Fraction(value.value))
-    if isinstance(value, SymInt):
-        return Var(value.name)
-    if isinstance(value, Agg) and not value.items and value.prefix is not None:
-        return Var(value.prefix)
-    if isinstance(value, Unknown):
-        return value
-    return Unknown("an array, struct or pointer is used as a number")
-
-
 class Runner:
     def __init__(self, resolve: Resolver, unroll_limit: int = 256, inline_depth: int = 16):
         self.resolve = resolve
@@ -144,7 +74,6 @@ class Runner:
         self.inlined: list[str] = []
         self.next_cell = 0
         self.depth = 0
-        self.function: t.Function | None = None
 
     # -- entry point
 
@@ -167,16 +96,13 @@ class Runner:
             if param.mode == "out" and initial == Var(param.name):
                 initial = Agg(prefix=param.name)
             cell = self._cell(path, initial)
+            cell_of_output = cell
             if param.mode == "pointer":
-                target = self._cell(path, initial)
-                path.store[cell] = Ptr(target)
-                cell_of_output = target
-            else:
-                cell_of_output = cell
+                cell_of_output = self._cell(path, initial)
+                path.store[cell] = Ptr(cell_of_output)
             if param.mode in ("pointer", "reference", "out", "inout") and not param.const:
                 outputs.append((param, cell_of_output, initial))
             path.frames[-1][param.name] = (cell, ())
-        self.function = function
         finished = self._block(function.body, [path], function)
         outcomes: list[Outcome] = []
         for end in finished:
@@ -412,43 +338,8 @@ class Runner:
         return Unknown(f"unsupported expression (line {getattr(node, 'line', 0)})")
 
     def _binary(self, node: t.Binary, path: Path, fn: t.Function) -> Value:
-        left = self._value(node.left, path, fn)
-        right = self._value(node.right, path, fn)
-        ints = all(isinstance(v, (Int, SymInt)) for v in (left, right))
-        if node.op == "pow":
-            exponent = right if isinstance(right, Int) else as_real(right)
-            if isinstance(exponent, Int):
-                power = Fraction(exponent.value)
-            elif isinstance(exponent, Num):
-                power = exponent.value
-            else:
-                return Unknown(f"a power with a non-constant exponent (line {node.line})")
-            if isinstance(left, Int) and power.denominator == 1 and power >= 0:
-                return Int(left.value ** int(power))
-            if power.denominator not in (1, 2):
-                return Unknown(f"the exponent {power} is neither an integer nor a half-integer (line {node.line})")
-            base = as_real(left)
-            return base if isinstance(base, Unknown) else Pow(base, power)
-        if ints and (node.op == "idiv" or (node.op == "/" and fn.language != "julia")):
-            if isinstance(left, Int) and isinstance(right, Int) and right.value != 0:
-                quotient = abs(left.value) // abs(right.value)
-                return Int(quotient if (left.value >= 0) == (right.value >= 0) else -quotient)
-            return Unknown(f"integer division truncates (line {node.line})")
-        if ints:
-            if isinstance(left, Int) and isinstance(right, Int):
-                a, b = left.value, right.value
-                return Int(a + b if node.op == "+" else a - b if node.op == "-" else a * b)
-            if node.op == "/":
-                pass  # Julia: `/` of integers is a floating division
-            else:
-                return Unknown(f"integer arithmetic may overflow (line {node.line})")
-        if node.op == "idiv":
-            return Unknown(f"integer division of non-integers (line {node.line})")
-        lhs, rhs = as_real(left), as_real(right)
-        for side in (lhs, rhs):
-            if isinstance(side, Unknown):
-                return side
-        return BinOp(node.op, lhs, rhs)  # type: ignore[arg-type]
+        return binary(node.op, self._value(node.left, path, fn), self._value(node.right, path, fn), fn.language,
+                      node.line)
 
     def _math(self, node: t.MathCall, path: Path, fn: t.Function) -> Value:
         args = [as_real(self._value(a, path, fn)) for a in node.args]
@@ -464,16 +355,8 @@ class Runner:
             return Call(node.function, tuple(args))  # type: ignore[arg-type]
         return Unknown(f"the math function {node.function} is not supported (line {node.line})")
 
-    def _convert(self, value: Value, kind: t.ScalarKind, line: int) -> Value:
-        if kind == "int":
-            if isinstance(value, (Int, SymInt, Unknown)):
-                return value
-            if isinstance(value, Num) and value.value.denominator == 1:
-                return Int(int(value.value))
-            return Unknown(f"conversion to an integer truncates (line {line})")
-        if kind == "real" and isinstance(value, (Int, SymInt)):
-            return as_real(value)
-        return value
+    def _convert(self, value: Value, kind: str, line: int) -> Value:
+        return convert(value, kind, line)
 
     # -- places
 
@@ -615,71 +498,3 @@ class Runner:
         return Agg()
 
 
-_NEGATION = {"==": "!=", "!=": "==", "<": ">=", "<=": ">", ">": "<=", ">=": "<"}
-
-
-def _compare(op: str, a: Fraction | int, b: Fraction | int) -> bool:
-    return {"==": a == b, "!=": a != b, "<": a < b, "<=": a <= b, ">": a > b, ">=": a >= b}[op]
-
-
-def _put(container: Value, keys: tuple[Key, ...], value: Value, line: int) -> Value:
-    if not keys:
-        return value
-    if not isinstance(container, Agg):
-        raise Stuck(f"assignment to a component of a value that has none (line {line})", line)
-    key = keys[0]
-    if container.size and isinstance(key, int) and not container.base <= key < container.base + container.size:
-        raise Stuck(f"index {key} is out of range (line {line})", line)
-    return container.set(key, _put(container.get(key), keys[1:], value, line))
-
-
-def flatten(value: Value) -> list[Value]:
-    if isinstance(value, Agg) and (value.items or value.size or value.fields):
-        out: list[Value] = []
-        for key in value.keys():
-            out.extend(flatten(value.get(key)))
-        return out
-    return [value]
-
-
-def _children(node: t.Node) -> list[tuple[str, int | None, t.Node]]:
-    """(field, position in a tuple field or None, child) for every expression child of ``node``."""
-    out: list[tuple[str, int | None, t.Node]] = []
-    for name in getattr(node, "__dataclass_fields__", {}):
-        value = getattr(node, name)
-        if isinstance(value, tuple):
-            out.extend((name, i, v) for i, v in enumerate(value) if hasattr(v, "__dataclass_fields__"))
-        elif hasattr(value, "__dataclass_fields__"):
-            out.append((name, None, value))
-    return out
-
-
-def _first_hoistable(node: t.Node, resolve: Resolver) -> t.Node | None:
-    """The first call of a known function or conditional expression, arguments before the call itself."""
-    if isinstance(node, t.Choose):
-        return node
-    for _, _, child in _children(node):
-        found = _first_hoistable(child, resolve)
-        if found is not None:
-            return found
-    if isinstance(node, t.UserCall) and resolve(node.name) is not None:
-        return node
-    return None
-
-
-def _substitute(node: t.Node, old: t.Node, new: t.Node) -> t.Node:
-    """``node`` with the subtree ``old`` (by identity) replaced by ``new``."""
-    if node is old:
-        return new
-    changes: dict[str, object] = {}
-    for name, position, child in _children(node):
-        replaced = _substitute(child, old, new)
-        if replaced is child:
-            continue
-        if position is None:
-            changes[name] = replaced
-        else:
-            items = list(changes.get(name, getattr(node, name)))  # type: ignore[call-overload]
-            items[position] = replaced
-            changes[name] = tuple(items)
-    return replace(node, **changes) if changes else node  # type: ignore[type-var]

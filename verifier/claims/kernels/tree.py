@@ -7,7 +7,8 @@ node carries its source line so that an unsupported construct is reported where 
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from collections.abc import Callable
+from dataclasses import dataclass, field, replace
 from fractions import Fraction
 from typing import Literal, Union
 
@@ -317,3 +318,46 @@ def read_names(statements: tuple[Statement, ...]) -> set[str]:
     for item in statements:
         statement(item)
     return found
+
+
+def _children(node: Node) -> list[tuple[str, int | None, Node]]:
+    """(field, position in a tuple field or None, child) for every expression child of ``node``."""
+    out: list[tuple[str, int | None, Node]] = []
+    for name in getattr(node, "__dataclass_fields__", {}):
+        value = getattr(node, name)
+        if isinstance(value, tuple):
+            out.extend((name, i, v) for i, v in enumerate(value) if hasattr(v, "__dataclass_fields__"))
+        elif hasattr(value, "__dataclass_fields__"):
+            out.append((name, None, value))
+    return out
+
+
+def first_hoistable(node: Node, resolve: Callable[[str], object]) -> Node | None:
+    """The first call of a known function or conditional expression, arguments before the call itself."""
+    if isinstance(node, Choose):
+        return node
+    for _, _, child in _children(node):
+        found = first_hoistable(child, resolve)
+        if found is not None:
+            return found
+    if isinstance(node, UserCall) and resolve(node.name) is not None:
+        return node
+    return None
+
+
+def substitute_node(node: Node, old: Node, new: Node) -> Node:
+    """``node`` with the subtree ``old`` (by identity) replaced by ``new``."""
+    if node is old:
+        return new
+    changes: dict[str, object] = {}
+    for name, position, child in _children(node):
+        replaced = substitute_node(child, old, new)
+        if replaced is child:
+            continue
+        if position is None:
+            changes[name] = replaced
+        else:
+            items = list(changes.get(name, getattr(node, name)))  # type: ignore[call-overload]
+            items[position] = replaced
+            changes[name] = tuple(items)
+    return replace(node, **changes) if changes else node  # type: ignore[type-var]
