@@ -43,6 +43,12 @@ def _prose_comments(path: str, text: str) -> list[CommentClaim] | None:
     return None
 
 
+def _is_kernel(path: str) -> bool:
+    from verifier.claims.kernels.parse import language_of
+
+    return language_of(path) is not None
+
+
 def extract(path: str, text: str, context: ExtractionContext | None = None) -> list[Claim]:
     """Every claim in the file ``path`` (relative, forward slashes) whose content is ``text``."""
     context = context or ExtractionContext()
@@ -56,6 +62,11 @@ def extract(path: str, text: str, context: ExtractionContext | None = None) -> l
         extract_python = _python_extractor()
         if extract_python is not None:
             return extract_python(path, text, comments, context)
+    if comments and _is_kernel(path):
+        # The kernel front ends (tree-sitter) load only for files of their languages that hold claims.
+        from verifier.claims.kernels.extract import extract_kernel
+
+        return extract_kernel(path, text, comments, context)
     claims: list[Claim] = []
     for comment in comments:
         claims.extend(expression_claims(comment, path, context))

@@ -108,6 +108,11 @@ def plan_audit(
 
     for key, a, b in matched:
         a_source, b_source = _read(a, base), _read(b, base)
+        from verifier.claims.kernels.parse import language_of
+
+        if language_of(a_source.path) or language_of(b_source.path):
+            _plan_kernel_pair(key, a_source, b_source, context, given, functions, only_a, only_b, unreadable)
+            continue
         try:
             a_info = parse_module(a_source)
         except ModuleUnreadable as exc:
@@ -142,6 +147,35 @@ def plan_audit(
         listed(key, path, only_b)
     return AuditPlan(relative_path(opt_path.absolute(), base), relative_path(ref_path.absolute(), base),
                      tuple(functions), tuple(only_a), tuple(only_b), tuple(unreadable))
+
+
+def _plan_kernel_pair(key, a_source, b_source, context, given, functions, only_a, only_b, unreadable) -> None:
+    """A kernel file (C, C++, CUDA, Fortran, Julia, Rust) on either side: the kernel front ends decide."""
+    # Loaded only for audits that involve kernel files (tree-sitter).
+    from verifier.claims.kernels.audit import functions_of, is_kernel_file, pair_claim
+
+    a_sites, b_sites = functions_of(a_source.path, a_source.text), functions_of(b_source.path, b_source.text)
+    for source, sites in ((a_source, a_sites), (b_source, b_sites)):
+        if isinstance(sites, str):
+            unreadable.append(_unreadable_claim(source.path, sites))
+    if isinstance(a_sites, str) or isinstance(b_sites, str):
+        return
+    for name in sorted(a_sites, key=lambda n: a_sites[n]):
+        if name not in b_sites:
+            only_a.append(OneSided(key, name, a_source.path, a_sites[name]))
+        elif not is_kernel_file(a_source.path):
+            location = Location(a_source.path, a_sites[name], 1)
+            functions.append(AuditedFunction(key, name, Claim(
+                f"{location}", location, "function", f"same as {name} in {b_source.path}", (),
+                Problem("inconclusive", "auditing a Python module against a kernel file is not supported; "
+                                        "audit the kernel file against the Python module"),
+                dependencies=(a_source.path, b_source.path))))
+        else:
+            functions.append(AuditedFunction(key, name, pair_claim(a_source.path, a_source.text, b_source.path,
+                                                                   name, context, given)))
+    for name in sorted(b_sites, key=lambda n: b_sites[n]):
+        if name not in a_sites:
+            only_b.append(OneSided(key, name, b_source.path, b_sites[name]))
 
 
 def run_audit(plan: AuditPlan, options) -> AuditResult:
