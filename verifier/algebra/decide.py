@@ -145,10 +145,10 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
                        "the conditions cannot all hold (1 is in their ideal): proved vacuously", vacuous=True)
     normal_form = f
     if basis_result is not None:
-        cofactors = membership_cofactors(f, basis_result, deadline=deadline)
-        if cofactors is not None:
-            method = _method_of(tr, cofactors)
-            return _proved(tr, label, method, 1, tuple(cofactors), _proved_reason(method, tr))
+        member_cofactors = membership_cofactors(f, basis_result, deadline=deadline)
+        if member_cofactors is not None:
+            method = _method_of(tr, member_cofactors)
+            return _proved(tr, label, method, 1, tuple(member_cofactors), _proved_reason(method, tr))
         _, normal_form = reduce(f, basis_result.basis, deadline=deadline)
         if len(f.terms()) <= _RADICAL_TERM_LIMIT:
             for k in _RADICAL_POWERS:

@@ -11,6 +11,8 @@ from typing import Mapping, Sequence, Union
 
 import mpmath
 from mpmath import mp, mpf
+# `mpmath.matrix` is a class built at run time on the context, so it cannot be an annotation: use its base
+from mpmath.matrices.matrices import _matrix as Matrix
 
 from verifier.algebra.evaluate import numeric_value, tiny, to_mpf
 from verifier.model.claim import Condition
@@ -37,7 +39,7 @@ def residuals(equations: Sequence[Condition], point: Mapping[str, Real], prec: i
 
 
 def jacobian(equations: Sequence[Condition], point: dict[str, mpf], unknowns: Sequence[str],
-             prec: int) -> mpmath.matrix:
+             prec: int) -> Matrix:
     """Central differences with step 10**-(prec/3) (error ~ 10**-(2 prec/3), enough for Newton)."""
     jac = mpmath.matrix(len(equations), len(unknowns))
     for j, name in enumerate(unknowns):
@@ -54,7 +56,7 @@ def jacobian(equations: Sequence[Condition], point: dict[str, mpf], unknowns: Se
     return jac
 
 
-def min_singular_ratio(jac: mpmath.matrix) -> mpf:
+def min_singular_ratio(jac: Matrix) -> mpf:
     """Smallest singular value over max(1, largest entry): 0 when the rows are dependent, tiny near a
     singular point such as x = 1e-70 of x**2 == 0 (where no true solution need lie next to the point)."""
     rows, cols = jac.rows, jac.cols
@@ -68,7 +70,7 @@ def min_singular_ratio(jac: mpmath.matrix) -> mpf:
     return min(abs(singular[i]) for i in range(rows)) / largest
 
 
-def _minimum_norm_step(jac: mpmath.matrix, f: mpmath.matrix) -> list[mpf]:
+def _minimum_norm_step(jac: Matrix, f: Matrix) -> list[mpf]:
     """step = J^T (J J^T + lambda I)^-1 f: the minimum-norm Newton step, with a tiny damping lambda (relative
     10**-(dps/3)) so that dependent equations (a circle stated twice in different forms) do not make the
     linear system singular."""
@@ -118,7 +120,7 @@ def newton(equations: Sequence[Condition], start: Mapping[str, Real], unknowns: 
         return None
 
 
-def independent_rows(jac: mpmath.matrix) -> list[int]:
+def independent_rows(jac: Matrix) -> list[int]:
     """A maximal set of rows of full rank, chosen greedily in order."""
     chosen: list[int] = []
     for i in range(jac.rows):

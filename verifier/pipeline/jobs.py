@@ -12,7 +12,7 @@ from collections.abc import Callable
 from typing import Any
 
 from verifier.model.claim import Claim, ExtractionContext, FileProblem, Location, Problem
-from verifier.model.verdict import Limit, Verdict
+from verifier.model.verdict import Limit, Verdict, VerdictName
 from verifier.pipeline.workers import Job, PoolSettings, memory_limit_reason
 
 DEFAULT_DECIDER = "verifier.pipeline.runner:decide_with_engine"
@@ -35,7 +35,7 @@ def file_problem_claim(problem: FileProblem, verdict: str = "error") -> Claim:
 
 def limit_verdict(claim: Claim, reason: str, seconds: float, limit: Limit | None = None,
                   verdict: str = "inconclusive") -> Verdict:
-    name = "inconclusive" if verdict == "inconclusive" else "error"
+    name: VerdictName = "inconclusive" if verdict == "inconclusive" else "error"
     return Verdict(claim, name, None, reason, None, None, (), round(seconds, 3), limit=limit)
 
 

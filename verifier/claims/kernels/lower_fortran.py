@@ -18,6 +18,7 @@ from verifier.claims.kernels.locate import walk
 _ARITHMETIC = {"+": "+", "-": "-", "*": "*", "/": "/", "**": "pow"}
 _COMPARISONS = {"==": "==", "/=": "!=", "<": "<", "<=": "<=", ">": ">", ">=": ">=", ".eq.": "==", ".ne.": "!=",
                 ".lt.": "<", ".le.": "<=", ".gt.": ">", ".ge.": ">="}
+_INTENT_MODES: dict[str, t.ParamMode] = {"in": "value", "out": "out", "inout": "inout"}
 _SKIPPED = {"comment", "implicit_statement", "use_statement", "print_statement", "write_statement",
             "end_function_statement", "end_subroutine_statement", "function_statement", "subroutine_statement",
             "variable_declaration", "contains_statement", "internal_procedures", "format_statement"}
@@ -37,14 +38,14 @@ class FortranLowering(Lowering):
                             self.constants[name] = self.expression(declarator.child_by_field_name("right"))
             elif node.type == "derived_type_definition":
                 header = node.named_children[0]
-                name = next((self.text(c).lower() for c in header.named_children if c.type == "type_name"), None)
+                type_name = next((self.text(c).lower() for c in header.named_children if c.type == "type_name"), None)
                 fields: list[str] = []
                 for child in node.named_children:
                     if child.type == "variable_declaration":
                         for declarator in child.children_by_field_name("declarator"):
                             fields.append(self._declared_name(declarator))
-                if name is not None:
-                    self.structs[name] = tuple(fields)
+                if type_name is not None:
+                    self.structs[type_name] = tuple(fields)
 
     def _is_module_level(self, node: Any) -> bool:
         parent = node.parent
@@ -102,7 +103,7 @@ class FortranLowering(Lowering):
         params = []
         for dummy in dummies:
             kind, intent, size, struct = declared.get(dummy, ("real", "none", 0, None))
-            mode: t.ParamMode = {"in": "value", "out": "out", "inout": "inout"}.get(intent, "inout")
+            mode = _INTENT_MODES.get(intent, "inout")
             params.append(t.Param(dummy, kind, mode, max(size, 0), struct, const=intent == "in"))
         prologue: list[t.Statement] = []
         for local, (kind, _, size, struct) in declared.items():

@@ -15,7 +15,7 @@ from verifier.claims.kernels import tree as t
 from verifier.claims.kernels.common import Lowering, scalar_kind
 from verifier.claims.kernels.locate import julia_signature_call, walk
 
-_ASSIGN_OPS = {"+=": "+", "-=": "-", "*=": "*", "/=": "/"}
+_ASSIGN_OPS: dict[str, t.BinaryOp] = {"+=": "+", "-=": "-", "*=": "*", "/=": "/"}
 _ARITHMETIC = {"+": "+", "-": "-", "*": "*", "/": "/", "^": "pow", "÷": "idiv"}
 _COMPARISONS = {"==", "!=", "<", "<=", ">", ">=", "≤", "≥", "≠"}
 _UNICODE = {"≤": "<=", "≥": ">=", "≠": "!="}
@@ -59,8 +59,8 @@ class JuliaLowering(Lowering):
         for argument in arguments.named_children:
             param = self._param(argument)
             if param is None:
-                body = (self.stop(argument, "a parameter with a default, a keyword or a splat"),)
-                return t.Function(name, (), body, True, line=self.line(node), path=self.path, language="julia")
+                stopped = (self.stop(argument, "a parameter with a default, a keyword or a splat"),)
+                return t.Function(name, (), stopped, True, line=self.line(node), path=self.path, language="julia")
             params.append(param)
             self.scope.add(param.name)
         if node.type == "assignment":
@@ -140,7 +140,7 @@ class JuliaLowering(Lowering):
             if op not in _ASSIGN_OPS:
                 return [self.stop(node, f"the compound assignment `{op}`")]
             target = self._target(left)
-            combined = t.Binary(_ASSIGN_OPS[op], target, self.expression(value), line)  # type: ignore[arg-type]
+            combined = t.Binary(_ASSIGN_OPS[op], target, self.expression(value), line)
             return [t.Assign(target, combined, line, node.start_byte)]
         if kind == "return_statement":
             value = node.named_children[0] if node.named_children else None
@@ -153,9 +153,9 @@ class JuliaLowering(Lowering):
             return [self._for(node)]
         if kind == "call_expression":
             return [t.Evaluate(self.expression(node), line)]
-        names = {"while_statement": "a while loop", "macrocall_expression": "a macro call",
-                 "try_statement": "a try block"}
-        return [self.stop(node, names.get(kind))]
+        constructs = {"while_statement": "a while loop", "macrocall_expression": "a macro call",
+                      "try_statement": "a try block"}
+        return [self.stop(node, constructs.get(kind))]
 
     def _target(self, node: Any) -> t.Node:
         if node.type == "identifier":

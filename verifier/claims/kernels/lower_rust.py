@@ -14,7 +14,7 @@ from verifier.claims.kernels import tree as t
 from verifier.claims.kernels.common import Lowering, scalar_kind
 from verifier.claims.kernels.locate import walk
 
-_ASSIGN_OPS = {"+=": "+", "-=": "-", "*=": "*", "/=": "/"}
+_ASSIGN_OPS: dict[str, t.BinaryOp] = {"+=": "+", "-=": "-", "*=": "*", "/=": "/"}
 _ARITHMETIC = {"+", "-", "*", "/"}
 _COMPARISONS = {"==", "!=", "<", "<=", ">", ">="}
 _METHODS = {"sqrt": "sqrt", "sin": "sin", "cos": "cos", "tan": "tan", "exp": "exp", "ln": "log", "abs": "abs",
@@ -47,8 +47,8 @@ class RustLowering(Lowering):
         params: list[t.Param] = []
         for child in node.child_by_field_name("parameters").named_children:
             if child.type == "self_parameter":
-                body = (t.Stop(f"a method with self at line {self.line(child)}", self.line(child)),)
-                return t.Function(name, (), body, True, line=self.line(node), path=self.path, language="rust")
+                stopped = (t.Stop(f"a method with self at line {self.line(child)}", self.line(child)),)
+                return t.Function(name, (), stopped, True, line=self.line(node), path=self.path, language="rust")
             if child.type != "parameter":
                 continue
             pattern = child.child_by_field_name("pattern")
@@ -171,12 +171,12 @@ class RustLowering(Lowering):
             if op not in _ASSIGN_OPS:
                 return [self.stop(node, f"the compound assignment `{op}`")]
             target = self.expression(node.child_by_field_name("left"))
-            value = t.Binary(_ASSIGN_OPS[op], target, self.expression(node.child_by_field_name("right")),  # type: ignore[arg-type]
+            value = t.Binary(_ASSIGN_OPS[op], target, self.expression(node.child_by_field_name("right")),
                              line)
             return [t.Assign(target, value, line, site)]
         if kind == "return_expression":
-            value = node.named_children[0] if node.named_children else None
-            return [t.Return(self.expression(value) if value is not None else None, line, site)]
+            returned = node.named_children[0] if node.named_children else None
+            return [t.Return(self.expression(returned) if returned is not None else None, line, site)]
         if kind == "if_expression":
             condition = self.expression(node.child_by_field_name("condition"))
             then = self._body(node.child_by_field_name("consequence"), False)

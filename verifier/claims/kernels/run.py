@@ -474,7 +474,7 @@ class Runner:
             if isinstance(found, t.Choose):
                 for branch, p in self._split(found.condition, path, fn):
                     chosen = found.then if branch else found.otherwise
-                    out.append((p, replace(s, **{name: _substitute(node, found, chosen)})))
+                    out.append((p, t.with_expression(s, name, _substitute(node, found, chosen))))
                 return out
             callee = self.resolve(found.name)
             assert callee is not None
@@ -483,7 +483,7 @@ class Runner:
                 temp = f"$call{self.next_cell}"
                 p.store[self.next_cell] = value
                 p.frames[-1][temp] = (self.next_cell, ())
-                out.append((p, replace(s, **{name: _substitute(node, found, t.Name(temp, found.line))})))
+                out.append((p, t.with_expression(s, name, _substitute(node, found, t.Name(temp, found.line)))))
             return out
         return None
 

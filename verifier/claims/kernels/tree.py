@@ -332,7 +332,7 @@ def _children(node: Node) -> list[tuple[str, int | None, Node]]:
     return out
 
 
-def first_hoistable(node: Node, resolve: Callable[[str], object]) -> Node | None:
+def first_hoistable(node: Node, resolve: Callable[[str], object]) -> Choose | UserCall | None:
     """The first call of a known function or conditional expression, arguments before the call itself."""
     if isinstance(node, Choose):
         return node
@@ -360,4 +360,16 @@ def substitute_node(node: Node, old: Node, new: Node) -> Node:
             items = list(changes.get(name, getattr(node, name)))  # type: ignore[call-overload]
             items[position] = replaced
             changes[name] = tuple(items)
-    return replace(node, **changes) if changes else node  # type: ignore[type-var]
+    # the field names come from the node's own dataclass fields (_children), which the checker cannot follow
+    return replace(node, **changes) if changes else node  # type: ignore[arg-type]
+
+
+def with_expression(s: Statement, name: str, value: Node) -> Statement:
+    """``s`` with its expression field ``name`` (init, value or condition) set to ``value``."""
+    if isinstance(s, Declare) and name == "init":
+        return replace(s, init=value)
+    if isinstance(s, If) and name == "condition":
+        return replace(s, condition=value)
+    if isinstance(s, (Assign, Destructure, Return, Evaluate)) and name == "value":
+        return replace(s, value=value)
+    raise ValueError(f"{type(s).__name__} has no expression field {name!r}")

@@ -7,11 +7,15 @@ from __future__ import annotations
 
 import re
 from collections.abc import Sequence
+from typing import TYPE_CHECKING
 
 from verifier.claims.kernels.run import Agg, SymInt, Unknown, Value, as_real, flatten
 from verifier.claims.language import ParsedClaim
 from verifier.model.claim import Condition, ExtractionContext, Obligation
 from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
+
+if TYPE_CHECKING:  # for annotations only: the executor is loaded when a kernel names a Python reference
+    from verifier.claims.execute import Value as PythonValue
 
 MAX_OBLIGATIONS = 2048
 _HEAD = re.compile(r"[A-Za-z_][A-Za-z_0-9!]*")
@@ -134,16 +138,20 @@ def obligations_for(name: str, paths: Sequence[PathResult], other_name: str, oth
                                             f"{_count(len(theirs))}")
             combined = tuple(conditions) + tuple(c for c in other_conditions if c not in conditions)
             for index, (left, right) in enumerate(zip(mine, theirs), start=1):
-                lhs, rhs = _real(left), _real(right)
-                for side, who in ((lhs, name), (rhs, other_label)):
-                    if isinstance(side, Unknown):
-                        raise ClaimProblem("inconclusive", f"a value of {who} cannot be followed: {side.reason}")
+                lhs, rhs = _followed(left, name), _followed(right, other_label)
                 component = f"component {index}" if len(mine) > 1 else ""
-                obligations.append(Obligation(lhs, rhs, given + combined,  # type: ignore[arg-type]
+                obligations.append(Obligation(lhs, rhs, given + combined,
                                               _label(combined, component, extra_label)))
                 if len(obligations) > MAX_OBLIGATIONS:
                     raise ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
     return obligations
+
+
+def _followed(value: Value, who: str) -> Expr:
+    real = _real(value)
+    if isinstance(real, Unknown):
+        raise ClaimProblem("inconclusive", f"a value of {who} cannot be followed: {real.reason}")
+    return real
 
 
 def _count(n: int) -> str:
@@ -194,11 +202,11 @@ def python_reference(path: str, name: str, args: list[Value], context: Extractio
     return out
 
 
-def _to_python(value: Value) -> object:
+def _to_python(value: Value) -> PythonValue:
     from verifier.claims import execute
 
     if isinstance(value, Agg):
-        return execute.Seq(tuple(_to_python(v) for v in flatten(value)))  # type: ignore[arg-type]
+        return execute.Seq(tuple(_to_python(v) for v in flatten(value)))
     if isinstance(value, SymInt):
         return Var(value.name)
     real = as_real(value)
