@@ -3,7 +3,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 
-from verifier.claims.comments import CommentClaim, find_comments
+from verifier.claims.comments import MARKER, CommentClaim, find_comments
 from verifier.claims.expression import PYTHON_EXTENSIONS, expression_claims
 from verifier.model.claim import Claim, ExtractionContext
 
@@ -22,9 +22,25 @@ def _python_extractor() -> PythonExtractor | None:
     return extract_python
 
 
+def python_comments(text: str) -> list[CommentClaim]:
+    """The claims of the Python module ``text``: its ``idealcheck:`` comments and the ``idealcheck:`` lines of
+    its function docstrings (each once, in file order)."""
+    comments = find_comments("module.py", text)  # the name only selects Python's comment syntax
+    if MARKER not in text:
+        return comments
+    # function-level import: docstrings are found with libcst, which `idealcheck --help` does not load
+    from verifier.claims.docstrings import docstring_claims
+
+    seen = {(comment.line, comment.column) for comment in comments}
+    found = [claim for claim in docstring_claims(text) if (claim.line, claim.column) not in seen]
+    if not found:
+        return comments
+    return sorted(comments + found, key=lambda claim: (claim.line, claim.column))
+
+
 def extract_python_module(path: str, text: str, context: ExtractionContext) -> list[Claim]:
     """The claims of ``text`` read as a Python module, reported under ``path`` (notebooks build such a text)."""
-    comments = find_comments("module.py", text)  # the name only selects Python's comment syntax
+    comments = python_comments(text)
     extract_python = _python_extractor()
     if extract_python is not None:
         return extract_python(path, text, comments, context)
@@ -56,12 +72,12 @@ def extract(path: str, text: str, context: ExtractionContext | None = None) -> l
         from verifier.claims.notebook import extract_notebook
 
         return extract_notebook(path, text, context, extract_python_module)
-    prose = _prose_comments(path, text)
-    comments = find_comments(path, text) if prose is None else prose
     if path.lower().endswith(PYTHON_EXTENSIONS):
         extract_python = _python_extractor()
         if extract_python is not None:
-            return extract_python(path, text, comments, context)
+            return extract_python(path, text, python_comments(text), context)
+    prose = _prose_comments(path, text)
+    comments = find_comments(path, text) if prose is None else prose
     if comments and _is_kernel(path):
         # The kernel front ends (tree-sitter) load only for files of their languages that hold claims.
         from verifier.claims.kernels.extract import extract_kernel
@@ -73,4 +89,4 @@ def extract(path: str, text: str, context: ExtractionContext | None = None) -> l
     return claims
 
 
-__all__ = ["extract", "extract_python_module", "find_comments", "expression_claims", "CommentClaim"]
+__all__ = ["extract", "extract_python_module", "python_comments", "find_comments", "expression_claims", "CommentClaim"]

@@ -29,6 +29,9 @@ class CommentClaim:
     trailing: bool  # True when code precedes the comment on its first line
     # Where each joined piece of ``text`` comes from: (offset in text, line, 1-based column), for error columns.
     pieces: tuple[tuple[int, int, int], ...] = ()
+    # For a claim in a Python docstring: the line of its function's first decorator or ``def``, which the
+    # claim is about as if it stood above it; None for a comment.
+    subject_line: int | None = None
 
     def position(self, offset: int) -> tuple[int, int]:
         """(line, column) in the file of the character at ``offset`` in ``text`` (best effort)."""

@@ -223,6 +223,8 @@ class _FileReader:
         return best
 
     def _def_below(self, comment: CommentClaim) -> FunctionRef | None:
+        if comment.subject_line is not None:  # a docstring claim: about the function that holds it
+            return self.defs_by_line.get(comment.subject_line)
         number = comment.end_line + 1
         while number <= len(self.lines) and self.lines[number - 1].lstrip().startswith("#"):
             number += 1
