@@ -101,8 +101,6 @@ def _register_check(subparsers: Any) -> None:
     )
     parser.add_argument("paths", nargs="*", metavar="PATH", help="files or folders (default: .); "
                         "a file selects the claims that depend on it, wherever they are in the project")
-    parser.add_argument("--format", choices=FORMAT_CHOICES, default="text", help="report format (default: text)")
-    parser.add_argument("--output", metavar="FILE", help="write the report in --format to FILE; the text report goes to stdout")
     parser.add_argument("--timeout", type=_positive_float("--timeout"), metavar="S", help="seconds per claim (config: timeout)")
     parser.add_argument("--memory-mb", type=_positive_int("--memory-mb"), metavar="N", help="memory per worker in MB (config: memory_mb)")
     parser.add_argument("--jobs", type=_positive_int("--jobs"), metavar="N", help="worker processes (config: jobs; default: number of cores)")
@@ -117,6 +115,9 @@ def _register_check(subparsers: Any) -> None:
     from verifier.cli.accuracy import add_accuracy_options
 
     add_accuracy_options(parser)  # --accuracy and its sampling settings
+    from verifier.cli.report_options import add_report_options
+
+    add_report_options(parser)  # --format, --output FORMAT=FILE, -q/-v, --color, --require-claims
     parser.set_defaults(handler=run_check)
 
 
@@ -157,6 +158,26 @@ def run_options(args: argparse.Namespace, config: Any) -> Any:
 
 
 def run_check(args: argparse.Namespace) -> int:
+    from verifier.cli.report_options import plan_outputs
+    from verifier.report.sarif import render_sarif_failure
+
+    stdout_format, targets = plan_outputs(args)
+    try:
+        return _run_check(args, stdout_format, targets)
+    except UsageError as exc:
+        # CI uploads the SARIF file whatever happened: give it a valid one that says why the run stopped
+        for target in targets:
+            if target.fmt == "sarif":
+                try:
+                    Path(target.path).write_text(render_sarif_failure(f"idealcheck: {exc}", version=__version__),
+                                                 encoding="utf-8")
+                except OSError:
+                    pass
+        raise
+
+
+def _run_check(args: argparse.Namespace, stdout_format: str, targets: list[Any]) -> int:
+    from verifier.cli.report_options import detail_of, no_claims_message, repository_root, use_color
     from verifier.pipeline.runner import CheckRequest, check
     from verifier.report import fails_run, render
 
@@ -183,30 +204,51 @@ def run_check(args: argparse.Namespace) -> int:
     )
     from verifier.pipeline.discover import DiscoveryError
 
+    texts: dict[str, str] = {}
     try:
-        verdicts = check(request)
+        verdicts = check(request, texts_out=texts)
     except DiscoveryError as exc:
         raise UsageError(str(exc)) from exc
-    report = render(verdicts, args.format, version=__version__, on_inconclusive=on_inconclusive)
-    if args.output:
-        try:
-            Path(args.output).write_text(report, encoding="utf-8")
-        except OSError as exc:
-            raise UsageError(f"--output: cannot write {args.output}: {exc.strerror or exc}") from exc
-        if args.format != "text":
-            report = render(verdicts, "text", version=__version__, on_inconclusive=on_inconclusive)
+    if not args.quiet:
+        _warn_near_misses(texts)
     from verifier.cli.accuracy import accuracy_report, accuracy_settings
 
     settings = accuracy_settings(args, config)
-    if settings is not None:  # a text section: after the text report, else on stderr beside machine output
-        section = accuracy_report(verdicts, settings)
-        if args.format == "text" or args.output:
-            report += section
-        else:
-            sys.stderr.write(section)
-    sys.stdout.write(report)
+    section = accuracy_report(verdicts, settings) if settings is not None else ""
+
+    root = repository_root(str(cwd)) or str(getattr(config, "root", None) or cwd)
+
+    def report(fmt: str, color: bool = False) -> str:
+        text = render(verdicts, fmt, version=__version__, on_inconclusive=on_inconclusive,  # type: ignore[arg-type]
+                      detail=detail_of(args), color=color,  # type: ignore[arg-type]
+                      cwd=str(cwd), repository_root=root)
+        return text + section if fmt == "text" else text  # the accuracy section goes with text reports
+
+    for target in targets:
+        try:
+            Path(target.path).write_text(report(target.fmt), encoding="utf-8")
+        except OSError as exc:
+            raise UsageError(f"--output: cannot write {target.path}: {exc.strerror or exc}") from exc
+    if section and stdout_format != "text" and not any(t.fmt == "text" for t in targets):
+        sys.stderr.write(section)  # beside machine output on stdout
+    sys.stdout.write(report(stdout_format, use_color(args.color, sys.stdout)) if stdout_format == "text"
+                     else report(stdout_format))
     sys.stdout.flush()
+    if not verdicts:
+        if not args.quiet or args.require_claims:
+            print(no_claims_message(args.paths, args.require_claims), file=sys.stderr)
+        if args.require_claims:
+            return EXIT_FINDINGS
     return EXIT_FINDINGS if any(fails_run(v, on_inconclusive) for v in verdicts) else EXIT_OK
+
+
+def _warn_near_misses(texts: dict[str, str]) -> None:
+    """A warning on stderr for each comment that misspells the claim marker (it is silently no claim)."""
+    from verifier.claims.near_miss import near_misses
+
+    for path in sorted(texts):
+        for miss in near_misses(path, texts[path]):
+            print(f"{path}:{miss.line}:{miss.column}: warning: {miss.message()}", file=sys.stderr)
 
 
 # ---------------------------------------------------------------- the parser and main

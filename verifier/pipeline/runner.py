@@ -558,8 +558,13 @@ def with_cache(request: CheckRequest, texts: dict[str, str]) -> RunOptions:
     return dataclasses.replace(options, cache=cache)
 
 
-def check(request: CheckRequest) -> list[Verdict]:
-    """Run a whole check and return the verdicts (in the order the claims were found)."""
+def check(request: CheckRequest, *, texts_out: dict[str, str] | None = None) -> list[Verdict]:
+    """Run a whole check and return the verdicts (in the order the claims were found).
+
+    ``texts_out``, when given, receives the texts of the files read (the command line warns about
+    misspelt claim markers in them)."""
     warm_up_workers(request.options)
     claims, texts = gather_claims(request)
+    if texts_out is not None:
+        texts_out.update(texts)
     return run(claims, with_cache(request, texts))
