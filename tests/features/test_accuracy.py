@@ -119,7 +119,7 @@ def test_check_accuracy_ranks_the_naive_root_as_less_accurate():
     assert result.returncode == 0, result.stdout + result.stderr
     out = result.stdout
     assert "proved" in out
-    assert "the right side is more accurate on these samples" in out
+    assert "the claim is more accurate on these samples" in out
     assert "sampled estimate" in out and "not a bound" in out and "numerical review" in out
     left_line = next(line for line in out.splitlines() if line.strip().startswith("left"))
     assert "ulp" in left_line and "b = " in left_line
@@ -158,7 +158,7 @@ def test_accuracy_settings_from_the_config(tmp_path, capsys, monkeypatch):
     assert main(["check", "roots.py", "--no-cache", "--in-process", "--accuracy"]) == 0
     out = capsys.readouterr().out
     assert "30 sampled points" in out
-    assert "the right side is more accurate on these samples" in out
+    assert "the claim is more accurate on these samples" in out
     # the command line overrides the config
     assert main(["check", "roots.py", "--no-cache", "--in-process", "--accuracy", "--accuracy-samples", "7"]) == 0
     assert "7 sampled points" in capsys.readouterr().out

@@ -94,8 +94,14 @@ def estimates_for(verdicts: Sequence[Verdict], settings: AccuracySettings) -> li
 
 
 def accuracy_report(
-    verdicts: Sequence[Verdict], settings: AccuracySettings, side_names: tuple[str, str] = ("left", "right")
+    verdicts: Sequence[Verdict], settings: AccuracySettings, side_names: tuple[str, str] | None = None
 ) -> str:
+    """The accuracy section; without ``side_names`` each claim's sides are named (the function, the claim)."""
     from verifier.report.accuracy_text import render_accuracy_section
+    from verifier.report.common import side_names as names_of
 
-    return render_accuracy_section(estimates_for(verdicts, settings), side_names)
+    items = estimates_for(verdicts, settings)
+    if side_names is not None:
+        return render_accuracy_section(items, side_names)
+    per_item = [names_of(v.claim) for v in verdicts if v.verdict == "proved"]
+    return render_accuracy_section(items, names_per_item=per_item)

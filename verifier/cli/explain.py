@@ -19,7 +19,8 @@ def register(subparsers: Any) -> None:
         description="Decide the claim starting on FILE:LINE and show its condition ideal, reduced Groebner "
                     "basis, leading-term ideal, dimension, normal forms and the certificate or witness.",
     )
-    parser.add_argument("target", metavar="FILE:LINE", help="the file and the line the claim starts on")
+    parser.add_argument("target", metavar="FILE:LINE[:COL]",
+                        help="the file and the line the claim starts on (the place the check report prints works too)")
     parser.add_argument("--timeout", type=_positive_float("--timeout"), metavar="S",
                         help="seconds for the decision and again for the explanation (config: timeout)")
     add_accuracy_options(parser)
