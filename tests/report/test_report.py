@@ -63,3 +63,16 @@ def test_json_values_order_and_rounding() -> None:
 def test_json_is_deterministic_whatever_the_input_order() -> None:
     items = every_kind()
     assert render(items, "json", version="1") == render(list(reversed(items)), "json", version="1")
+
+
+def test_witness_values_are_rounded_to_twelve_significant_digits_for_people() -> None:
+    from verifier.report.common import rounded_for_people
+
+    # the digits of cos(2) (mpmath, outside the project) and of an exact small fraction
+    import mpmath
+
+    with mpmath.workdps(40):
+        long = mpmath.nstr(mpmath.cos(2), 30)
+        assert rounded_for_people(long) == mpmath.nstr(mpmath.cos(2), 12)
+    assert rounded_for_people("3/4") == "3/4" and rounded_for_people("12") == "12"
+    assert rounded_for_people("0.25") == "0.25"
