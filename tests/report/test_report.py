@@ -76,3 +76,11 @@ def test_witness_values_are_rounded_to_twelve_significant_digits_for_people() ->
         assert rounded_for_people(long) == mpmath.nstr(mpmath.cos(2), 12)
     assert rounded_for_people("3/4") == "3/4" and rounded_for_people("12") == "12"
     assert rounded_for_people("0.25") == "0.25"
+
+
+def test_on_a_terminal_a_long_proved_claim_is_cut_to_the_width() -> None:
+    long_text = " + ".join(f"x{i}" for i in range(40)) + " == 0 + " + " + ".join(f"x{i}" for i in range(40))
+    line = render([proved(text=long_text)], "text", version="1", width=80).splitlines()[0]
+    assert len(line) <= 80 and line.endswith("... (expansion)") and line.startswith("src/a.py:3:3: proved: x0 + x1")
+    full = render([proved(text=long_text)], "text", version="1").splitlines()[0]
+    assert long_text in full  # files and pipes get the whole text

@@ -177,7 +177,13 @@ def run_check(args: argparse.Namespace) -> int:
 
 
 def _run_check(args: argparse.Namespace, stdout_format: str, targets: list[Any]) -> int:
-    from verifier.cli.report_options import detail_of, no_claims_message, repository_root, use_color
+    from verifier.cli.report_options import (
+        detail_of,
+        no_claims_message,
+        repository_root,
+        terminal_width,
+        use_color,
+    )
     from verifier.pipeline.runner import CheckRequest, check
     from verifier.report import fails_run, render
 
@@ -218,10 +224,10 @@ def _run_check(args: argparse.Namespace, stdout_format: str, targets: list[Any])
 
     root = repository_root(str(cwd)) or str(getattr(config, "root", None) or cwd)
 
-    def report(fmt: str, color: bool = False) -> str:
+    def report(fmt: str, color: bool = False, width: int | None = None) -> str:
         text = render(verdicts, fmt, version=__version__, on_inconclusive=on_inconclusive,  # type: ignore[arg-type]
                       detail=detail_of(args), color=color,  # type: ignore[arg-type]
-                      cwd=str(cwd), repository_root=root)
+                      cwd=str(cwd), repository_root=root, width=width)
         return text + section if fmt == "text" else text  # the accuracy section goes with text reports
 
     for target in targets:
@@ -231,8 +237,8 @@ def _run_check(args: argparse.Namespace, stdout_format: str, targets: list[Any])
             raise UsageError(f"--output: cannot write {target.path}: {exc.strerror or exc}") from exc
     if section and stdout_format != "text" and not any(t.fmt == "text" for t in targets):
         sys.stderr.write(section)  # beside machine output on stdout
-    sys.stdout.write(report(stdout_format, use_color(args.color, sys.stdout)) if stdout_format == "text"
-                     else report(stdout_format))
+    sys.stdout.write(report(stdout_format, use_color(args.color, sys.stdout), terminal_width(sys.stdout))
+                     if stdout_format == "text" else report(stdout_format))
     sys.stdout.flush()
     if not verdicts:
         if not args.quiet or args.require_claims:

@@ -71,6 +71,16 @@ def use_color(choice: str, stream: IO[str] | Any = None, environ: Mapping[str, s
     return bool(isatty and isatty()) and env.get("TERM", "") != "dumb"
 
 
+def terminal_width(stream: IO[str] | Any) -> int | None:
+    """The columns of the terminal ``stream`` writes to (None when it is a file or a pipe, or with -v)."""
+    isatty = getattr(stream, "isatty", None)
+    if not (isatty and isatty()):
+        return None
+    import shutil
+
+    return shutil.get_terminal_size().columns
+
+
 def plan_outputs(args: argparse.Namespace) -> tuple[str, list[OutputTarget]]:
     """The stdout format and the files to write.
 
@@ -107,4 +117,4 @@ def no_claims_message(paths: Sequence[str], required: bool) -> str:
 
 
 __all__ = ["FORMAT_CHOICES", "OutputTarget", "add_report_options", "detail_of", "no_claims_message",
-           "plan_outputs", "repository_root", "use_color"]
+           "plan_outputs", "repository_root", "terminal_width", "use_color"]

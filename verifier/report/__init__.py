@@ -32,14 +32,17 @@ def render(
     color: bool = False,
     cwd: str | None = None,
     repository_root: str | None = None,
+    width: int | None = None,
 ) -> str:
     """The report of ``verdicts`` in format ``fmt``; ``on_inconclusive`` decides error vs warning levels.
 
-    ``detail`` (quiet, normal, verbose) and ``color`` concern the text report only; ``cwd`` (what the
+    ``detail`` (quiet, normal, verbose), ``color`` and ``width`` (a terminal's columns, for cutting long
+    one-line claim texts) concern the text report only; ``cwd`` (what the
     claims' paths are relative to) and ``repository_root`` make SARIF URIs repository-relative.
     """
     if fmt == "text":
-        return render_text(verdicts, version=version, detail=detail, color=color, on_inconclusive=on_inconclusive)
+        return render_text(verdicts, version=version, detail=detail, color=color, on_inconclusive=on_inconclusive,
+                           width=width)
     if fmt == "json":
         return render_json(verdicts, version=version)
     if fmt == "github":

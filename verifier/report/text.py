@@ -138,13 +138,21 @@ def failure_lines(verdict: Verdict, *, color: bool = False) -> list[str]:
     return lines
 
 
-def passing_line(verdict: Verdict, *, color: bool = False) -> str:
-    """One line for a claim that does not fail the run (proved, or a result accepted as known)."""
-    line = _header(verdict, color)
+def passing_line(verdict: Verdict, *, color: bool = False, width: int | None = None) -> str:
+    """One line for a claim that does not fail the run (proved, or a result accepted as known).
+
+    With ``width`` (a terminal's columns) a long claim text is cut to fit, ending in ``...``."""
     if verdict.verdict == "proved":
-        return line + (f" ({verdict.method})" if verdict.method else "")
-    note = expectation_note(verdict) if expectation_met(verdict) else None
-    return line + f" ({note or 'allowed by on_inconclusive = warn: ' + verdict.reason})"
+        tail = f" ({verdict.method})" if verdict.method else ""
+    else:
+        note = expectation_note(verdict) if expectation_met(verdict) else None
+        tail = f" ({note or 'allowed by on_inconclusive = warn: ' + verdict.reason})"
+    text = verdict.claim.text
+    head = f"{verdict.claim.location}: {verdict.verdict}: "
+    if width is not None and len(head) + len(text) + len(tail) > width:
+        room = max(12, width - len(head) - len(tail) - 3)
+        text = text[:room].rstrip() + "..." if len(text) > room else text
+    return f"{verdict.claim.location}: {coloured(verdict.verdict, color)}: {text}{tail}"
 
 
 def render_text(
@@ -154,7 +162,9 @@ def render_text(
     detail: Detail = "normal",
     color: bool = False,
     on_inconclusive: OnInconclusive = "fail",
+    width: int | None = None,
 ) -> str:
+    """The report; ``width`` (a terminal's columns) cuts long claim texts of the one-line passing claims."""
     items = ordered(verdicts)
     failing = [v for v in items if fails_run(v, on_inconclusive)]
     passing = [v for v in items if not fails_run(v, on_inconclusive)]
@@ -168,7 +178,7 @@ def render_text(
         if detail == "normal":
             if failing and passing:
                 lines.append("")
-            lines.extend(passing_line(v, color=color) for v in passing)
+            lines.extend(passing_line(v, color=color, width=width) for v in passing)
     if detail != "quiet" and any(v.verdict == "proved" for v in items):
         lines.append(BRIEF_CAUTION)
     lines.append(summary_line(verdicts))
