@@ -128,6 +128,10 @@ def test_an_expected_verdict_passes_and_a_changed_one_fails(project: Path, capsy
     assert junit_status == 0 and "<skipped" in junit and "<failure" not in junit
     # the claim text is unchanged by the clause (its identity in CI names and the cache)
     assert 'name="x == 5 given x**2 + 1 == 0"' in junit
+    main(["check", "--jobs", "1", "--no-cache", "--format", "json"])
+    (item,) = json.loads(capsys.readouterr().out)["claims"]
+    assert item["expected"] == {"verdict": "inconclusive", "reason": "no real point, kept as a known limit",
+                                "met": True}
 
     (project / "src" / "open.c").write_text(
         "// idealcheck: x == 5 given x - 5 == 0 expect inconclusive: no real point\n")
