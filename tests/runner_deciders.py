@@ -24,3 +24,25 @@ def misbehave(claim: Claim, timeout: float) -> Verdict:
     if text.startswith("nap "):
         time.sleep(float(text.split()[1]))
     return Verdict(claim, "proved", "expansion", f"decided in process {os.getpid()}", None, None, (), 0.0)
+
+
+def kills_the_fork_server(claim: Claim, timeout: float) -> Verdict:
+    """Like ``misbehave``; "kill the fork server" kills the process that forked this worker, when that
+    process is a multiprocessing fork server (never the test process itself)."""
+    if claim.text == "kill the fork server":
+        parent = os.getppid()
+        try:
+            with open(f"/proc/{parent}/cmdline", "rb") as handle:
+                command = handle.read()
+        except OSError:
+            command = b""
+        if b"forkserver" in command:
+            os.kill(parent, signal.SIGKILL)
+            time.sleep(0.2)
+    return misbehave(claim, timeout)
+
+
+def slow_sampling(seconds: float) -> str:
+    """A stand-in for a long accuracy estimate."""
+    time.sleep(seconds)
+    return f"slept {seconds}"

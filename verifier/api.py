@@ -183,14 +183,15 @@ def find_claims(
         on_inconclusive=on_inconclusive or settings.on_inconclusive,
     )
     warm_up_workers(options)
-    claims, texts = gather_claims(request)
+    claims, texts, _skipped = gather_claims(request)
     return ClaimSet(tuple(claims), request, texts)
 
 
 def decide_claims(claim_set: ClaimSet, claims: Sequence[Claim] | None = None) -> tuple[Verdict, ...]:
     """Verdicts of ``claims`` (default: all of ``claim_set``), in that order, with its limits and cache."""
     chosen = claim_set.claims if claims is None else tuple(claims)
-    return tuple(run(chosen, with_cache(claim_set.request, dict(claim_set.texts))))
+    options, _refused = with_cache(claim_set.request, dict(claim_set.texts))
+    return tuple(run(chosen, options))
 
 
 def check_paths(

@@ -1,7 +1,7 @@
 """The plain-terms description of a refuted claim's remaining difference (algebra/describe.py)."""
 from __future__ import annotations
 
-from claim_exprs import cond, expr
+from exprs import cond, expr
 
 from verifier.algebra.describe import describe_difference, describe_translation, normal_forms
 from verifier.algebra.groebner import groebner_basis

@@ -9,7 +9,7 @@ from mpmath import mp, mpf
 
 from verifier.algebra.evaluate import DomainError, NotEvaluable, exact_value, has_opaque, numeric_value, variables
 from verifier.model.expr import BinOp, Call, Num, Opaque, Pow, Var
-from witness_exprs import expr
+from exprs import expr
 
 F = Fraction
 

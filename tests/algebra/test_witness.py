@@ -16,7 +16,7 @@ from verifier.algebra.evaluate import exact_value
 from verifier.model.verdict import Witness
 from verifier.algebra.witness import check_witness, differs_mod_p, find_witness, parse_value
 from verifier.model.expr import Opaque, Var
-from witness_exprs import cond, expr
+from exprs import cond, expr
 
 F = Fraction
 

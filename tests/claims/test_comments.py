@@ -197,9 +197,17 @@ def test_error_on_a_continuation_line_names_that_line() -> None:
 
 
 @pytest.mark.parametrize("text", ["returns x + 1", "same as other_function", "== x + 1"])
-def test_python_only_forms_are_errors_elsewhere(text: str) -> None:
-    (claim,) = extract("k.f90", f"! idealcheck: {text}\n", _context())
+def test_code_tied_forms_are_errors_in_languages_without_a_front_end(text: str) -> None:
+    (claim,) = extract("k.go", f"// idealcheck: {text}\n", _context())
     assert claim.problem is not None and "Python-only" in claim.problem.message
+
+
+@pytest.mark.parametrize("text", ["returns x + 1", "same as other_function", "== x + 1"])
+def test_misplaced_code_tied_forms_in_kernel_files_are_errors(text: str) -> None:
+    # Kernel languages have front ends: the claim must sit above a function or trail an assignment.
+    (claim,) = extract("k.f90", f"! idealcheck: {text}\n", _context())
+    assert claim.problem is not None and claim.problem.verdict == "error"
+    assert "above a function" in claim.problem.message or "trail an assignment" in claim.problem.message
 
 
 def test_unknown_named_condition_is_an_error_naming_it() -> None:

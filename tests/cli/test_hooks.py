@@ -6,14 +6,17 @@
 """
 from __future__ import annotations
 
-import os
 import shutil
 import stat
 import subprocess
 import sys
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import pytest
+
+if TYPE_CHECKING:
+    from conftest import GitRepo
 
 CHECKOUT = Path(__file__).resolve().parents[2]
 BIN = Path(sys.executable).parent
@@ -24,91 +27,58 @@ FALSE_C = "int square(int a, int b);\n// idealcheck: (a+b)**2 == a**2 + b**2\n"
 TRUE_PY = "def half(x):\n    # idealcheck: (x + x)/2 == x\n    return x\n"
 
 
-def _env(extra: dict[str, str] | None = None) -> dict[str, str]:
-    env = dict(os.environ)
-    env["PATH"] = str(BIN) + os.pathsep + env.get("PATH", "")
-    env.update({
-        "GIT_AUTHOR_NAME": "Test", "GIT_AUTHOR_EMAIL": "test@example.invalid",
-        "GIT_COMMITTER_NAME": "Test", "GIT_COMMITTER_EMAIL": "test@example.invalid",
-        "GIT_CONFIG_NOSYSTEM": "1",
-    })
-    env.pop("GIT_DIR", None)
-    env.pop("GIT_INDEX_FILE", None)
-    env.update(extra or {})
-    return env
-
-
-def _git(repo: Path, *args: str, env: dict[str, str] | None = None, check: bool = True) -> subprocess.CompletedProcess:
-    result = subprocess.run(["git", *args], cwd=repo, env=env or _env(), capture_output=True, text=True)
-    if check and result.returncode != 0:
-        raise AssertionError(f"git {' '.join(args)} failed:\n{result.stdout}\n{result.stderr}")
-    return result
-
-
-def _new_repo(path: Path) -> Path:
-    path.mkdir(parents=True, exist_ok=True)
-    _git(path, "init", "-q", "-b", "main")
-    _git(path, "config", "commit.gpgsign", "false")
-    return path
-
-
-def _commit(repo: Path, message: str, env: dict[str, str] | None = None) -> subprocess.CompletedProcess:
-    return _git(repo, "commit", "-q", "-m", message, env=env, check=False)
-
-
 # ---------------------------------------------------------------- plain git hook
 
 
 @pytest.fixture()
-def plain_repo(tmp_path: Path) -> Path:
-    repo = _new_repo(tmp_path / "project")
-    hook = repo / ".git" / "hooks" / "pre-commit"
+def plain_repo(git_repo: GitRepo) -> GitRepo:
+    hook = git_repo.path / ".git" / "hooks" / "pre-commit"
     shutil.copyfile(CHECKOUT / "hooks" / "pre-commit", hook)
     hook.chmod(hook.stat().st_mode | stat.S_IXUSR | stat.S_IXGRP | stat.S_IXOTH)
-    return repo
+    return git_repo
 
 
-def test_plain_hook_accepts_true_claims(plain_repo: Path) -> None:
-    (plain_repo / "kernel.c").write_text(TRUE_C)
-    (plain_repo / "util.py").write_text(TRUE_PY)
-    _git(plain_repo, "add", "kernel.c", "util.py")
-    result = _commit(plain_repo, "true claims")
+def test_plain_hook_accepts_true_claims(plain_repo: GitRepo) -> None:
+    (plain_repo.path / "kernel.c").write_text(TRUE_C)
+    (plain_repo.path / "util.py").write_text(TRUE_PY)
+    plain_repo("add", "kernel.c", "util.py")
+    result = plain_repo.commit("true claims")
     assert result.returncode == 0, result.stdout + result.stderr
-    assert _git(plain_repo, "rev-list", "--count", "HEAD").stdout.strip() == "1"
+    assert plain_repo("rev-list", "--count", "HEAD").stdout.strip() == "1"
 
 
-def test_plain_hook_checks_the_staged_content_not_the_working_tree(plain_repo: Path) -> None:
-    kernel = plain_repo / "kernel.c"
+def test_plain_hook_checks_the_staged_content_not_the_working_tree(plain_repo: GitRepo) -> None:
+    kernel = plain_repo.path / "kernel.c"
     kernel.write_text(FALSE_C)
-    _git(plain_repo, "add", "kernel.c")
+    plain_repo("add", "kernel.c")
     kernel.write_text(TRUE_C)  # fixed only in the working tree
-    result = _commit(plain_repo, "wrong claim staged")
+    result = plain_repo.commit("wrong claim staged")
     output = result.stdout + result.stderr
     assert result.returncode != 0, output
     assert "refuted" in output and "counter-normal-form" in output and "kernel.c:2" in output
-    assert _git(plain_repo, "rev-list", "--all", "--count").stdout.strip() == "0"
+    assert plain_repo("rev-list", "--all", "--count").stdout.strip() == "0"
     # staging the fix lets the commit through
-    _git(plain_repo, "add", "kernel.c")
-    assert _commit(plain_repo, "fixed").returncode == 0
+    plain_repo("add", "kernel.c")
+    assert plain_repo.commit("fixed").returncode == 0
 
 
-def test_plain_hook_passes_a_true_staged_claim_whatever_the_working_tree(plain_repo: Path) -> None:
-    kernel = plain_repo / "kernel.c"
+def test_plain_hook_passes_a_true_staged_claim_whatever_the_working_tree(plain_repo: GitRepo) -> None:
+    kernel = plain_repo.path / "kernel.c"
     kernel.write_text(TRUE_C)
-    _git(plain_repo, "add", "kernel.c")
+    plain_repo("add", "kernel.c")
     kernel.write_text(FALSE_C)  # broken only in the working tree: not what is committed
-    result = _commit(plain_repo, "true claim staged")
+    result = plain_repo.commit("true claim staged")
     assert result.returncode == 0, result.stdout + result.stderr
 
 
-def test_plain_hook_ignores_claims_in_files_the_commit_does_not_touch(plain_repo: Path) -> None:
-    (plain_repo / "old.c").write_text(FALSE_C)
-    _git(plain_repo, "add", "old.c")
-    assert _commit(plain_repo, "bypass", env=None).returncode != 0
-    _git(plain_repo, "commit", "-q", "--no-verify", "-m", "known wrong claim, committed on purpose")
-    (plain_repo / "new.c").write_text(TRUE_C)
-    _git(plain_repo, "add", "new.c")
-    result = _commit(plain_repo, "unrelated true claim")
+def test_plain_hook_ignores_claims_in_files_the_commit_does_not_touch(plain_repo: GitRepo) -> None:
+    (plain_repo.path / "old.c").write_text(FALSE_C)
+    plain_repo("add", "old.c")
+    assert plain_repo.commit("bypass", env=None).returncode != 0
+    plain_repo("commit", "-q", "--no-verify", "-m", "known wrong claim, committed on purpose")
+    (plain_repo.path / "new.c").write_text(TRUE_C)
+    plain_repo("add", "new.c")
+    result = plain_repo.commit("unrelated true claim")
     assert result.returncode == 0, result.stdout + result.stderr
 
 
@@ -130,15 +100,16 @@ def pre_commit_home(tmp_path_factory: pytest.TempPathFactory) -> Path:
 
 
 def test_pre_commit_framework_blocks_a_false_claim_and_passes_true_ones(
-    tmp_path: Path, pre_commit_home: Path
+    git_repo: GitRepo, pre_commit_home: Path
 ) -> None:
     sha = _checkout_commit()
     if sha is None:
         pytest.skip("the checkout is not a git repository with the hook manifest committed")
     pre_commit = BIN / "pre-commit"
     assert pre_commit.exists(), "pre-commit comes with the [test] extra"
-    env = _env({"PRE_COMMIT_HOME": str(pre_commit_home), "PRE_COMMIT_COLOR": "never"})
-    repo = _new_repo(tmp_path / "project")
+    extra = {"PRE_COMMIT_HOME": str(pre_commit_home), "PRE_COMMIT_COLOR": "never"}
+    env = git_repo.env(extra)
+    repo = git_repo.path
     (repo / ".pre-commit-config.yaml").write_text(
         f"repos:\n  - repo: {CHECKOUT}\n    rev: {sha}\n    hooks:\n      - id: idealcheck\n"
     )
@@ -157,14 +128,14 @@ def test_pre_commit_framework_blocks_a_false_claim_and_passes_true_ones(
 
     (repo / "kernel.c").write_text(TRUE_C)
     (repo / "util.py").write_text(TRUE_PY)
-    _git(repo, "add", ".pre-commit-config.yaml", "kernel.c", "util.py", env=env)
-    result = _commit(repo, "true claims", env=env)
+    git_repo("add", ".pre-commit-config.yaml", "kernel.c", "util.py", env=extra)
+    result = git_repo.commit("true claims", env=extra)
     assert result.returncode == 0, result.stdout + result.stderr
 
     (repo / "blend.c").write_text(FALSE_C)
-    _git(repo, "add", "blend.c", env=env)
-    result = _commit(repo, "a false claim", env=env)
+    git_repo("add", "blend.c", env=extra)
+    result = git_repo.commit("a false claim", env=extra)
     output = result.stdout + result.stderr
     assert result.returncode != 0, output
     assert "counter-normal-form" in output and "blend.c:2" in output
-    assert _git(repo, "rev-list", "--count", "HEAD", env=env).stdout.strip() == "1"
+    assert git_repo("rev-list", "--count", "HEAD", env=extra).stdout.strip() == "1"

@@ -6,11 +6,13 @@ fact that makes it true or false named beside it.  The run must never prove a de
 from __future__ import annotations
 
 import json
-import subprocess
-import sys
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import pytest
+
+if TYPE_CHECKING:
+    from conftest import Cli
 
 ROOT = Path(__file__).resolve().parents[2]
 KERNELS = ROOT / "fixtures" / "kernels"
@@ -99,12 +101,11 @@ def claim_line(file: str, anchor: str) -> int:
 
 
 @pytest.fixture(scope="module")
-def report() -> dict:
-    command = [sys.executable, "-m", "verifier", "check", "fixtures/kernels",
-               "--config", "fixtures/kernels/pyproject.toml", "--format", "json", "--no-cache", "--timeout", "60"]
-    done = subprocess.run(command, cwd=ROOT, capture_output=True, text=True, timeout=600)
-    assert done.returncode == 1, done.stderr  # some claims are deliberately wrong
-    return json.loads(done.stdout)
+def report(cli: Cli) -> dict:
+    done = cli("check", "fixtures/kernels", "--config", "fixtures/kernels/pyproject.toml", "--format", "json",
+               "--no-cache", "--timeout", "60", cwd=ROOT, fresh_process=True)
+    assert done.code == 1, done.err  # some claims are deliberately wrong
+    return json.loads(done.out)
 
 
 def by_place(report: dict) -> dict[tuple[str, int], dict]:

@@ -10,10 +10,9 @@ witness confirmed by an evaluation with mpmath that shares no code with the tool
 from __future__ import annotations
 
 import json
-import subprocess
-import sys
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import mpmath
 import pytest
@@ -24,6 +23,9 @@ from verifier.model.claim import Claim, ExtractionContext
 from verifier.pipeline.config import load_config
 
 from mp_reference import confirm_witness, mp_eval, parse_value
+
+if TYPE_CHECKING:
+    from conftest import Cli
 
 CORPUS = Path(__file__).resolve().parents[2] / "fixtures" / "acceptance"
 REQUIRED_RATE = 0.95
@@ -43,13 +45,11 @@ class Outcome:
 
 
 @pytest.fixture(scope="module")
-def report() -> dict:
-    result = subprocess.run(
-        [sys.executable, "-m", "verifier", "check", ".", "--format", "json", "--no-cache", "--jobs", "2"],
-        cwd=CORPUS, capture_output=True, text=True, timeout=600,
-    )
-    assert result.returncode in (0, 1), result.stderr
-    return json.loads(result.stdout)
+def report(cli: Cli) -> dict:
+    # as a user runs it: a fresh interpreter with worker processes
+    result = cli("check", ".", "--format", "json", "--no-cache", "--jobs", "2", cwd=CORPUS, fresh_process=True)
+    assert result.code in (0, 1), result.err
+    return json.loads(result.out)
 
 
 @pytest.fixture(scope="module")

@@ -18,10 +18,9 @@ from __future__ import annotations
 import json
 import os
 import re
-import subprocess
-import sys
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import mpmath
 import pytest
@@ -31,6 +30,9 @@ from verifier.model.claim import Claim, ExtractionContext
 from verifier.pipeline.config import load_config
 
 from mp_reference import confirm_witness, parse_value
+
+if TYPE_CHECKING:
+    from conftest import Cli
 
 REPO = Path(__file__).resolve().parents[2]
 CORPUS = REPO / "fixtures" / "py_acceptance"
@@ -53,14 +55,12 @@ class Outcome:
 
 
 @pytest.fixture(scope="module")
-def report() -> dict:
-    result = subprocess.run(
-        [sys.executable, "-m", "verifier", "check", "fixtures/py_acceptance", "--format", "json", "--no-cache",
-         "--jobs", "2"],
-        cwd=REPO, capture_output=True, text=True, timeout=300,
-    )
-    assert result.returncode in (0, 1), result.stderr
-    return json.loads(result.stdout)
+def report(cli: Cli) -> dict:
+    # as a user runs it: a fresh interpreter with worker processes
+    result = cli("check", "fixtures/py_acceptance", "--format", "json", "--no-cache", "--jobs", "2", cwd=REPO,
+                 fresh_process=True, timeout=300)
+    assert result.code in (0, 1), result.err
+    return json.loads(result.out)
 
 
 @pytest.fixture(scope="module")

@@ -3,17 +3,15 @@ from __future__ import annotations
 
 import json
 import math
-import os
-import subprocess
-import sys
 from pathlib import Path
+
 import pytest
-from claim_exprs import cond, expr
+from exprs import cond, expr
 
 from verifier.model.accuracy import AccuracySettings
 from verifier.features.accuracy import estimate_accuracy, float_value, reference_value, ulp_error
 from verifier.model.claim import Obligation
-from verifier.cli.main import main
+from verifier.claims.language import parse_expression
 
 NAIVE_ROOT = "(-b + sqrt(b*b - 4*a*c))/(2*a)"
 CONJUGATE_ROOT = "2*c/(-b - sqrt(b*b - 4*a*c))"
@@ -107,17 +105,15 @@ ROOT = Path(__file__).resolve().parents[2]
 QUADRATIC_RANGES = ("--accuracy-range", "a=0.5:2", "--accuracy-range", "b=1e3:1e6", "--accuracy-range", "c=0.5:2")
 
 
-def _check(*args: str) -> subprocess.CompletedProcess:
-    return subprocess.run([sys.executable, "-m", "verifier", "check", "fixtures/explain/accuracy", "--no-cache", *args],
-                          cwd=ROOT, capture_output=True, text=True, timeout=120, env=dict(os.environ))
+CHECK = ("check", "fixtures/explain/accuracy", "--no-cache")
 
 
-def test_check_accuracy_ranks_the_naive_root_as_less_accurate():
+def test_check_accuracy_ranks_the_naive_root_as_less_accurate(cli):
     # Goldberg (ACM Computing Surveys 23(1), 1991, section 1.4): the function body is the naive root (the
     # claim's left side), the claim is the conjugate form (its right side)
-    result = _check("--accuracy", "--accuracy-samples", "200", *QUADRATIC_RANGES)
-    assert result.returncode == 0, result.stdout + result.stderr
-    out = result.stdout
+    result = cli(*CHECK, "--accuracy", "--accuracy-samples", "200", *QUADRATIC_RANGES, cwd=ROOT, fresh_process=True)
+    assert result.code == 0, result.out + result.err
+    out = result.out
     assert "proved" in out
     assert "the claim is more accurate on these samples" in out
     assert "sampled estimate" in out and "not a bound" in out and "numerical review" in out
@@ -125,48 +121,67 @@ def test_check_accuracy_ranks_the_naive_root_as_less_accurate():
     assert "ulp" in left_line and "b = " in left_line
 
 
-def _check_here(capsys, monkeypatch, *args: str) -> tuple[int, str, str]:
-    monkeypatch.chdir(ROOT)
-    code = main(["check", "fixtures/explain/accuracy", "--no-cache", "--in-process", *args])
-    captured = capsys.readouterr()
-    return code, captured.out, captured.err
-
-
-def test_check_accuracy_keeps_machine_output_clean(capsys, monkeypatch):
-    code, out, err = _check_here(capsys, monkeypatch, "--accuracy", "--accuracy-samples", "20", "--format", "json",
-                                 *QUADRATIC_RANGES)
+def test_check_accuracy_keeps_machine_output_clean(cli):
+    code, out, err = cli(*CHECK, "--in-process", "--accuracy", "--accuracy-samples", "20", "--format", "json",
+                         *QUADRATIC_RANGES, cwd=ROOT)
     assert code == 0, err
     data = json.loads(out)
     assert data["summary"]["proved"] == 1
     assert "more accurate" in err
 
 
-def test_accuracy_options_are_validated(capsys, monkeypatch):
+def test_accuracy_options_are_validated(cli):
     for bad in (("--accuracy-range", "5:1"), ("--accuracy-range", "x=a:b"), ("--accuracy-samples", "0")):
-        with pytest.raises(SystemExit) as stop:
-            _check_here(capsys, monkeypatch, "--accuracy", *bad)
-        assert stop.value.code == 2, bad
-        assert bad[0] in capsys.readouterr().err
+        run = cli(*CHECK, "--in-process", "--accuracy", *bad, cwd=ROOT)
+        assert run.code == 2, bad
+        assert bad[0] in run.err
 
 
-def test_accuracy_settings_from_the_config(tmp_path, capsys, monkeypatch):
+def test_accuracy_settings_from_the_config(tmp_path, monkeypatch, cli):
     (tmp_path / "pyproject.toml").write_text(
         "[tool.idealcheck.accuracy]\nsamples = 30\nseed = 4\n"
         "ranges = { a = [0.5, 2.0], b = [1e3, 1e6], c = [0.5, 2.0] }\n")
     (tmp_path / "roots.py").write_text((ROOT / "fixtures/explain/accuracy/quadratic.py").read_text())
     monkeypatch.chdir(tmp_path)
-    assert main(["check", "roots.py", "--no-cache", "--in-process", "--accuracy"]) == 0
-    out = capsys.readouterr().out
+    run = cli("check", "roots.py", "--no-cache", "--in-process", "--accuracy")
+    assert run.code == 0
+    out = run.out
     assert "30 sampled points" in out
     assert "the claim is more accurate on these samples" in out
     # the command line overrides the config
-    assert main(["check", "roots.py", "--no-cache", "--in-process", "--accuracy", "--accuracy-samples", "7"]) == 0
-    assert "7 sampled points" in capsys.readouterr().out
+    run = cli("check", "roots.py", "--no-cache", "--in-process", "--accuracy", "--accuracy-samples", "7")
+    assert run.code == 0
+    assert "7 sampled points" in run.out
 
 
 @pytest.mark.parametrize("table", ["samples = 0", "range = [2, 1]", "ranges = { b = [1] }", "colour = 1", "seed = 1.5"])
-def test_bad_accuracy_config_is_a_usage_error(tmp_path, capsys, monkeypatch, table):
+def test_bad_accuracy_config_is_a_usage_error(tmp_path, monkeypatch, table, cli):
     (tmp_path / "pyproject.toml").write_text(f"[tool.idealcheck.accuracy]\n{table}\n")
     monkeypatch.chdir(tmp_path)
-    assert main(["check", ".", "--no-cache", "--in-process"]) == 2
-    assert "tool.idealcheck.accuracy" in capsys.readouterr().err
+    run = cli("check", ".", "--no-cache", "--in-process")
+    assert run.code == 2
+    assert "tool.idealcheck.accuracy" in run.err
+
+
+def test_check_accuracy_measures_a_claim_with_pi(tmp_path, cli):
+    # sin(x + pi/2) == cos(x) (the shift formula, common practice): proved with pi as an unknown constant,
+    # and measured in double with pi as math.pi (the double evaluator once refused pi: "not measured")
+    (tmp_path / "angles.txt").write_text("# idealcheck: sin(x + pi/2) == cos(x)\n")
+    code, out, _ = cli("check", "angles.txt", "--no-cache", "--in-process", "--accuracy", "--accuracy-samples", "25",
+                       cwd=tmp_path)
+    assert code == 0
+    assert "proved: sin(x + pi/2) == cos(x)" in out
+    assert "not measured" not in out
+    assert "25 sampled points" in out
+    left_line = next(line for line in out.splitlines() if line.strip().startswith("left"))
+    assert "ulp" in left_line and "x = " in left_line
+
+
+def test_estimate_with_pi_uses_its_double_value():
+    ob = Obligation(parse_expression("cos(pi - x)"), parse_expression("-cos(x)"))
+    estimate = estimate_accuracy(ob, AccuracySettings(samples=30, seed=3))
+    assert estimate.problem is None
+    assert estimate.samples == 30
+    # both sides are a cosine (and a subtraction): within a few ulps except near a zero of cos, where the
+    # rounding of pi - x is magnified; the median stays small
+    assert estimate.right.median_ulps < 2

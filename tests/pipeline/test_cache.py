@@ -177,9 +177,14 @@ def test_the_key_covers_dependencies_version_and_conditions_but_not_the_location
 
 def test_results_cut_short_by_a_limit_are_not_stored(tmp_path: Path, decided) -> None:
     cache = _cache(tmp_path)
-    undecided = replace(decided[TRUE.text], verdict="inconclusive", reason="time limit of 1 s exceeded")
-    cache.store(TRUE, undecided)
-    assert not cache.entry_path(TRUE).exists() and not cache.entry_path(TRUE, inconclusive=True).exists()
+    for limit in ("time", "memory"):
+        undecided = replace(decided[TRUE.text], verdict="inconclusive", reason="stopped", limit=limit)
+        cache.store(TRUE, undecided)
+        assert not cache.entry_path(TRUE).exists() and not cache.entry_path(TRUE, inconclusive=True).exists()
+    # the structured field decides, not the words of the reason
+    worded = replace(decided[TRUE.text], verdict="inconclusive", reason="no time limit was hit")
+    cache.store(TRUE, worded)
+    assert cache.entry_path(TRUE, inconclusive=True).exists()
 
 
 # x = 5 under x**2 + 1 = 0: the condition has no real point, so there is nothing to refute or prove

@@ -13,6 +13,7 @@ import pytest
 from verifier.algebra.decide import Limits, decide
 from verifier.pipeline.cache import ResultCache
 from verifier.claims.language import parse_claim_text
+from verifier.model.certificate import RealSquareCertificate, ShiftContradictionCertificate
 from verifier.model.claim import Claim, Location, Obligation
 
 
@@ -79,14 +80,14 @@ REAL_SQUARE = _claim(5, "x == 0 given x**2 + y**2 == 0")
 
 def test_a_real_square_proof_survives_the_round_trip(tmp_path: Path) -> None:
     verdict = decide(REAL_SQUARE, Limits(timeout=20))
-    assert verdict.verdict == "proved" and verdict.obligations[0].certificate.real_square is not None
+    assert verdict.verdict == "proved" and isinstance(verdict.obligations[0].certificate, RealSquareCertificate)
     cache = _cache(tmp_path)
     cache.store(REAL_SQUARE, verdict)
     loaded = cache.load(REAL_SQUARE)
     assert loaded is not None and loaded.verdict == "proved"
     # a tampered remainder (now negative) is rejected
     document = json.loads(cache.entry_path(REAL_SQUARE).read_text(encoding="utf-8"))
-    remainder = document["obligations"][0]["certificate"]["real_square"]["remainder"]
+    remainder = document["obligations"][0]["certificate"]["remainder"]
     remainder[0][0] = "-" + remainder[0][0]
     cache.entry_path(REAL_SQUARE).write_text(json.dumps(document), encoding="utf-8")
     loaded = cache.load(REAL_SQUARE)
@@ -98,13 +99,13 @@ SHIFTED = _claim(6, "y == 5 given r > 1, r*r <= 1")
 
 def test_a_shifted_contradiction_survives_the_round_trip(tmp_path: Path) -> None:
     verdict = decide(SHIFTED, Limits(timeout=20))
-    assert verdict.verdict == "proved" and verdict.obligations[0].certificate.shift_contradiction is not None
+    assert verdict.verdict == "proved" and isinstance(verdict.obligations[0].certificate, ShiftContradictionCertificate)
     cache = _cache(tmp_path)
     cache.store(SHIFTED, verdict)
     loaded = cache.load(SHIFTED)
     assert loaded is not None and loaded.verdict == "proved"
     document = json.loads(cache.entry_path(SHIFTED).read_text(encoding="utf-8"))
-    document["obligations"][0]["certificate"]["shift_contradiction"]["bound_strict"] = False
+    document["obligations"][0]["certificate"]["bound_strict"] = False
     cache.entry_path(SHIFTED).write_text(json.dumps(document), encoding="utf-8")
     loaded = cache.load(SHIFTED)
     assert loaded is None or loaded.verdict != "proved"

@@ -7,12 +7,15 @@ commands used are those of the git documentation (`git diff --cached`, `git ls-f
 from __future__ import annotations
 
 import shutil
-import subprocess
 from pathlib import Path
+from typing import TYPE_CHECKING
 
 import pytest
 
 from verifier.pipeline.discover import DiscoveryError, changed_since, collect, matches_glob, staged_paths
+
+if TYPE_CHECKING:
+    from conftest import GitRepo
 
 
 def write(root: Path, relative: str, content: str | bytes = "// idealcheck: a == a\n") -> Path:
@@ -116,7 +119,7 @@ def test_include_and_exclude(tmp_path: Path) -> None:
     assert paths(collect(["README.md", "src/a.c"], cwd=tmp_path, exclude=["*.md"])) == ["src/a.c"]
 
 
-def test_only_restricts_the_files(tmp_path: Path) -> None:
+def test_only_restricts_the_files(tmp_path: Path, git_repo: GitRepo) -> None:
     for name in ["a.c", "b.c", "sub/c.c"]:
         write(tmp_path, name)
     assert paths(collect(["."], cwd=tmp_path, only={"b.c", "./sub/c.c"})) == ["b.c", "sub/c.c"]
@@ -127,33 +130,25 @@ def test_only_restricts_the_files(tmp_path: Path) -> None:
 needs_git = pytest.mark.skipif(shutil.which("git") is None, reason="git is not installed")
 
 
-def git(cwd: Path, *args: str) -> str:
-    result = subprocess.run(
-        ["git", "-c", "user.name=test", "-c", "user.email=test@example.invalid", "-c", "commit.gpgsign=false", *args],
-        cwd=cwd, capture_output=True, text=True, check=True,
-    )
-    return result.stdout
-
-
 @pytest.fixture
-def repo(tmp_path: Path) -> Path:
-    git(tmp_path, "init", "-q")
+def repo(git_repo: GitRepo) -> Path:
+    tmp_path = git_repo.path
     write(tmp_path, "lib/a.c", "// idealcheck: a == a\n")
     write(tmp_path, "lib/b.c", "// idealcheck: b == b\n")
     write(tmp_path, ".gitignore", "ignored.c\n")
-    git(tmp_path, "add", ".")
-    git(tmp_path, "commit", "-q", "-m", "first")
+    git_repo("add", ".")
+    git_repo("commit", "-q", "-m", "first")
     return tmp_path
 
 
 @needs_git
-def test_staged_texts_come_from_the_index(repo: Path) -> None:
+def test_staged_texts_come_from_the_index(repo: Path, git_repo: GitRepo) -> None:
     write(repo, "lib/a.c", "// idealcheck: staged == staged\n")
-    git(repo, "add", "lib/a.c")
+    git_repo("add", "lib/a.c")
     write(repo, "lib/a.c", "// idealcheck: worktree == worktree\n")  # unstaged edit on top
     write(repo, "lib/new.c", "// idealcheck: untracked == untracked\n")  # not in the index
     write(repo, "lib/bin.dat", b"\x00\x01")
-    git(repo, "add", "lib/bin.dat")
+    git_repo("add", "lib/bin.dat")
     discovery = collect(["lib"], cwd=repo, source="staged")
     texts = {f.path: f.text for f in discovery.files}
     assert texts == {"lib/a.c": "// idealcheck: staged == staged\n", "lib/b.c": "// idealcheck: b == b\n"}
@@ -164,23 +159,23 @@ def test_staged_texts_come_from_the_index(repo: Path) -> None:
 
 
 @needs_git
-def test_staged_in_a_repository_without_commits(tmp_path: Path) -> None:
-    git(tmp_path, "init", "-q")
+def test_staged_in_a_repository_without_commits(git_repo: GitRepo) -> None:
+    tmp_path = git_repo.path
     write(tmp_path, "k.c")
-    git(tmp_path, "add", "k.c")
+    git_repo("add", "k.c")
     assert staged_paths(tmp_path) == {"k.c"}
     assert paths(collect(["."], cwd=tmp_path, source="staged")) == ["k.c"]
 
 
 @needs_git
-def test_changed_since_includes_worktree_changes_and_untracked_files(repo: Path) -> None:
+def test_changed_since_includes_worktree_changes_and_untracked_files(repo: Path, git_repo: GitRepo) -> None:
     assert changed_since("HEAD", repo) == set()
     write(repo, "lib/b.c", "// idealcheck: b == 2*b - b\n")
     write(repo, "lib/new.c")
     write(repo, "ignored.c")
     assert changed_since("HEAD", repo) == {"lib/b.c", "lib/new.c"}
-    git(repo, "add", ".")
-    git(repo, "commit", "-q", "-m", "second")
+    git_repo("add", ".")
+    git_repo("commit", "-q", "-m", "second")
     assert changed_since("HEAD", repo) == set()
     assert changed_since("HEAD~1", repo / "lib") == {"b.c", "new.c"}
 

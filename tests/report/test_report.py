@@ -39,7 +39,7 @@ def test_text_orders_by_path_then_line() -> None:
 
 def test_json_has_the_documented_keys_in_order() -> None:
     document = json.loads(render(every_kind(), "json", version="9.9"))
-    assert list(document) == ["tool", "claims", "summary"]
+    assert list(document) == ["tool", "claims", "summary", "skipped"]
     assert document["tool"] == {"name": "idealcheck", "version": "9.9"}
     keys = ["id", "path", "line", "column", "kind", "text", "verdict", "method", "reason",
             "counter_normal_form", "witness", "assumed", "seconds"]

@@ -6,11 +6,12 @@ For each obligation ``left == right`` under its conditions:
 3. f in the ideal of G -> proved, with cofactors c such that f = sum c_i g_i (denominators cleared
    first, then a Groebner basis of G; method: expansion when no generator is needed, saturation when an
    inverse variable is, else ideal); f**k in it for a small k -> proved (radical);
-4. real reasoning (``sign.py``, method sign): contradictory sign hypotheses (vacuous), a real sum of
-   squares, the conjugate argument for principal roots;
+4. real reasoning (``sign_search.py``, method sign): contradictory sign hypotheses (vacuous), a real sum
+   of squares, the conjugate argument for principal roots;
 5. otherwise the counter-normal-form is shown, and the claim is refuted only if a real witness is found.
-Every certificate is re-checked without a Groebner basis (``sign.certificate_is_valid``) before
-``proved`` is returned; if that check fails the obligation is inconclusive, never proved.
+This module and the finders are the untrusted search.  ``proved`` is returned only after the trusted
+kernel (``kernel/``) has re-checked the certificate by expansion and tied it to this obligation's
+translation (``kernel.tie.certificate_fits``); if that fails the obligation is inconclusive, never proved.
 """
 from __future__ import annotations
 
@@ -26,18 +27,18 @@ from verifier.algebra.groebner import (
     membership_cofactors,
     reduce,
 )
-from verifier.algebra.kernel.certificate import make_certificate, poly_to_data
-from verifier.algebra.sign import (
-    certificate_is_valid,
+from verifier.algebra.facts import claim_facts
+from verifier.algebra.kernel.polynomial import poly_to_data
+from verifier.algebra.kernel.tie import certificate_fits
+from verifier.algebra.sign_search import (
     find_real_square,
     find_shift_contradiction,
     find_sign_contradiction,
     find_sign_proof,
-    nonnegative_symbols,
 )
 from verifier.algebra.translate import Translation, TranslationError, translate
 from verifier.algebra.witness import differs_mod_p, find_witness
-from verifier.model.certificate import Certificate
+from verifier.model.certificate import Certificate, IdealCertificate
 from verifier.model.claim import Claim, Obligation
 from verifier.model.verdict import Method, ObligationResult, Verdict
 
@@ -259,7 +260,7 @@ def _proved(tr: Translation, label: str, method: Method, power: int, cofactors: 
 
 def _accept(tr: Translation, label: str, method: Method, certificate: Certificate, reason: str,
             vacuous: bool = False) -> ObligationResult:
-    if not certificate_is_valid(certificate):
+    if not certificate_fits(certificate, claim_facts(tr)):
         # never report a proof that does not re-check; this would be a bug in the engine
         return ObligationResult(label, "inconclusive", None,
                                 "internal: the proof certificate failed its independent re-check",
@@ -267,13 +268,14 @@ def _accept(tr: Translation, label: str, method: Method, certificate: Certificat
     return ObligationResult(label, "proved", method, reason, None, None, tr.assumed, certificate, vacuous)
 
 
-def build_certificate(tr: Translation, power: int, cofactors: Sequence) -> Certificate:
-    return make_certificate(
+def build_certificate(tr: Translation, power: int, cofactors: Sequence) -> IdealCertificate:
+    """The certificate of ``tr.difference ** power == sum(cofactors[i] * generators[i])``."""
+    return IdealCertificate(
         tuple(str(s) for s in tr.ring.symbols),
-        tr.difference,
-        power,
-        tuple(g.poly for g in tr.generators),
-        tuple(cofactors),
+        poly_to_data(tr.difference),
+        int(power),
+        tuple(poly_to_data(g.poly) for g in tr.generators),
+        tuple(poly_to_data(c) for c in cofactors),
     )
 
 
@@ -285,8 +287,7 @@ def certificate_matches(claim: Claim, results: Sequence[ObligationResult]) -> bo
     """True when every result is a proof whose certificate belongs to this claim and re-checks.
 
     Used to accept a proof read back from the cache: the claim is translated again (cheap, no Groebner
-    basis), the certificate's target and generators must be exactly this translation's, and the identity
-    is re-checked by plain expansion.
+    basis) and the kernel checks the certificate against the facts of that translation.
     """
     if claim.problem is not None or len(results) != len(claim.obligations) or not results:
         return False
@@ -298,35 +299,6 @@ def certificate_matches(claim: Claim, results: Sequence[ObligationResult]) -> bo
             tr = translate(obligation)
         except (TranslationError, RecursionError):
             return False
-        if cert.symbols != tuple(str(s) for s in tr.ring.symbols):
-            return False
-        if cert.target != poly_to_data(tr.difference):
-            return False
-        if cert.generators != tuple(poly_to_data(g.poly) for g in tr.generators):
-            return False
-        known_signs = {poly_to_data(p) for p, _strict in tr.signs}
-        if cert.real_square is not None and not (
-                set(cert.real_square.nonnegative_symbols) <= set(nonnegative_symbols(tr))):
-            return False
-        if cert.sign is not None:
-            if not set(cert.sign.nonnegative_symbols) <= set(nonnegative_symbols(tr)):
-                return False
-            if any(h not in known_signs for h, _lam in cert.sign.hypotheses):
-                return False
-        if cert.shift_contradiction is not None:
-            shifted = cert.shift_contradiction
-            known = {(poly_to_data(p), strict) for p, strict in tr.signs}
-            if ((shifted.bound, shifted.bound_strict) not in known
-                    or (shifted.other, shifted.other_strict) not in known
-                    or not set(shifted.nonnegative_symbols) <= set(nonnegative_symbols(tr))):
-                return False
-        if cert.contradiction is not None:
-            known = {(poly_to_data(p), strict) for p, strict in tr.signs}
-            c = cert.contradiction
-            if (c.first, c.first_strict) not in known:
-                return False
-            if c.second and (c.second, c.second_strict) not in known:
-                return False
-        if not certificate_is_valid(cert):
+        if not certificate_fits(cert, claim_facts(tr)):
             return False
     return True

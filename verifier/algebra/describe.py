@@ -14,10 +14,12 @@ from __future__ import annotations
 from fractions import Fraction
 from typing import Callable, Sequence
 
+from sympy import QQ
 from sympy.polys.rings import PolyElement
 
 from verifier.algebra.groebner import reduce
 from verifier.algebra.translate import Translation, format_poly
+from verifier.model.numbers import fraction_text as _show
 
 MAX_DESCRIBED_TERMS = 4  # a larger difference is left to the counter-normal-form itself
 
@@ -29,8 +31,6 @@ def _fraction(coeff) -> Fraction:
 
 
 def _term(ring, monom, value: Fraction) -> PolyElement:
-    from sympy import QQ
-
     return ring({monom: QQ(value.numerator, value.denominator)})
 
 
@@ -69,10 +69,6 @@ def describe_difference(
             else:
                 phrases.append(f"the coefficient of {unit} is {_show(left)} on the left and {_show(right)} on the right")
     return "; ".join(phrases)
-
-
-def _show(value: Fraction) -> str:
-    return str(value.numerator) if value.denominator == 1 else f"{value.numerator}/{value.denominator}"
 
 
 def normal_forms(

@@ -1,20 +1,39 @@
-"""Evaluation of claim expression trees at a point: exactly in rationals, or with mpmath.
+"""Evaluation of claim expression trees at a point: exactly in rationals, with mpmath, or in IEEE double.
 
-Trees may share sub-trees (symbolic execution builds DAGs) and may be deep (unrolled loops), so
-evaluation is iterative, in post-order, and evaluates each distinct node object once.
+Each evaluator is a back end of the one fold over expression trees (verifier/model/expr.py): it says
+what the arithmetic operations and powers do, and takes each function's meaning from the function table
+(verifier/model/functions.py).  The fold is iterative and evaluates each distinct node object once, so
+deep trees and shared sub-trees cost no recursion and no repeated work.  (Evaluation modulo a prime is
+the fourth back end, in verifier/algebra/modular.py.)
 Domain rules follow the translation: every denominator is non-zero, every radicand is >= 0 (principal
 square root), every logarithm's argument is > 0, and tan needs cos != 0.
 """
 from __future__ import annotations
 
-import math
 from fractions import Fraction
-from typing import Callable, Mapping, Union
+from typing import Any, Mapping, Sequence, Union
 
 import mpmath
 from mpmath import mp, mpf
 
-from verifier.model.expr import PI, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
+from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold, is_constant
+from verifier.model.expr import has_opaque, variables  # noqa: F401  (re-exported for the evaluators' callers)
+from verifier.model.functions import (
+    CONSTANTS,
+    FUNCTIONS,
+    DomainError,
+    HighPrecision,
+    NotEvaluable,
+    NotRational,
+    exact_sqrt,
+    numeric_sqrt,
+    rational_sqrt,
+)
+
+__all__ = [
+    "DomainError", "NotEvaluable", "exact_value", "float_value", "has_opaque", "numeric_value", "rational_sqrt",
+    "tiny", "to_mpf", "variables",
+]
 
 Real = Union[mpf, Fraction]
 
@@ -24,151 +43,76 @@ _EXACT_BIT_LIMIT = 12_000
 _MAGNITUDE_LIMIT = 1_000_000
 
 
-class DomainError(ArithmeticError):
-    """The expression is undefined at the point (division by zero, negative radicand, ...)."""
+def _arithmetic(op: str, a: Any, b: Any, divisor_is_zero: bool) -> Any:
+    """``a op b`` for the four operators (the same in every field); ``divisor_is_zero`` as the back end sees it."""
+    if op == "+":
+        return a + b
+    if op == "-":
+        return a - b
+    if op == "*":
+        return a * b
+    if op == "/":
+        if divisor_is_zero:
+            raise DomainError("division by zero")
+        return a / b
+    raise ValueError(f"unknown operator {op!r}")
 
 
-class NotEvaluable(ValueError):
-    """The expression contains a node that has no value (an opaque call)."""
-
-
-# ---------------------------------------------------------------- structure
-
-
-def children(expr: Expr) -> tuple[Expr, ...]:
-    if isinstance(expr, BinOp):
-        return (expr.left, expr.right)
-    if isinstance(expr, Neg):
-        return (expr.operand,)
-    if isinstance(expr, Pow):
-        return (expr.base,)
-    if isinstance(expr, (Call, Opaque)):
-        return expr.args
-    return ()
-
-
-def postorder(expr: Expr) -> list[Expr]:
-    """Distinct node objects (by identity) in post-order: children before parents."""
-    order: list[Expr] = []
-    seen: set[int] = set()
-    stack: list[tuple[Expr, bool]] = [(expr, False)]
-    while stack:
-        node, expanded = stack.pop()
-        if expanded:
-            order.append(node)
-            continue
-        if id(node) in seen:
-            continue
-        seen.add(id(node))
-        stack.append((node, True))
-        for child in reversed(children(node)):
-            if id(child) not in seen:
-                stack.append((child, False))
-    return order
-
-
-def variables(expr: Expr) -> set[str]:
-    return {node.name for node in postorder(expr) if isinstance(node, Var)}
-
-
-def has_opaque(expr: Expr) -> bool:
-    """True when the expression has a value the tool cannot compute (pi is computable)."""
-    return any(isinstance(node, Opaque) and node != PI for node in postorder(expr))
+def _opaque_error(node: Opaque) -> NotEvaluable:
+    return NotEvaluable(f"opaque call {node.name}")
 
 
 # ---------------------------------------------------------------- exact evaluation
 
 
-class _NotRational(Exception):
-    pass
+class _ExactValues:
+    """Rationals; NotRational as soon as a step is irrational or its numbers grow beyond the limit."""
 
+    def __init__(self, point: Mapping[str, Fraction]) -> None:
+        self.point = point
 
-def rational_sqrt(value: Fraction) -> Fraction | None:
-    """The rational square root of a non-negative rational, or None when it is irrational."""
-    if value < 0:
-        raise DomainError(f"square root of the negative number {value}")
-    p, q = value.numerator, value.denominator
-    rp, rq = math.isqrt(p), math.isqrt(q)
-    if rp * rp == p and rq * rq == q:
-        return Fraction(rp, rq)
-    return None
+    @staticmethod
+    def _bounded(value: Fraction) -> Fraction:
+        if max(value.numerator.bit_length(), value.denominator.bit_length()) > _EXACT_BIT_LIMIT:
+            raise NotRational()
+        return value
 
+    def num(self, node: Num) -> Fraction:
+        return self._bounded(Fraction(node.value))
 
-def _exact_power(base: Fraction, k: int) -> Fraction:
-    if k < 0 and base == 0:
-        raise DomainError("division by zero: a negative power of 0")
-    bits = max(base.numerator.bit_length(), base.denominator.bit_length())
-    if bits * abs(k) > _EXACT_BIT_LIMIT:
-        raise _NotRational()
-    return base**k
+    def var(self, node: Var) -> Fraction:
+        return self._bounded(Fraction(self.point[node.name]))
 
+    def neg(self, node: Neg, operand: Fraction) -> Fraction:
+        return -operand
 
-def _exact_node(node: Expr, value: Callable[[Expr], Fraction], point: Mapping[str, Fraction]) -> Fraction:
-    if isinstance(node, Num):
-        return Fraction(node.value)
-    if isinstance(node, Var):
-        return Fraction(point[node.name])
-    if isinstance(node, Neg):
-        return -value(node.operand)
-    if isinstance(node, BinOp):
-        a, b = value(node.left), value(node.right)
-        if node.op == "+":
-            return a + b
-        if node.op == "-":
-            return a - b
-        if node.op == "*":
-            return a * b
-        if node.op == "/":
-            if b == 0:
-                raise DomainError("division by zero")
-            return a / b
-        raise ValueError(f"unknown operator {node.op!r}")
-    if isinstance(node, Pow):
-        base = value(node.base)
+    def binop(self, node: BinOp, left: Fraction, right: Fraction) -> Fraction:
+        return self._bounded(_arithmetic(node.op, left, right, right == 0))
+
+    def pow(self, node: Pow, base: Fraction) -> Fraction:
         exponent = Fraction(node.exponent)
         if exponent.denominator == 2:
-            root = rational_sqrt(base)
-            if root is None:
-                raise _NotRational()
-            base = root
+            base = exact_sqrt(base)
         elif exponent.denominator != 1:
             raise ValueError(f"unsupported exponent {exponent}")
-        return _exact_power(base, exponent.numerator)
-    if isinstance(node, Call):
-        args = [value(a) for a in node.args]
-        f = node.function
-        if f == "sqrt":
-            root = rational_sqrt(args[0])
-            if root is None:
-                raise _NotRational()
-            return root
-        if f == "hypot":
-            root = rational_sqrt(args[0] ** 2 + args[1] ** 2)
-            if root is None:
-                raise _NotRational()
-            return root
-        if f == "fma":
-            return args[0] * args[1] + args[2]
-        if f == "log":
-            if args[0] <= 0:
-                raise DomainError(f"logarithm of the non-positive number {args[0]}")
-            if args[0] == 1:
-                return Fraction(0)
-            raise _NotRational()
-        if f in ("sin", "tan"):
-            if args[0] == 0:
-                return Fraction(0)
-            raise _NotRational()
-        if f in ("cos", "exp"):
-            if args[0] == 0:
-                return Fraction(1)
-            raise _NotRational()
-        raise ValueError(f"unknown function {f!r}")
-    if node == PI:
-        raise _NotRational()
-    if isinstance(node, Opaque):
-        raise NotEvaluable(f"opaque call {node.name}")
-    raise ValueError(f"unknown expression node {type(node).__name__}")
+        k = exponent.numerator
+        if k < 0 and base == 0:
+            raise DomainError("division by zero: a negative power of 0")
+        bits = max(base.numerator.bit_length(), base.denominator.bit_length())
+        if bits * abs(k) > _EXACT_BIT_LIMIT:
+            raise NotRational()
+        return self._bounded(base**k)
+
+    def call(self, node: Call, args: Sequence[Fraction]) -> Fraction:
+        entry = FUNCTIONS.get(node.function)
+        if entry is None:
+            raise ValueError(f"unknown function {node.function!r}")
+        return self._bounded(entry.exact(args))
+
+    def opaque(self, node: Opaque, args: Sequence[Fraction]) -> Fraction:
+        if is_constant(node):
+            return self._bounded(CONSTANTS[node.name].exact(()))
+        raise _opaque_error(node)
 
 
 def exact_value(expr: Expr, values: Mapping[str, Fraction]) -> Fraction | None:
@@ -177,20 +121,10 @@ def exact_value(expr: Expr, values: Mapping[str, Fraction]) -> Fraction | None:
     Raises DomainError where the expression is undefined, NotEvaluable for opaque calls and KeyError
     for a variable without a value.
     """
-    results: dict[int, Fraction] = {}
-
-    def value(node: Expr) -> Fraction:
-        return results[id(node)]
-
     try:
-        for node in postorder(expr):
-            result = _exact_node(node, value, values)
-            if max(result.numerator.bit_length(), result.denominator.bit_length()) > _EXACT_BIT_LIMIT:
-                raise _NotRational()
-            results[id(node)] = result
-    except _NotRational:
+        return fold(expr, _ExactValues(values))
+    except NotRational:
         return None
-    return results[id(expr)]
 
 
 # ---------------------------------------------------------------- numeric evaluation
@@ -208,88 +142,58 @@ def tiny(prec_digits: int) -> mpf:
     return mpf(10) ** (-int(prec_digits * 0.8))
 
 
-def _check_finite(x: mpf) -> mpf:
-    if not mpmath.isfinite(x) or (x != 0 and mpmath.mag(x) > _MAGNITUDE_LIMIT):
-        raise DomainError("overflow")
-    return x
+class _NumericValues:
+    """mpmath at the current precision; every value must stay finite and below 2**_MAGNITUDE_LIMIT."""
 
+    def __init__(self, point: Mapping[str, Real], at: HighPrecision) -> None:
+        self.point = point
+        self.at = at
 
-def _numeric_sqrt(x: mpf, eps: mpf) -> mpf:
-    if x < 0:
-        if x < -eps or eps == 0:
-            raise DomainError("square root of a negative number")
-        return mpf(0)
-    return mpmath.sqrt(x)
+    @staticmethod
+    def _finite(x: mpf) -> mpf:
+        if not mpmath.isfinite(x) or (x != 0 and mpmath.mag(x) > _MAGNITUDE_LIMIT):
+            raise DomainError("overflow")
+        return x
 
+    def num(self, node: Num) -> mpf:
+        return self._finite(to_mpf(Fraction(node.value)))
 
-def _numeric_node(node: Expr, value: Callable[[Expr], mpf], point: Mapping[str, Real], eps: mpf,
-                  radicand_eps: mpf) -> mpf:
-    if isinstance(node, Num):
-        return to_mpf(Fraction(node.value))
-    if isinstance(node, Var):
-        return to_mpf(point[node.name])
-    if isinstance(node, Neg):
-        return -value(node.operand)
-    if isinstance(node, BinOp):
-        a, b = value(node.left), value(node.right)
-        if node.op == "+":
-            return a + b
-        if node.op == "-":
-            return a - b
-        if node.op == "*":
-            return a * b
-        if node.op == "/":
-            if abs(b) <= eps:
-                raise DomainError("division by zero (or by a number indistinguishable from it)")
-            return a / b
-        raise ValueError(f"unknown operator {node.op!r}")
-    if isinstance(node, Pow):
-        base = value(node.base)
+    def var(self, node: Var) -> mpf:
+        return self._finite(to_mpf(self.point[node.name]))
+
+    def neg(self, node: Neg, operand: mpf) -> mpf:
+        return self._finite(-operand)
+
+    def binop(self, node: BinOp, left: mpf, right: mpf) -> mpf:
+        if node.op == "/" and abs(right) <= self.at.eps:
+            raise DomainError("division by zero (or by a number indistinguishable from it)")
+        return self._finite(_arithmetic(node.op, left, right, False))
+
+    def pow(self, node: Pow, base: mpf) -> mpf:
         exponent = Fraction(node.exponent)
         if exponent.denominator == 2:
-            base = _numeric_sqrt(base, radicand_eps)
+            base = numeric_sqrt(base, self.at.radicand_eps)
         elif exponent.denominator != 1:
             raise ValueError(f"unsupported exponent {exponent}")
         k = exponent.numerator
-        if k < 0 and abs(base) <= eps:
+        if k < 0 and abs(base) <= self.at.eps:
             raise DomainError("division by zero: a negative power of 0")
         if k == 0:
             return mpf(1)
         if base != 0 and abs(k) * abs(mpmath.mag(base)) > _MAGNITUDE_LIMIT:
             raise DomainError("overflow")
-        return base**k
-    if isinstance(node, Call):
-        args = [value(a) for a in node.args]
-        f = node.function
-        if f == "sqrt":
-            return _numeric_sqrt(args[0], radicand_eps)
-        if f == "hypot":
-            return mpmath.sqrt(args[0] ** 2 + args[1] ** 2)
-        if f == "fma":
-            return args[0] * args[1] + args[2]
-        if f == "sin":
-            return mpmath.sin(args[0])
-        if f == "cos":
-            return mpmath.cos(args[0])
-        if f == "tan":
-            c = mpmath.cos(args[0])
-            if abs(c) <= eps:
-                raise DomainError("tan where cos is 0")
-            return mpmath.sin(args[0]) / c
-        if f == "exp":
-            if args[0] > _MAGNITUDE_LIMIT / 2:
-                raise DomainError("overflow in exp")
-            return mpmath.exp(args[0])
-        if f == "log":
-            if args[0] <= eps:
-                raise DomainError("logarithm of a non-positive number")
-            return mpmath.log(args[0])
-        raise ValueError(f"unknown function {f!r}")
-    if node == PI:
-        return +mpmath.pi
-    if isinstance(node, Opaque):
-        raise NotEvaluable(f"opaque call {node.name}")
-    raise ValueError(f"unknown expression node {type(node).__name__}")
+        return self._finite(base**k)
+
+    def call(self, node: Call, args: Sequence[mpf]) -> mpf:
+        entry = FUNCTIONS.get(node.function)
+        if entry is None:
+            raise ValueError(f"unknown function {node.function!r}")
+        return self._finite(entry.high_precision(args, self.at))
+
+    def opaque(self, node: Opaque, args: Sequence[mpf]) -> mpf:
+        if is_constant(node):
+            return self._finite(CONSTANTS[node.name].high_precision((), self.at))
+        raise _opaque_error(node)
 
 
 def numeric_value(expr: Expr, values: Mapping[str, Real], prec_digits: int, *,
@@ -303,12 +207,62 @@ def numeric_value(expr: Expr, values: Mapping[str, Real], prec_digits: int, *,
     """
     with mp.workdps(prec_digits):
         eps = tiny(prec_digits)
-        radicand_eps = mpf(0) if strict_radicands else eps
-        results: dict[int, mpf] = {}
+        at = HighPrecision(eps, mpf(0) if strict_radicands else eps, _MAGNITUDE_LIMIT)
+        return +fold(expr, _NumericValues(values, at))
 
-        def value(node: Expr) -> mpf:
-            return results[id(node)]
 
-        for node in postorder(expr):
-            results[id(node)] = _check_finite(_numeric_node(node, value, values, eps, radicand_eps))
-        return +results[id(expr)]
+# ---------------------------------------------------------------- IEEE double evaluation
+
+
+class _FloatValues:
+    """Python floats, operation by operation in tree order (what the program computes)."""
+
+    def __init__(self, point: Mapping[str, float]) -> None:
+        self.point = point
+
+    def num(self, node: Num) -> float:
+        return float(node.value)
+
+    def var(self, node: Var) -> float:
+        return float(self.point[node.name])
+
+    def neg(self, node: Neg, operand: float) -> float:
+        return -operand
+
+    def binop(self, node: BinOp, left: float, right: float) -> float:
+        if node.op == "/":
+            return left / right  # ZeroDivisionError as in Python
+        return _arithmetic(node.op, left, right, False)
+
+    def pow(self, node: Pow, base: float) -> float:
+        exponent = Fraction(node.exponent)
+        if exponent.denominator == 1:
+            k = exponent.numerator
+            if k < 0:
+                if base == 0:
+                    raise ZeroDivisionError("division by zero")
+                return 1.0 / (base ** (-k))
+            return base**k
+        if base < 0:
+            raise ValueError("negative base of a fractional power")
+        return base ** float(exponent)
+
+    def call(self, node: Call, args: Sequence[float]) -> float:
+        entry = FUNCTIONS.get(node.function)
+        if entry is None:
+            raise ValueError(f"unknown function {node.function!r}")
+        return entry.ieee(args)
+
+    def opaque(self, node: Opaque, args: Sequence[float]) -> float:
+        if is_constant(node):
+            return CONSTANTS[node.name].ieee(())
+        raise _opaque_error(node)
+
+
+def float_value(expr: Expr, values: Mapping[str, float]) -> float:
+    """``expr`` evaluated in IEEE double, operation by operation in tree order (Python float semantics).
+
+    Raises ArithmeticError/ValueError where Python's float arithmetic does (division by zero, sqrt of a
+    negative number, overflow in ``**`` or ``exp``) and NotEvaluable for opaque calls; pi is ``math.pi``.
+    """
+    return fold(expr, _FloatValues(values))

@@ -49,6 +49,12 @@ def _prose_comments(path: str, text: str) -> list[CommentClaim] | None:
     return None
 
 
+def _is_kernel(path: str) -> bool:
+    from verifier.claims.kernels.parse import language_of
+
+    return language_of(path) is not None
+
+
 def extract(path: str, text: str, context: ExtractionContext | None = None) -> list[Claim]:
     """Every claim in the file ``path`` (relative, forward slashes) whose content is ``text``."""
     context = context or ExtractionContext()
@@ -64,6 +70,11 @@ def extract(path: str, text: str, context: ExtractionContext | None = None) -> l
     extract_python = _python_extractor() if path.lower().endswith(PYTHON_EXTENSIONS) else None
     if extract_python is not None:
         claims = flag_unknown_names(path, text, extract_python(path, text, comments, context), comments, context)
+    elif comments and _is_kernel(path):
+        # The kernel front ends (tree-sitter) load only for files of their languages that hold claims.
+        from verifier.claims.kernels.extract import extract_kernel
+
+        claims = extract_kernel(path, text, comments, context)
     else:
         for comment in comments:
             claims.extend(expression_claims(comment, path, context))

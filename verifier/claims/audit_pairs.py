@@ -1,6 +1,6 @@
 """Equivalence claims between same-named functions of two Python modules (for ``idealcheck audit``).
 
-Both functions are executed symbolically (``symexec``), never run: the optimized one with its parameters
+Both functions are executed symbolically (``verifier.claims.execute``), never run: the optimized one with its parameters
 as variables, the reference one with the optimized one's parameters passed by position.  Every pair of
 paths (the reference is executed under each optimized path's conditions, so a branch that tests the same
 thing is not split twice) gives one obligation per returned component: optimized value == reference value
@@ -9,24 +9,14 @@ under both paths' conditions and the audit's ``given`` conditions.
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import Sequence
+from typing import Literal, Sequence
 
 import libcst as cst
 
-from verifier.claims.symexec import (
-    EXPR_TYPES,
-    NONE,
-    Executor,
-    FunctionRef,
-    ModuleInfo,
-    ModuleLoader,
-    NoneValue,
-    Outcome,
-    Seq,
-    first_unknown,
-    parse_module_text,
-    positional_parameters,
-)
+from verifier.claims.execute import NONE, Executor, NoneValue, Outcome, Seq, Status, Value, first_unknown
+from verifier.claims.execute.values import as_expr
+from verifier.claims.frontends.python.modules import FunctionRef, ModuleInfo, ModuleLoader, parse_module_text
+from verifier.claims.frontends.python.scope import PythonScope
 from verifier.model.claim import (
     Claim,
     Condition,
@@ -77,23 +67,23 @@ def top_level_functions(info: ModuleInfo) -> dict[str, FunctionSite]:
     return sites
 
 
-def _flatten(value) -> list:
+def _flatten(value: Value) -> list[Value]:
     if isinstance(value, Seq):
-        out: list = []
+        out: list[Value] = []
         for item in value.items:
             out.extend(_flatten(item))
         return out
     return [value]
 
 
-def _shape(value) -> object:
+def _shape(value: Value) -> object:
     if isinstance(value, Seq):
         return tuple(_shape(item) for item in value.items)
     return "None" if isinstance(value, NoneValue) else "value"
 
 
-def _returned(outcome: Outcome):
-    if outcome.status == "return":
+def _returned(outcome: Outcome) -> Value:
+    if outcome.status is Status.RETURN:
         return outcome.value if outcome.value is not None else NONE
     return NONE  # fell off the end
 
@@ -128,35 +118,38 @@ def function_pair_claim(
         text += " given " + ", ".join(c.text for c in given)
     dependencies = tuple(dict.fromkeys([optimized.path, reference.path]))
 
-    def problem(verdict: str, message: str, deps: Sequence[str] = dependencies) -> Claim:
-        return Claim(f"{location}", location, "function", text, (), Problem(verdict, message),  # type: ignore[arg-type]
+    def problem(verdict: Literal["inconclusive"], message: str, deps: Sequence[str] = dependencies) -> Claim:
+        return Claim(f"{location}", location, "function", text, (), Problem(verdict, message),
                      dependencies=tuple(dict.fromkeys(deps)))
 
     loader = ModuleLoader(context.roots)
     loader.add(a_info)
     loader.add(b_info)
-    executor = Executor(loader, unroll_limit=context.unroll_limit, inline_depth=context.inline_depth)
+    scope = PythonScope(loader)
+    executor = Executor(scope, unroll_limit=context.unroll_limit, inline_depth=context.inline_depth)
     a_ref = FunctionRef(a_info, a_info.functions[name], name)
     b_ref = FunctionRef(b_info, b_info.functions[name], name)
-    a_params = positional_parameters(a_ref.node)
-    b_params = positional_parameters(b_ref.node)
+    a_function = scope.lower(a_info, a_ref.node, name)
+    b_function = scope.lower(b_info, b_ref.node, name)
+    a_params = a_ref.positional_names()
+    b_params = b_ref.positional_names()
     if len(a_params) != len(b_params):
         return problem("inconclusive", f"{name} takes {len(a_params)} positional parameters in {optimized.path} "
                                        f"and {len(b_params)} in {reference.path}; they are matched by position")
     given = tuple(given)
     obligations: list[Obligation] = []
     notes: list[str] = []
-    for a_out in executor.run_function(a_ref, None, given):
-        if a_out.status == "stuck":
+    for a_out in executor.run_function(a_function, None, given):
+        if a_out.status is Status.STUCK:
             return problem("inconclusive", f"{optimized.path}: {a_out.reason}", executor.dependencies)
-        if a_out.status == "raise":
+        if a_out.status is Status.RAISE:
             notes.append(f"a path of {name} in {optimized.path} raises (line {a_out.line}); it is not compared")
             continue
-        args: list = [Var(p) for p in a_params]
-        for b_out in executor.run_function(b_ref, args, a_out.state.conditions):
-            if b_out.status == "stuck":
+        args: list[Value] = [Var(p) for p in a_params]
+        for b_out in executor.run_function(b_function, args, a_out.state.conditions):
+            if b_out.status is Status.STUCK:
                 return problem("inconclusive", f"{reference.path}: {b_out.reason}", executor.dependencies)
-            if b_out.status == "raise":
+            if b_out.status is Status.RAISE:
                 notes.append(f"a path of {name} in {reference.path} raises (line {b_out.line}); it is not compared")
                 continue
             a_value, b_value = _returned(a_out), _returned(b_out)
@@ -177,10 +170,11 @@ def function_pair_claim(
             for index, (left, right) in enumerate(zip(a_items, b_items), start=1):
                 if isinstance(left, NoneValue):
                     continue  # both None (the shapes matched)
-                assert isinstance(left, EXPR_TYPES) and isinstance(right, EXPR_TYPES)
+                left_expr, right_expr = as_expr(left), as_expr(right)
+                assert left_expr is not None and right_expr is not None  # no unknowns, same shapes
                 parts = [p for p in (f"component {index}" if several else "", path) if p]
                 label = ", ".join(parts)
-                obligations.append(Obligation(left, right, conditions, label,
+                obligations.append(Obligation(left_expr, right_expr, conditions, label,
                                               tuple(dict.fromkeys(a_out.state.notes + b_out.state.notes))))
                 if len(obligations) > MAX_OBLIGATIONS:
                     return problem("inconclusive", f"more than {MAX_OBLIGATIONS} path and component pairs to "
@@ -188,14 +182,13 @@ def function_pair_claim(
     deps = tuple(dict.fromkeys(list(dependencies) + list(executor.dependencies)))
     if not obligations:
         return problem("inconclusive", f"no path of {name} returns in both versions", deps)
-    inlined = getattr(executor, "inlined", [])
-    claim_notes = tuple(dict.fromkeys(notes + list(inlined)))
+    claim_notes = tuple(dict.fromkeys(notes + list(executor.inlined)))
     return Claim(f"{location}", location, "function", text, tuple(obligations), None, claim_notes, deps)
 
 
-def _describe_shape(value) -> str:
+def _describe_shape(value: Value) -> str:
     if isinstance(value, Seq):
-        return f"a {value.kind} of {len(value.items)}"
+        return f"a {value.kind.value} of {len(value.items)}"
     if isinstance(value, NoneValue):
         return "None"
     return "one value"

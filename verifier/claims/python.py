@@ -3,12 +3,14 @@
 Plain ``LEFT == RIGHT`` comments go to the expression reader like in any file.  The other forms are tied
 to the code: a function claim sits in the comment lines directly above a ``def`` (decorators may sit in
 between), a statement claim trails an assignment, augmented or annotated assignment, or a return.  The
-code is read with libcst and executed symbolically (``symexec``); it is never imported or run.
+code is read with libcst, lowered to the kernel IR by ``verifier.claims.frontends.python`` and executed
+symbolically by ``verifier.claims.execute``; it is never imported or run.
 """
 from __future__ import annotations
 
 import ast
 import re
+from collections.abc import Sequence
 from dataclasses import dataclass, replace
 
 import libcst as cst
@@ -16,43 +18,36 @@ import libcst as cst
 from verifier.claims.comments import CommentClaim
 from verifier.claims.expression import error_claim, expression_claims
 from verifier.claims.language import ClaimSyntaxError, ParsedClaim, parse_claim_text
-from verifier.claims.symexec import (
-    NONE,
-    Executor,
+from verifier.claims.execute import NONE, Executor, Outcome, Seq, State, Status, Value, first_unknown
+from verifier.claims.frontends.python.modules import (
     FunctionRef,
+    MemberImport,
+    ModuleImport,
     ModuleInfo,
     ModuleLoader,
-    NoneValue,
-    Outcome,
-    Seq,
-    State,
-    Unknown,
-    Value,
-    first_unknown,
-    is_expr,
     parse_module_text,
-    positional_parameters,
 )
+from verifier.claims.frontends.python.scope import PythonScope
+from verifier.claims.obligations import (
+    MAX_OBLIGATIONS,
+    ClaimProblem,
+    components,
+    contains_none,
+    obligation,
+    path_label,
+    unique,
+)
+from verifier.claims.substitution import ConstantLookup, substitute, substitute_condition
 from verifier.model.claim import (
     Claim,
     ClaimKind,
-    Condition,
     ExtractionContext,
     Location,
     Obligation,
     Problem,
 )
-from verifier.model.expr import PI, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
-
-MAX_OBLIGATIONS = 2048  # more paths x components than this is inconclusive rather than slow
-
-
-class _ClaimProblem(Exception):
-    def __init__(self, verdict: str, message: str):
-        super().__init__(message)
-        self.verdict = verdict
-        self.message = message
-
+from verifier.model import ir
+from verifier.model.expr import PI, BinOp, Call, Expr, Neg, Opaque, Pow, Var
 
 @dataclass(frozen=True)
 class _StatementSite:
@@ -161,7 +156,7 @@ class _FileReader:
         self.defs_by_line: dict[int, FunctionRef] = {}
         self.sites: list[_StatementSite] = []
         self._index()
-        self._visits_cache: dict[tuple, tuple[Executor, list[Outcome]]] = {}
+        self._visits_cache: dict[tuple[str, str], tuple[Executor, PythonScope, list[Outcome]]] = {}
 
     # -- indexing the file
 
@@ -210,7 +205,7 @@ class _FileReader:
             def visit_SimpleStatementSuite(self, node: cst.SimpleStatementSuite) -> None:
                 self._smalls(node.body)
 
-            def _smalls(self, body: tuple) -> None:
+            def _smalls(self, body: Sequence[cst.BaseSmallStatement]) -> None:
                 function = self.functions[-1] if self.functions else None
                 for small in body:
                     reader.sites.append(_StatementSite(small, function, reader.module.line(small), tuple(self.loops)))
@@ -244,7 +239,7 @@ class _FileReader:
                 obligations, notes, dependencies = self._statement(comment, parsed)
             else:
                 obligations, notes, dependencies = self._function(comment, parsed)
-        except _ClaimProblem as problem:
+        except ClaimProblem as problem:
             return Claim(claim_id, location, kind, comment.text,
                          problem=Problem(problem.verdict, problem.message),  # type: ignore[arg-type]
                          dependencies=(self.path,))
@@ -255,9 +250,11 @@ class _FileReader:
         deps = tuple(dict.fromkeys([self.path] + dependencies))
         return Claim(claim_id, location, kind, comment.text, tuple(obligations), None, tuple(notes), deps)
 
-    def _executor(self, claim_targets: dict | None = None) -> Executor:
-        return Executor(self.loader, unroll_limit=self.context.unroll_limit,
-                        inline_depth=self.context.inline_depth, claim_targets=claim_targets)
+    def _executor(self, marks: frozenset[tuple[int, int]] = frozenset()) -> tuple[Executor, PythonScope]:
+        scope = PythonScope(self.loader)
+        executor = Executor(scope, unroll_limit=self.context.unroll_limit, inline_depth=self.context.inline_depth,
+                            marks=marks)
+        return executor, scope
 
     # -- function claims
 
@@ -266,77 +263,78 @@ class _FileReader:
         form = "`same as`" if parsed.form == "same_as" else "`returns`"
         ref = None if comment.trailing else self._def_below(comment)
         if ref is None:
-            raise _ClaimProblem("error", f"a {form} claim must be in the comment lines directly above a `def` "
+            raise ClaimProblem("error", f"a {form} claim must be in the comment lines directly above a `def` "
                                          "(decorators may sit in between); none follows this comment")
         name = ref.node.name.value
-        executor = self._executor()
-        outcomes = executor.run_function(ref)
+        executor, scope = self._executor()
+        outcomes = executor.run_function(_lowered(scope, ref))
         paths = self._returned(outcomes, name)
         obligations: list[Obligation] = []
-        if "pi" in positional_parameters(ref.node):
+        if "pi" in ref.positional_names():
             parsed = _pi_as_variable(parsed)  # a parameter named pi: the claim's pi is that parameter
         if parsed.form == "returns":
             # EXPR is in the parameters; a module-level constant it names means that constant's value
-            params = State(tuple((p, Var(p)) for p in positional_parameters(ref.node)))
-            sides = [executor_substitute(executor, side, params, ref.module) for side in parsed.sides]
+            params = State(tuple((p, Var(p)) for p in ref.positional_names()))
+            constant = _constant_lookup(executor, scope, ref.module)
+            sides = [substitute(side, params, constant) for side in parsed.sides]
             unknown = next((first_unknown(side) for side in sides if first_unknown(side) is not None), None)
             if unknown is not None:
-                raise _ClaimProblem("inconclusive", f"the claim's expression cannot be followed: {unknown.reason}")
-            given = tuple(_substitute_condition(executor, c, params, ref.module) for c in parsed.conditions)
+                raise ClaimProblem("inconclusive", f"the claim's expression cannot be followed: {unknown.reason}")
+            given = tuple(substitute_condition(c, params, constant) for c in parsed.conditions)
             target: Value = sides[0] if len(sides) == 1 else Seq(tuple(sides))
             for state, value in paths:
-                for left, right, label in _components(value, target, name, "the claim"):
-                    obligations.append(_obligation(left, right, given, state.conditions, label, state.notes))
+                for left, right, label in components(value, target, name, "the claim"):
+                    obligations.append(obligation(left, right, given, state.conditions, label, state.notes))
         else:
             other_name = parsed.other or ""
             other = self._find_function(other_name, self.module, 0, executor)
             if other is None:
-                raise _ClaimProblem("error", f"cannot find the function `{other_name}` among the functions and "
+                raise ClaimProblem("error", f"cannot find the function `{other_name}` among the functions and "
                                              f"imports of {self.path}")
-            mine = positional_parameters(ref.node)
-            theirs = positional_parameters(other.node)
+            mine = ref.positional_names()
+            theirs = other.positional_names()
             if len(mine) != len(theirs):
-                raise _ClaimProblem("error", f"{name} takes {len(mine)} positional arguments, {other_name} takes "
+                raise ClaimProblem("error", f"{name} takes {len(mine)} positional arguments, {other_name} takes "
                                              f"{len(theirs)}: `same as` compares them for the same arguments")
-            other_outcomes = executor.run_function(other, args=[Var(p) for p in mine])
+            other_outcomes = executor.run_function(_lowered(scope, other), args=[Var(p) for p in mine])
             other_paths = self._returned(other_outcomes, other_name)
             for state, value in paths:
                 for other_state, other_value in other_paths:
                     conditions = state.conditions + tuple(c for c in other_state.conditions
                                                           if c not in state.conditions)
                     notes = state.notes + tuple(n for n in other_state.notes if n not in state.notes)
-                    for left, right, label in _components(value, other_value, name, other_name):
-                        obligations.append(_obligation(left, right, parsed.conditions, conditions, label, notes))
+                    for left, right, label in components(value, other_value, name, other_name):
+                        obligations.append(obligation(left, right, parsed.conditions, conditions, label, notes))
                         if len(obligations) > MAX_OBLIGATIONS:
-                            raise _ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
-        obligations = _unique(obligations)
+                            raise ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
+        obligations = unique(obligations)
         if len(obligations) > MAX_OBLIGATIONS:
-            raise _ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
-        notes = list(executor.inlined) + list(dict.fromkeys(n for ob in obligations for n in ob.notes))
-        return obligations, notes, executor.dependencies
+            raise ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
+        claim_notes = list(executor.inlined) + list(dict.fromkeys(n for ob in obligations for n in ob.notes))
+        return obligations, claim_notes, executor.dependencies
 
     def _returned(self, outcomes: list[Outcome], name: str) -> list[tuple[State, Value]]:
-        stuck = [o for o in outcomes if o.status == "stuck"]
+        stuck = [o for o in outcomes if o.status is Status.STUCK]
         if stuck:
             first = min(stuck, key=lambda o: o.line)
-            raise _ClaimProblem("inconclusive", f"{first.reason} (in {name})" if name not in first.reason
+            raise ClaimProblem("inconclusive", f"{first.reason} (in {name})" if name not in first.reason
                                 else first.reason)
         paths: list[tuple[State, Value]] = []
         for outcome in outcomes:
-            if outcome.status == "return":
+            if outcome.status is Status.RETURN:
                 paths.append((outcome.state, outcome.value if outcome.value is not None else NONE))
-            elif outcome.status == "next":
+            elif outcome.status is Status.NEXT:
                 paths.append((outcome.state, NONE))
         if not paths:
-            raise _ClaimProblem("inconclusive", f"{name} never returns a value: every path raises")
+            raise ClaimProblem("inconclusive", f"{name} never returns a value: every path raises")
         for state, value in paths:
             unknown = first_unknown(value)
             if unknown is not None:
-                raise _ClaimProblem("inconclusive", f"{name} returns a value the tool cannot follow: "
+                raise ClaimProblem("inconclusive", f"{name} returns a value the tool cannot follow: "
                                                     f"{unknown.reason}")
-            if _contains_none(value):
-                where = _path_label(state.conditions) or "a path"
-                raise _ClaimProblem("inconclusive", f"{name} returns None on {where} (no return statement "
+            if contains_none(value):
+                where = path_label(state.conditions) or "a path"
+                raise ClaimProblem("inconclusive", f"{name} returns None on {where} (no return statement "
                                                     "or `return None`), which is not a number")
         return paths
 
@@ -347,12 +345,12 @@ class _FileReader:
         if not rest:
             if head in module.functions:
                 return FunctionRef(module, module.functions[head], head)
-            target = module.imports.get(head)
-            if target is not None and target[0] == "member":
-                other = self.loader.find(target[1], module)
+            member = module.imports.get(head)
+            if isinstance(member, MemberImport):
+                other = self.loader.find(member.dotted, module)
                 if other is not None:
                     executor.depend(other.path)
-                    return self._find_function(target[2], other, depth + 1, executor)
+                    return self._find_function(member.name, other, depth + 1, executor)
             return None
         if head in module.classes and "." not in rest:
             method = module.classes[head].get(rest)
@@ -360,10 +358,7 @@ class _FileReader:
         target = module.imports.get(head)
         if target is None:
             return None
-        if target[0] == "module":
-            full = target[1]
-        else:
-            full = target[1] + target[2] if target[1].endswith(".") else f"{target[1]}.{target[2]}"
+        full = target.dotted if isinstance(target, ModuleImport) else target.full
         segments = rest.split(".")
         for k in range(len(segments) - 1, -1, -1):
             module_name = full + ("." + ".".join(segments[:k]) if k else "")
@@ -379,21 +374,22 @@ class _FileReader:
                    ) -> tuple[list[Obligation], list[str], list[str]]:
         site = self._site_for(comment.line) if comment.trailing else None
         if site is None or not isinstance(site.node, (cst.Assign, cst.AugAssign, cst.AnnAssign, cst.Return)):
-            raise _ClaimProblem("error", "a `== EXPR` claim must trail an assignment, augmented assignment, "
+            raise ClaimProblem("error", "a `== EXPR` claim must trail an assignment, augmented assignment, "
                                          "annotated assignment or return statement on the same line")
         if isinstance(site.node, cst.AnnAssign) and site.node.value is None:
-            raise _ClaimProblem("error", "a `== EXPR` claim must trail a statement that assigns a value")
+            raise ClaimProblem("error", "a `== EXPR` claim must trail a statement that assigns a value")
         if site.function is None:
-            raise _ClaimProblem("inconclusive", "statement claims are checked inside functions only; this "
+            raise ClaimProblem("inconclusive", "statement claims are checked inside functions only; this "
                                                 "statement is at module level")
-        executor, outcomes = self._run_for_sites(site.function)
-        relevant = [o for o in outcomes if o.status == "stuck" and _stuck_matters(o, site)]
+        executor, scope, outcomes = self._run_for_sites(site.function)
+        relevant = [o for o in outcomes if o.status is Status.STUCK and _stuck_matters(o, site)]
         if relevant:
             first = min(relevant, key=lambda o: o.line)
-            raise _ClaimProblem("inconclusive", first.reason)
-        visits = executor.visits.get(site.node, [])
+            raise ClaimProblem("inconclusive", first.reason)
+        visits = executor.visits.get(self.module.position(site.node), [])
+        constant = _constant_lookup(executor, scope, self.module)
         if not visits:
-            raise _ClaimProblem("inconclusive", f"no path of {site.function.qualname} reaches the statement at "
+            raise ClaimProblem("inconclusive", f"no path of {site.function.qualname} reaches the statement at "
                                                 f"line {site.line}")
         if any(visit.state.get("pi") is not None for visit in visits):
             parsed = _pi_as_variable(parsed)  # a local or parameter named pi: the claim's pi is that name
@@ -403,43 +399,55 @@ class _FileReader:
         for number, visit in enumerate(visits, start=1):
             unknown = first_unknown(visit.value)
             if unknown is not None:
-                raise _ClaimProblem("inconclusive", f"the value at line {site.line} cannot be followed: "
+                raise ClaimProblem("inconclusive", f"the value at line {site.line} cannot be followed: "
                                                     f"{unknown.reason}")
-            if _contains_none(visit.value):
-                raise _ClaimProblem("inconclusive", f"the value at line {site.line} is None, not a number")
+            if contains_none(visit.value):
+                raise ClaimProblem("inconclusive", f"the value at line {site.line} is None, not a number")
             substituted: Value
             if target is not None:
-                substituted = executor_substitute(executor, target, visit.state, self.module)
+                substituted = substitute(target, visit.state, constant)
             else:
-                substituted = Seq(tuple(executor_substitute(executor, side, visit.state, self.module)
-                                        for side in parsed.sides))
+                substituted = Seq(tuple(substitute(side, visit.state, constant) for side in parsed.sides))
             unknown = first_unknown(substituted)
             if unknown is not None:
-                raise _ClaimProblem("inconclusive", f"the claim's expression cannot be followed: {unknown.reason}")
-            conditions = tuple(_substitute_condition(executor, c, visit.state, self.module)
-                               for c in parsed.conditions)
-            for left, right, label in _components(visit.value, substituted, what, "the claim"):
+                raise ClaimProblem("inconclusive", f"the claim's expression cannot be followed: {unknown.reason}")
+            conditions = tuple(substitute_condition(c, visit.state, constant) for c in parsed.conditions)
+            for left, right, label in components(visit.value, substituted, what, "the claim"):
                 if len(visits) > 1 and not visit.state.conditions:
                     label = ", ".join(p for p in (f"visit {number}", label) if p)
-                obligations.append(_obligation(left, right, conditions, visit.state.conditions, label,
+                obligations.append(obligation(left, right, conditions, visit.state.conditions, label,
                                                visit.state.notes))
             if len(obligations) > MAX_OBLIGATIONS:
-                raise _ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
-        obligations = _unique(obligations)
+                raise ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
+        obligations = unique(obligations)
         notes = list(executor.inlined) + list(dict.fromkeys(n for ob in obligations for n in ob.notes))
         return obligations, notes, executor.dependencies
 
-    def _run_for_sites(self, function: FunctionRef) -> tuple[Executor, list[Outcome]]:
+    def _run_for_sites(self, function: FunctionRef) -> tuple[Executor, PythonScope, list[Outcome]]:
         key = function.key
         if key not in self._visits_cache:
-            targets = {site.node: site.node for site in self.sites if site.function == function}
-            executor = self._executor(targets)
-            outcomes = executor.run_function(function)
-            self._visits_cache[key] = (executor, outcomes)
+            marks = frozenset(self.module.position(site.node) for site in self.sites if site.function == function)
+            executor, scope = self._executor(marks)
+            outcomes = executor.run_function(_lowered(scope, function))
+            self._visits_cache[key] = (executor, scope, outcomes)
         return self._visits_cache[key]
 
 
 # ---------------------------------------------------------------- helpers
+
+
+def _lowered(scope: PythonScope, ref: FunctionRef) -> ir.Function:
+    return scope.lower(ref.module, ref.node, ref.qualname, ref.class_name)
+
+
+def _constant_lookup(executor: Executor, scope: PythonScope, module: ModuleInfo) -> ConstantLookup:
+    """A claim's name that the code does not bind: the module constant of that name, when it can be read."""
+    def constant(name: str) -> Value | None:
+        if name not in module.constants or name in module.rebound:
+            return None
+        value = scope.module_constant(executor, module, name, 0)
+        return None if first_unknown(value) is not None else value  # left free: code using it is inconclusive
+    return constant
 
 
 def _stuck_matters(outcome: Outcome, site: _StatementSite) -> bool:
@@ -447,169 +455,6 @@ def _stuck_matters(outcome: Outcome, site: _StatementSite) -> bool:
     if outcome.line <= site.line:
         return True
     return any(start <= site.line <= end for start, end in outcome.loops)
-
-
-def _contains_none(value: Value) -> bool:
-    if isinstance(value, NoneValue):
-        return True
-    if isinstance(value, Seq):
-        return any(_contains_none(item) for item in value.items)
-    return False
-
-
-def _arity(value: Value) -> int:
-    return len(value.items) if isinstance(value, Seq) else 1
-
-
-def _components(left: Value, right: Value, left_name: str, right_name: str,
-                prefix: str = "") -> list[tuple[Expr, Expr, str]]:
-    """Pairs of scalar components to compare, with labels ("component 2", "component 1.3")."""
-    if isinstance(left, Seq) or isinstance(right, Seq):
-        if _arity(left) != _arity(right) or not (isinstance(left, Seq) and isinstance(right, Seq)):
-            where = f" (component {prefix})" if prefix else ""
-            raise _ClaimProblem("error", f"{left_name} returns {_count(left)}{where}, {right_name} "
-                                         f"{'returns' if right_name != 'the claim' else 'gives'} {_count(right)}")
-        pairs: list[tuple[Expr, Expr, str]] = []
-        for index, (a, b) in enumerate(zip(left.items, right.items), start=1):
-            label = f"{prefix}.{index}" if prefix else str(index)
-            pairs.extend(_components(a, b, left_name, right_name, label))
-        return pairs
-    if not (is_expr(left) and is_expr(right)):
-        raise _ClaimProblem("inconclusive", f"a compared value is not a number ({type(left).__name__} against "
-                                            f"{type(right).__name__})")
-    return [(left, right, f"component {prefix}" if prefix else "")]  # type: ignore[list-item]
-
-
-def _count(value: Value) -> str:
-    n = _arity(value)
-    return "1 value" if n == 1 else f"{n} values"
-
-
-def _path_label(conditions: tuple[Condition, ...]) -> str:
-    if not conditions:
-        return ""
-    return "path where " + " and ".join(c.text for c in conditions)
-
-
-def _obligation(left: Expr, right: Expr, given: tuple[Condition, ...], branch: tuple[Condition, ...],
-                component: str, notes: tuple[str, ...]) -> Obligation:
-    label = ", ".join(part for part in (_path_label(branch), component) if part)
-    return Obligation(left, right, tuple(given) + tuple(branch), label, tuple(notes))
-
-
-def _unique(obligations: list[Obligation]) -> list[Obligation]:
-    seen: set = set()
-    out = []
-    for ob in obligations:
-        key = (ob.left, ob.right, ob.conditions)
-        if key in seen:
-            continue
-        seen.add(key)
-        out.append(ob)
-    return out
-
-
-_SPELLING = re.compile(r"[A-Za-z_][A-Za-z_0-9]*")
-_ACCESSOR = re.compile(r"\.([A-Za-z_][A-Za-z_0-9]*)|\[(-?[0-9]+)\]|\[([^\]]*)\]")
-
-
-def _resolve_spelling(executor: Executor, name: str, state: State, module: ModuleInfo) -> Value:
-    """The value a claim's variable spelling (``x``, ``q.w``, ``v[0]``) has in ``state``."""
-    head = _SPELLING.match(name)
-    if head is None:
-        return Var(name)
-    base_name = head.group(0)
-    value = state.get(base_name)
-    if value is None:
-        if base_name in module.constants and base_name not in module.rebound:
-            value = executor.module_constant(module, base_name, 0)
-            if first_unknown(value) is not None:
-                return Var(name)  # left free: code that uses it is inconclusive anyway
-        else:
-            return Var(name)
-    position = head.end()
-    spelled = base_name
-    while position < len(name):
-        match = _ACCESSOR.match(name, position)
-        if match is None:
-            return Unknown(f"cannot read the name {name}")
-        position = match.end()
-        spelled += match.group(0)
-        if isinstance(value, Unknown):
-            return value
-        if match.group(1) is not None:
-            if isinstance(value, Var):
-                value = Var(f"{value.name}.{match.group(1)}")
-            elif isinstance(value, Opaque):
-                value = Opaque(f"{value.name}.{match.group(1)}", value.args)
-            else:
-                return Unknown(f"{spelled} is not a variable at this point")
-        elif match.group(2) is not None:
-            index = int(match.group(2))
-            if isinstance(value, Seq):
-                if not -len(value.items) <= index < len(value.items):
-                    return Unknown(f"{spelled} is out of range")
-                value = value.items[index]
-            elif isinstance(value, Var):
-                value = Var(f"{value.name}[{index}]")
-            elif isinstance(value, Opaque):
-                value = Opaque(f"{value.name}[{index}]", value.args)
-            else:
-                return Unknown(f"{spelled} is not a variable at this point")
-        else:
-            if isinstance(value, Var):
-                value = Var(f"{value.name}[{match.group(3)}]")
-            else:
-                return Unknown(f"{spelled} is not a variable at this point")
-    return value
-
-
-def executor_substitute(executor: Executor, expr: Expr, state: State, module: ModuleInfo) -> Value:
-    """``expr`` (claim text) with the parameters and locals replaced by their values in ``state``."""
-    if isinstance(expr, Var):
-        return _resolve_spelling(executor, expr.name, state, module)
-    if isinstance(expr, Num):
-        return expr
-    if isinstance(expr, Neg):
-        inner = executor_substitute(executor, expr.operand, state, module)
-        return Neg(inner) if is_expr(inner) else _not_number(inner)  # type: ignore[arg-type]
-    if isinstance(expr, BinOp):
-        left = executor_substitute(executor, expr.left, state, module)
-        right = executor_substitute(executor, expr.right, state, module)
-        for side in (left, right):
-            if not is_expr(side):
-                return _not_number(side)
-        return BinOp(expr.op, left, right)  # type: ignore[arg-type]
-    if isinstance(expr, Pow):
-        base = executor_substitute(executor, expr.base, state, module)
-        return Pow(base, expr.exponent) if is_expr(base) else _not_number(base)  # type: ignore[arg-type]
-    if isinstance(expr, (Call, Opaque)):
-        args = [executor_substitute(executor, a, state, module) for a in expr.args]
-        for arg in args:
-            if not is_expr(arg):
-                return _not_number(arg)
-        if isinstance(expr, Call):
-            return Call(expr.function, tuple(args))  # type: ignore[arg-type]
-        return Opaque(expr.name, tuple(args))  # type: ignore[arg-type]
-    return Unknown(f"cannot read {expr!r}")
-
-
-def _not_number(value: Value) -> Unknown:
-    if isinstance(value, Unknown):
-        return value
-    return Unknown("the claim uses a tuple, list or None inside arithmetic")
-
-
-def _substitute_condition(executor: Executor, condition: Condition, state: State, module: ModuleInfo) -> Condition:
-    left = executor_substitute(executor, condition.left, state, module)
-    right = executor_substitute(executor, condition.right, state, module)
-    for side in (left, right):
-        if not is_expr(side):
-            reason = side.reason if isinstance(side, Unknown) else "not a number"
-            raise _ClaimProblem("inconclusive", f"the condition {condition.text} cannot be followed: {reason}")
-    if left == condition.left and right == condition.right:
-        return condition
-    return Condition(condition.relation, left, right, condition.text, condition.origin)  # type: ignore[arg-type]
 
 
 __all__ = ["extract_python"]

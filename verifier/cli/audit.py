@@ -3,25 +3,40 @@ from __future__ import annotations
 
 import argparse
 import os
-import sys
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING
 
-from verifier.cli.accuracy import (
-    accuracy_report,
+from verifier import __version__
+from verifier.claims.language import ClaimSyntaxError, parse_conditions
+from verifier.cli.options import (
+    EXIT_FINDINGS,
+    EXIT_OK,
+    UsageError,
+    accuracy_section,
     accuracy_settings,
     add_accuracy_options,
+    add_config_option,
+    add_format_options,
+    add_run_mode_options,
+    add_worker_options,
+    emit_report,
+    load_config_or_exit,
+    on_inconclusive,
+    run_options,
+    single_output,
 )
+from verifier.features.audit import AuditError, plan_audit, run_audit
+from verifier.model.claim import Condition, ExtractionContext
+from verifier.model.paths import relative_path
+from verifier.pipeline.config import Config
+from verifier.report import Format, fails_run, render
+from verifier.report.audit_text import render_audit_text
+
+if TYPE_CHECKING:
+    from verifier.cli.options import Subparsers
 
 
-def register(subparsers: Any) -> None:
-    from verifier.cli.main import (
-        FORMAT_CHOICES,
-        _positive_float,
-        _positive_int,
-        add_config_option,
-    )
-
+def register(subparsers: Subparsers) -> None:
     parser = subparsers.add_parser(
         "audit",
         help="check that every function of one module version equals the same-named function of another",
@@ -34,25 +49,17 @@ def register(subparsers: Any) -> None:
     parser.add_argument("--given", action="append", default=[], metavar="COND",
                         help="conditions for every function, in the claim language (`x > 0, a != b`, or a named "
                              "set from the config), in the optimized function's parameter names; repeatable")
-    parser.add_argument("--format", choices=FORMAT_CHOICES, default="text", help="report format (default: text)")
-    parser.add_argument("--output", metavar="FILE",
-                        help="write the report in --format to FILE; the text table goes to stdout")
-    parser.add_argument("--timeout", type=_positive_float("--timeout"), metavar="S", help="seconds per function (config: timeout)")
-    parser.add_argument("--memory-mb", type=_positive_int("--memory-mb"), metavar="N", help="memory per worker in MB (config: memory_mb)")
-    parser.add_argument("--jobs", type=_positive_int("--jobs"), metavar="N", help="worker processes (config: jobs)")
-    parser.add_argument("--on-inconclusive", choices=("fail", "warn"), help="whether an inconclusive function fails the run")
-    parser.add_argument("--in-process", action="store_true", help=argparse.SUPPRESS)
+    add_format_options(parser, stdout_text="the text table")
+    add_worker_options(parser, unit="function")
+    add_run_mode_options(parser, unit="function")
     add_accuracy_options(parser)
     add_config_option(parser)
     parser.set_defaults(handler=run_audit_command)
 
 
-def _given(texts: list[str], config: Any):
-    from verifier.claims.language import ClaimSyntaxError, parse_conditions
-    from verifier.cli.main import UsageError
-
-    named = {item.name: item for item in (getattr(config, "conditions", ()) or ())}
-    conditions = []
+def _given(texts: list[str], config: Config) -> tuple[Condition, ...]:
+    named = {item.name: item for item in config.conditions}
+    conditions: list[Condition] = []
     for text in texts:
         try:
             conditions.extend(parse_conditions(text, named))
@@ -62,52 +69,29 @@ def _given(texts: list[str], config: Any):
 
 
 def run_audit_command(args: argparse.Namespace) -> int:
-    from verifier import __version__
-    from verifier.cli.main import (
-        EXIT_FINDINGS,
-        EXIT_OK,
-        UsageError,
-        load_config_or_exit,
-        run_options,
-    )
-    from verifier.features.audit import AuditError, plan_audit, run_audit
-    from verifier.model.claim import ExtractionContext
-    from verifier.report import fails_run, render
-    from verifier.report.audit_text import render_audit_text
-
     cwd = Path.cwd()
     config = load_config_or_exit(args, cwd)
     given = _given(args.given, config)
-    on_inconclusive = args.on_inconclusive or getattr(config, "on_inconclusive", "fail")
+    failing = on_inconclusive(args, config)
     roots = []
     for path in (args.optimized, args.against):
         folder = path if os.path.isdir(path) else (os.path.dirname(path) or ".")
-        roots.append(os.path.relpath(os.path.abspath(folder), cwd).replace(os.sep, "/"))
-    context = ExtractionContext(named_conditions=tuple(getattr(config, "conditions", ()) or ()),
-                                roots=tuple(dict.fromkeys(roots)))
+        roots.append(relative_path(folder, cwd))
+    context = ExtractionContext(named_conditions=config.conditions, roots=tuple(dict.fromkeys(roots)))
     try:
         plan = plan_audit(args.optimized, args.against, context, given, cwd=str(cwd))
     except AuditError as exc:
         raise UsageError(str(exc)) from exc
-    options = run_options(args, config)
-    result = run_audit(plan, options)
+    result = run_audit(plan, run_options(args, config))
     verdicts = list(result.verdicts)
     table = render_audit_text(result)
-    settings = accuracy_settings(args, config)
-    accuracy_text = accuracy_report(verdicts, settings, ("optimized", "reference")) if settings is not None else ""
-    if args.output:
-        report = table if args.format == "text" else render(verdicts, args.format, version=__version__,
-                                                            on_inconclusive=on_inconclusive)
-        try:
-            Path(args.output).write_text(report, encoding="utf-8")
-        except OSError as exc:
-            raise UsageError(f"--output: cannot write {args.output}: {exc.strerror or exc}") from exc
-        sys.stdout.write(table + accuracy_text)
-    elif args.format == "text":
-        sys.stdout.write(table + accuracy_text)
-    else:
-        # the machine-readable report owns stdout; the table and accuracy figures go to stderr
-        sys.stdout.write(render(verdicts, args.format, version=__version__, on_inconclusive=on_inconclusive))
-        sys.stderr.write(table + accuracy_text)
-    sys.stdout.flush()
-    return EXIT_FINDINGS if any(fails_run(v, on_inconclusive) for v in verdicts) else EXIT_OK
+
+    def report(report_format: Format) -> str:
+        if report_format == "text":
+            return table
+        return render(verdicts, report_format, version=__version__, on_inconclusive=failing)
+
+    stdout_format, targets = single_output(args.format, args.output)
+    emit_report(stdout_format, targets, report, text_beside_machine=True,
+                extra=accuracy_section(verdicts, accuracy_settings(args, config), ("optimized", "reference")))
+    return EXIT_FINDINGS if any(fails_run(v, failing) for v in verdicts) else EXIT_OK

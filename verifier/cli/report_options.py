@@ -11,23 +11,24 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import IO, Any
 
-FORMAT_CHOICES = ("text", "json", "github", "sarif", "junit")
+from verifier.report import FORMATS as FORMAT_CHOICES
+from verifier.report import Format
 
 
 @dataclass(frozen=True)
 class OutputTarget:
     """One report to write: ``fmt`` to ``path`` (``--output FORMAT=FILE``, or ``--output FILE`` with --format)."""
 
-    fmt: str
+    fmt: Format
     path: str
 
 
-def _output(text: str) -> tuple[str | None, str]:
+def _output(text: str) -> tuple[Format | None, str]:
     name, sep, path = text.partition("=")
     if sep and name in FORMAT_CHOICES:
         if not path:
             raise argparse.ArgumentTypeError(f"--output {text}: a file name is missing after `=`")
-        return name, path
+        return name, path  # type: ignore[return-value]  # checked against FORMAT_CHOICES
     if sep and name and "/" not in name and "." not in name:
         raise argparse.ArgumentTypeError(
             f"--output {text}: unknown format `{name}`; use FORMAT=FILE with FORMAT one of {', '.join(FORMAT_CHOICES)}")
@@ -81,12 +82,12 @@ def terminal_width(stream: IO[str] | Any) -> int | None:
     return shutil.get_terminal_size().columns
 
 
-def plan_outputs(args: argparse.Namespace) -> tuple[str, list[OutputTarget]]:
+def plan_outputs(args: argparse.Namespace) -> tuple[Format, list[OutputTarget]]:
     """The stdout format and the files to write.
 
     A bare ``--output FILE`` keeps the old meaning: FILE gets ``--format`` and stdout the text report.
     """
-    stdout_format = args.format or "text"
+    stdout_format: Format = args.format or "text"
     targets: list[OutputTarget] = []
     for fmt, path in args.output:
         if fmt is None:

@@ -1,7 +1,7 @@
 """Sampled floating-point accuracy of the two sides of a proved identity.
 
 Both sides are evaluated in IEEE double arithmetic in exactly the order the expression tree gives (the
-order the source writes it: ``a + b + c`` is ``(a + b) + c``) and exactly (rationals, or mpmath at high
+order the source writes it: ``a + b + c`` is ``(a + b) + c``; pi is the double ``math.pi``) and exactly (rationals, or mpmath at high
 precision when a step is irrational) at the same double inputs.  The error of a side at a point is
 ``|computed - exact| / ulp(exact rounded to double)``.  Points are drawn uniformly from per-variable ranges
 with a seeded generator; equation conditions are met by solving for some variables with mpmath, and the
@@ -13,7 +13,7 @@ import math
 import random
 import statistics
 from fractions import Fraction
-from typing import Callable, Mapping, Sequence
+from typing import TYPE_CHECKING, Any, Mapping, Sequence
 
 import mpmath
 from mpmath import mp, mpf
@@ -22,8 +22,9 @@ from verifier.algebra.evaluate import (
     DomainError,
     NotEvaluable,
     exact_value,
+    float_value,
+    has_opaque,
     numeric_value,
-    postorder,
     variables,
 )
 from verifier.model.accuracy import (
@@ -32,7 +33,11 @@ from verifier.model.accuracy import (
     SideAccuracy,
 )
 from verifier.model.claim import Condition, Obligation
-from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
+from verifier.model.expr import Expr
+from verifier.model.verdict import Verdict
+
+if TYPE_CHECKING:  # a type only: sampling in workers imports the runner when it is asked for
+    from verifier.pipeline.runner import RunOptions
 
 EXACT_DIGITS = 60  # decimal digits of the reference value when it is irrational
 _ATTEMPTS_PER_SAMPLE = 20
@@ -41,78 +46,6 @@ _NEWTON_STEPS = 60
 
 class NotMeasurable(Exception):
     """The obligation cannot be sampled (opaque calls, no point satisfying the conditions, ...)."""
-
-
-# ---------------------------------------------------------------- double evaluation in source order
-
-
-def _fma(a: float, b: float, c: float) -> float:
-    fma = getattr(math, "fma", None)
-    if fma is not None:
-        return fma(a, b, c)
-    return float(Fraction(a) * Fraction(b) + Fraction(c))  # one rounding, like a hardware fma
-
-
-def float_value(expr: Expr, values: Mapping[str, float]) -> float:
-    """``expr`` evaluated in IEEE double, operation by operation in tree order (Python float semantics).
-
-    Raises ArithmeticError/ValueError where Python's float arithmetic does (division by zero, sqrt of a
-    negative number, overflow in ``**`` or ``exp``) and NotEvaluable for opaque calls.
-    """
-    results: dict[int, float] = {}
-    for node in postorder(expr):
-        results[id(node)] = _float_node(node, lambda n: results[id(n)], values)
-    return results[id(expr)]
-
-
-def _float_node(node: Expr, value: Callable[[Expr], float], point: Mapping[str, float]) -> float:
-    if isinstance(node, Num):
-        return float(node.value)
-    if isinstance(node, Var):
-        return float(point[node.name])
-    if isinstance(node, Neg):
-        return -value(node.operand)
-    if isinstance(node, BinOp):
-        a, b = value(node.left), value(node.right)
-        if node.op == "+":
-            return a + b
-        if node.op == "-":
-            return a - b
-        if node.op == "*":
-            return a * b
-        if node.op == "/":
-            return a / b
-        raise ValueError(f"unknown operator {node.op!r}")
-    if isinstance(node, Pow):
-        base = value(node.base)
-        exponent = Fraction(node.exponent)
-        if exponent.denominator == 1:
-            k = exponent.numerator
-            if k < 0:
-                return 1.0 / (base ** (-k)) if base != 0 else _raise_zero_division()
-            return base**k
-        if base < 0:
-            raise ValueError("negative base of a fractional power")
-        return base ** float(exponent)
-    if isinstance(node, Call):
-        args = [value(a) for a in node.args]
-        f = node.function
-        if f == "sqrt":
-            return math.sqrt(args[0])
-        if f == "hypot":
-            return math.hypot(args[0], args[1])
-        if f == "fma":
-            return _fma(args[0], args[1], args[2])
-        if f in ("sin", "cos", "tan", "exp", "log"):
-            return getattr(math, f)(args[0])
-        raise ValueError(f"unknown function {f!r}")
-    if isinstance(node, Opaque):
-        raise NotEvaluable(f"opaque call {node.name}")
-    raise ValueError(f"unknown expression node {type(node).__name__}")
-
-
-def _raise_zero_division() -> float:
-    raise ZeroDivisionError("division by zero")
 
 
 # ---------------------------------------------------------------- exact evaluation and ulps
@@ -319,7 +252,7 @@ def estimate_accuracy(obligation: Obligation, settings: AccuracySettings = Accur
     """Sample ``settings.samples`` points satisfying the obligation's conditions and compare both sides."""
     label = obligation.label
     exprs = [obligation.left, obligation.right] + [e for c in obligation.conditions for e in (c.left, c.right)]
-    if any(isinstance(node, Opaque) for e in exprs for node in postorder(e)):
+    if any(has_opaque(e) for e in exprs):
         return AccuracyEstimate(label, 0, 0, None, None, None, problem="the claim calls functions the tool cannot evaluate")
     names = sorted(set().union(*(variables(e) for e in exprs)))
     equations = [c for c in obligation.conditions if c.relation == "=="]
@@ -368,3 +301,33 @@ def _more_accurate(left: SideAccuracy, right: SideAccuracy) -> str | None:
         if b < a:
             return "right"
     return None
+
+
+def estimate_verdicts(
+    verdicts: Sequence[Verdict], settings: AccuracySettings, options: RunOptions | None = None
+) -> list[tuple[str, list[AccuracyEstimate]]]:
+    """(heading, estimates) for every proved verdict, one estimate per obligation (a refuted or open
+    claim has no identity whose rounding is worth measuring).
+
+    With ``options`` each estimate is sampled in a worker under the claim's time and memory limits, so a
+    huge sample count cannot hold up the run.
+    """
+    proved = [v for v in verdicts if v.verdict == "proved"]
+    obligations = [ob for v in proved for ob in v.claim.obligations]
+    if options is None:
+        estimates = [estimate_accuracy(ob, settings) for ob in obligations]
+    else:
+        from verifier.pipeline.runner import run_limited
+
+        def stopped(args: tuple[Any, ...], why: str) -> AccuracyEstimate:
+            return AccuracyEstimate(args[0].label, 0, 0, None, None, None, problem=f"sampling stopped: {why}")
+
+        estimates = run_limited("verifier.features.accuracy:estimate_accuracy",
+                                [(ob, settings) for ob in obligations], options, stopped)
+    items: list[tuple[str, list[AccuracyEstimate]]] = []
+    position = 0
+    for verdict in proved:
+        count = len(verdict.claim.obligations)
+        items.append((f"{verdict.claim.location}: {verdict.claim.text}", estimates[position:position + count]))
+        position += count
+    return items

@@ -9,10 +9,14 @@ from __future__ import annotations
 
 import os
 from pathlib import Path
-from typing import Sequence
+from typing import TYPE_CHECKING, Sequence
 
 from verifier.model.audit import AuditedFunction, AuditPlan, AuditResult, OneSided
 from verifier.model.claim import Claim, Condition, ExtractionContext, Location, Problem
+from verifier.model.paths import relative_path
+
+if TYPE_CHECKING:
+    from verifier.claims.audit_pairs import ModuleSource
 
 _SKIPPED_DIRS = {"__pycache__", ".git", ".hg", ".svn", ".tox", ".venv", "venv", "node_modules", ".idealcheck_cache"}
 
@@ -22,10 +26,6 @@ class AuditError(Exception):
 
 
 # ---------------------------------------------------------------- matching modules and functions
-
-
-def _relative(path: Path, cwd: Path) -> str:
-    return os.path.relpath(path.resolve(), cwd.resolve()).replace(os.sep, "/")
 
 
 def python_modules(root: Path) -> dict[str, Path]:
@@ -54,14 +54,15 @@ def module_pairs(optimized: Path, reference: Path) -> tuple[list[tuple[str, Path
     raise AuditError("OPTIMIZED and --against must both be Python files or both be folders")
 
 
-def _read(path: Path, cwd: Path):
+def _read(path: Path, cwd: Path) -> ModuleSource:
+    # the audit's claims need libcst: loaded when an audit runs, not by `idealcheck --help`
     from verifier.claims.audit_pairs import ModuleSource
 
     try:
         text = path.read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError) as exc:
         raise AuditError(f"cannot read {path}: {exc}") from exc
-    return ModuleSource(_relative(path, cwd), text)
+    return ModuleSource(relative_path(path.absolute(), cwd), text)
 
 
 def _unreadable_claim(path: str, message: str) -> Claim:
@@ -79,6 +80,7 @@ def plan_audit(
     cwd: str = ".",
 ) -> AuditPlan:
     """Match modules and functions and build one claim per function present in both versions."""
+    # libcst parses the modules: loaded when an audit runs, not by `idealcheck --help`
     from verifier.claims.audit_pairs import (
         ModuleUnreadable,
         function_pair_claim,
@@ -106,6 +108,11 @@ def plan_audit(
 
     for key, a, b in matched:
         a_source, b_source = _read(a, base), _read(b, base)
+        from verifier.claims.kernels.parse import language_of
+
+        if language_of(a_source.path) or language_of(b_source.path):
+            _plan_kernel_pair(key, a_source, b_source, context, given, functions, only_a, only_b, unreadable)
+            continue
         try:
             a_info = parse_module(a_source)
         except ModuleUnreadable as exc:
@@ -138,8 +145,37 @@ def plan_audit(
         listed(key, path, only_a)
     for key, path in only_b_modules:
         listed(key, path, only_b)
-    return AuditPlan(_relative(opt_path, base), _relative(ref_path, base), tuple(functions), tuple(only_a),
-                     tuple(only_b), tuple(unreadable))
+    return AuditPlan(relative_path(opt_path.absolute(), base), relative_path(ref_path.absolute(), base),
+                     tuple(functions), tuple(only_a), tuple(only_b), tuple(unreadable))
+
+
+def _plan_kernel_pair(key, a_source, b_source, context, given, functions, only_a, only_b, unreadable) -> None:
+    """A kernel file (C, C++, CUDA, Fortran, Julia, Rust) on either side: the kernel front ends decide."""
+    # Loaded only for audits that involve kernel files (tree-sitter).
+    from verifier.claims.kernels.audit import functions_of, is_kernel_file, pair_claim
+
+    a_sites, b_sites = functions_of(a_source.path, a_source.text), functions_of(b_source.path, b_source.text)
+    for source, sites in ((a_source, a_sites), (b_source, b_sites)):
+        if isinstance(sites, str):
+            unreadable.append(_unreadable_claim(source.path, sites))
+    if isinstance(a_sites, str) or isinstance(b_sites, str):
+        return
+    for name in sorted(a_sites, key=lambda n: a_sites[n]):
+        if name not in b_sites:
+            only_a.append(OneSided(key, name, a_source.path, a_sites[name]))
+        elif not is_kernel_file(a_source.path):
+            location = Location(a_source.path, a_sites[name], 1)
+            functions.append(AuditedFunction(key, name, Claim(
+                f"{location}", location, "function", f"same as {name} in {b_source.path}", (),
+                Problem("inconclusive", "auditing a Python module against a kernel file is not supported; "
+                                        "audit the kernel file against the Python module"),
+                dependencies=(a_source.path, b_source.path))))
+        else:
+            functions.append(AuditedFunction(key, name, pair_claim(a_source.path, a_source.text, b_source.path,
+                                                                   name, context, given)))
+    for name in sorted(b_sites, key=lambda n: b_sites[n]):
+        if name not in a_sites:
+            only_b.append(OneSided(key, name, b_source.path, b_sites[name]))
 
 
 def run_audit(plan: AuditPlan, options) -> AuditResult:

@@ -18,6 +18,7 @@ from sympy import QQ, Symbol
 from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
+from verifier.algebra.decide import Limits, decide
 from verifier.algebra.describe import describe_difference
 from verifier.algebra.groebner import GroebnerTimeout, groebner_basis, reduce
 from verifier.algebra.quotient import monomial_text, quotient_structure
@@ -29,7 +30,15 @@ from verifier.algebra.translate import (
 )
 from verifier.features.accuracy import estimate_accuracy
 from verifier.model.accuracy import AccuracySettings
-from verifier.model.certificate import Certificate
+from verifier.model.certificate import (
+    Certificate,
+    ConjugateCertificate,
+    IdealCertificate,
+    PolyData,
+    RealSquareCertificate,
+    ShiftContradictionCertificate,
+    SignContradictionCertificate,
+)
 from verifier.model.claim import Claim, ExtractionContext, Obligation
 from verifier.model.explanation import (
     CertificateText,
@@ -38,6 +47,8 @@ from verifier.model.explanation import (
     GeneratorText,
     ObligationExplanation,
 )
+from verifier.model.limits import DEFAULT_TIMEOUT_SECONDS
+from verifier.model.paths import relative_path
 from verifier.model.verdict import ObligationResult
 
 
@@ -85,7 +96,7 @@ def claims_on_line(path: str, line: int, context: ExtractionContext, *, cwd: str
         text = Path(full).read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError) as exc:
         raise ExplainError(f"cannot read {path}: {exc}") from exc
-    relative = os.path.relpath(os.path.abspath(full), os.path.abspath(cwd)).replace(os.sep, "/")
+    relative = relative_path(path, cwd)
     claims = extract(relative, text, context)
     found = [c for c in claims if c.location.line == line]
     if not found:
@@ -109,38 +120,69 @@ def _ring_names(ring: PolyRing) -> tuple[str, ...]:
     return tuple(str(s) for s in ring.symbols)
 
 
-def certificate_polys(certificate: Certificate) -> tuple[PolyRing, PolyElement, list[PolyElement], list[PolyElement]]:
-    """A certificate's data as polynomials (target, generators, cofactors) in a ring on its symbols."""
-    ring = PolyRing([Symbol(s) for s in certificate.symbols] or [Symbol("$one")], QQ, grevlex)
+def _certificate_ring(certificate: Certificate) -> PolyRing:
+    """A ring on the certificate's symbols (a placeholder symbol when it has none, to print constants)."""
+    return PolyRing([Symbol(s) for s in certificate.symbols] or [Symbol("$one")], QQ, grevlex)
 
-    def poly(data) -> PolyElement:
-        terms = {}
-        for coeff, exps in data:
-            value = Fraction(coeff)
-            terms[tuple(exps)] = QQ(value.numerator, value.denominator)
-        return ring(terms) if terms else ring.zero
 
-    return ring, poly(certificate.target), [poly(g) for g in certificate.generators], [poly(c) for c in certificate.cofactors]
+def _poly(data: PolyData, ring: PolyRing) -> PolyElement:
+    terms = {}
+    for coeff, exps in data:
+        value = Fraction(coeff)
+        terms[tuple(exps)] = QQ(value.numerator, value.denominator)
+    return ring(terms) if terms else ring.zero
+
+
+def _text(data: PolyData, ring: PolyRing) -> str:
+    return format_poly(_poly(data, ring))
+
+
+def _terms(cofactors: Sequence[PolyData], generators: Sequence[PolyData], ring: PolyRing) -> tuple[tuple[str, str], ...]:
+    """(cofactor, generator) texts of the non-zero cofactors."""
+    return tuple((_text(c, ring), _text(g, ring)) for c, g in zip(cofactors, generators) if c)
+
+
+def _sign_pattern(symbols: Sequence[str]) -> str:
+    return (f"has positive coefficients and odd powers only of {', '.join(symbols) or 'no variable'} "
+            "(so it is not negative)")
+
+
+def _strictly(strict: bool) -> str:
+    return ">" if strict else ">="
 
 
 def _certificate_text(certificate: Certificate) -> CertificateText:
-    ring, _, generators, cofactors = certificate_polys(certificate)
-    terms = tuple((format_poly(c), format_poly(g)) for c, g in zip(cofactors, generators) if c)
-    sign = getattr(certificate, "sign", None)  # the conjugate (sign) argument, when the proof used one
-    if sign is None:
-        return CertificateText(certificate.power, terms)
-    multiplier = certificate_polys(_with_target(certificate, sign.multiplier))[1]
-    nonnegative = certificate_polys(_with_target(certificate, sign.nonnegative))[1]
-    note = (f"with LEFT - RIGHT = A*{sign.root} + B and the multiplier A*{sign.root} - B, -A*B - P is in the "
-            f"ideal too, where P = {format_poly(nonnegative)} has positive coefficients and odd powers only of "
-            f"{', '.join(sign.nonnegative_symbols) or 'no variable'} (so it is not negative)")
-    return CertificateText(certificate.power, terms, format_poly(multiplier), note)
-
-
-def _with_target(certificate: Certificate, target) -> Certificate:
-    from dataclasses import replace
-
-    return replace(certificate, target=target)
+    """What the proof of each kind shows, with its polynomials printed."""
+    ring = _certificate_ring(certificate)
+    if isinstance(certificate, IdealCertificate):
+        return CertificateText(certificate.power, _terms(certificate.cofactors, certificate.generators, ring))
+    if isinstance(certificate, ConjugateCertificate):
+        root = certificate.root
+        note = (f"with LEFT - RIGHT = A*{root} + B and the multiplier A*{root} - B, -A*B - P is in the "
+                f"ideal too, where P = {_text(certificate.nonnegative, ring)} "
+                f"{_sign_pattern(certificate.nonnegative_symbols)}")
+        return CertificateText(1, _terms(certificate.cofactors, certificate.generators, ring),
+                               _text(certificate.multiplier, ring), note, kind="conjugate")
+    if isinstance(certificate, RealSquareCertificate):
+        note = (f"P = {_text(certificate.remainder, ring)} {_sign_pattern(certificate.nonnegative_symbols)}, "
+                "so (LEFT - RIGHT)**2 = -P cannot be positive")
+        return CertificateText(2, _terms(certificate.cofactors, certificate.generators, ring), None, note,
+                               kind="real_square")
+    if isinstance(certificate, SignContradictionCertificate):
+        first = f"F = {_text(certificate.first, ring)} {_strictly(certificate.first_strict)} 0"
+        second = (f", S = {_text(certificate.second, ring)} {_strictly(certificate.second_strict)} 0"
+                  if certificate.second else "")
+        note = (f"{first}{second}, and F - ({certificate.ratio})*S - ({certificate.constant}) vanishes where the "
+                "conditions hold: these signs cannot all be right")
+        return CertificateText(1, _terms(certificate.cofactors, certificate.generators, ring), None, note,
+                               kind="sign_contradiction")
+    assert isinstance(certificate, ShiftContradictionCertificate)  # the last kind
+    shifted = certificate
+    note = (f"{_text(shifted.bound, ring)} {_strictly(shifted.bound_strict)} 0 and "
+            f"{_text(shifted.other, ring)} {_strictly(shifted.other_strict)} 0 cannot both hold: with "
+            f"{shifted.variable} = t + {shifted.shift}, minus the second {_sign_pattern(('t',) + shifted.nonnegative_symbols)}, "
+            "which the two signs rule out")
+    return CertificateText(1, (), None, note, kind="shift_contradiction")
 
 
 def explain_obligation(
@@ -226,14 +268,12 @@ def _explain_translation(
 def explain_claim(
     claim: Claim,
     *,
-    timeout: float = 10.0,
+    timeout: float = DEFAULT_TIMEOUT_SECONDS,
     accuracy: AccuracySettings | None = None,
     decider: Any = None,
 ) -> ClaimExplanation:
     """Decide ``claim`` and explain each of its obligations within ``timeout`` seconds of algebra."""
     if decider is None:
-        from verifier.algebra.decide import Limits, decide
-
         verdict = decide(claim, Limits(timeout=timeout))
     else:
         verdict = decider(claim)
@@ -253,7 +293,7 @@ def explain(
     context: ExtractionContext,
     *,
     cwd: str = ".",
-    timeout: float = 10.0,
+    timeout: float = DEFAULT_TIMEOUT_SECONDS,
     accuracy: AccuracySettings | None = None,
 ) -> Explanation:
     """Explain every claim starting at ``target`` (``FILE:LINE`` or ``FILE:LINE:COLUMN``)."""

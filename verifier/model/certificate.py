@@ -1,46 +1,89 @@
-"""Proof certificates as plain data.
+"""Proof certificates as plain data: one frozen class per proof kind, and their union ``Certificate``.
 
 A certificate is stored in a form that needs no sympy object and no evaluation to read back: symbol
-names and polynomials as tuples of (coefficient text, exponent vector) terms.  The trusted kernel
-(``verifier/algebra/kernel``) re-verifies one by plain expansion.
+names and polynomials as tuples of (coefficient text, exponent vector) terms.  Every class has the three
+fields that tie it to a claim - ``symbols`` (the ring), ``target`` (LEFT - RIGHT) and ``generators`` (the
+equations the claim's conditions give) - and then the evidence of its own argument.  The trusted kernel
+(``verifier/algebra/kernel``) re-verifies each kind by plain expansion, and reads and writes them as JSON
+field by field, by the type of each field (so a field's type must be one of str, bool, int and tuples
+of these).  ``kind`` names the class in that JSON.
 """
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import ClassVar, Union
 
-# A polynomial as data: ((coefficient as "p/q" or "p", (e1, e2, ...)), ...) over ``Certificate.symbols``.
+# A polynomial as data: ((coefficient as "p/q" or "p", (e1, e2, ...)), ...) over the certificate's symbols.
 PolyData = tuple[tuple[str, tuple[int, ...]], ...]
 
 
 @dataclass(frozen=True)
-class SignArgument:
-    """The extra data of a proof by the conjugate argument (``algebra/sign.py``).
+class IdealCertificate:
+    """``target ** power == sum(cofactors[i] * generators[i])`` as polynomials over QQ in ``symbols``: the
+    target vanishes wherever the generators do (ideal membership; radical membership when power > 1)."""
 
-    With A, B defined by ``target == A*root + B`` and ``multiplier == A*root - B``: the certificate's
-    cofactors show ``target * multiplier`` in the ideal, and ``nonnegative_cofactors`` show
+    kind: ClassVar[str] = "ideal"
+    symbols: tuple[str, ...]
+    target: PolyData
+    power: int
+    generators: tuple[PolyData, ...]
+    cofactors: tuple[PolyData, ...]
+
+
+@dataclass(frozen=True)
+class ConjugateCertificate:
+    """The conjugate argument for a principal root ``root`` (``algebra/sign_search.py``).
+
+    With A, B defined by ``target == A*root + B`` and ``multiplier == A*root - B``: ``cofactors`` show
+    ``target * multiplier`` in the ideal, and ``nonnegative_cofactors`` show
     ``-A*B - nonnegative - sum(lam*S)`` in it, where ``nonnegative`` has positive coefficients and odd
     powers only of ``nonnegative_symbols`` (principal roots, exponentials, variables with a sign
     hypothesis, inverses of such) and each S is a sign hypothesis S >= 0 with weight lam >= 0.
     """
 
+    kind: ClassVar[str] = "conjugate"
+    symbols: tuple[str, ...]
+    target: PolyData
+    generators: tuple[PolyData, ...]
+    cofactors: tuple[PolyData, ...]
     root: str
     multiplier: PolyData
     nonnegative: PolyData
     nonnegative_cofactors: tuple[PolyData, ...]
     nonnegative_symbols: tuple[str, ...]
-    # sign hypotheses S >= 0 used with weights lam >= 0: -A*B - nonnegative - sum(lam*S) is in the ideal
+    # sign hypotheses S >= 0 used with weights lam >= 0 (as fraction text)
     hypotheses: tuple[tuple[PolyData, str], ...] = ()
 
 
 @dataclass(frozen=True)
-class SignContradiction:
-    """Sign hypotheses that cannot hold together (``algebra/sign.py``): a vacuous proof.
+class RealSquareCertificate:
+    """``target**2 + remainder == sum(cofactors[i] * generators[i])`` and ``remainder`` is >= 0 by its sign
+    pattern (positive coefficients, odd powers only of ``nonnegative_symbols``): so target**2 <= 0, i.e.
+    target == 0 at every real point of the conditions."""
 
-    With ``first > 0`` (or ``>= 0``) and ``second > 0`` (or ``>= 0``, absent when empty) among the
-    hypotheses, the certificate's cofactors show ``first - ratio*second - constant`` in the ideal, and
-    ``ratio <= 0`` with ``constant < 0``, or ``constant == 0`` with a strict hypothesis that then fails.
+    kind: ClassVar[str] = "real_square"
+    symbols: tuple[str, ...]
+    target: PolyData
+    generators: tuple[PolyData, ...]
+    cofactors: tuple[PolyData, ...]
+    remainder: PolyData
+    nonnegative_symbols: tuple[str, ...]
+
+
+@dataclass(frozen=True)
+class SignContradictionCertificate:
+    """Sign hypotheses that cannot hold together: a vacuous proof (``algebra/sign_search.py``).
+
+    With ``first > 0`` (or ``>= 0``) and ``second > 0`` (or ``>= 0``; empty when unused) among the
+    hypotheses, ``cofactors`` show ``first - ratio*second - constant`` in the ideal, and ``ratio <= 0``
+    with ``constant < 0``, or ``constant == 0`` with a strict hypothesis that then fails.
     """
 
+    kind: ClassVar[str] = "sign_contradiction"
+    symbols: tuple[str, ...]
+    target: PolyData
+    generators: tuple[PolyData, ...]
+    cofactors: tuple[PolyData, ...]
     first: PolyData
     first_strict: bool
     second: PolyData
@@ -50,16 +93,20 @@ class SignContradiction:
 
 
 @dataclass(frozen=True)
-class ShiftContradiction:
+class ShiftContradictionCertificate:
     """Two sign hypotheses that cannot hold together once a variable is shifted by its lower bound.
 
     With ``bound`` = variable - shift (>= 0, or > 0 when strict) and ``other`` (>= 0 / > 0): writing the
     variable as t + shift, ``-other`` becomes a polynomial in t whose terms have positive coefficients and
     odd powers only of t and ``nonnegative_symbols``; so other <= 0, which fails when other is strict,
     when that polynomial has a positive constant term, or when the bound is strict and it has a pure
-    power of t.  (``x > 1`` and ``x*x <= 1``: -(1 - (t + 1)**2) = t**2 + 2*t > 0.)
+    power of t.  (``x > 1`` and ``x*x <= 1``: -(1 - (t + 1)**2) = t**2 + 2*t > 0.)  No equation is used.
     """
 
+    kind: ClassVar[str] = "shift_contradiction"
+    symbols: tuple[str, ...]
+    target: PolyData
+    generators: tuple[PolyData, ...]
     bound: PolyData
     bound_strict: bool
     variable: str
@@ -69,30 +116,10 @@ class ShiftContradiction:
     nonnegative_symbols: tuple[str, ...]
 
 
-@dataclass(frozen=True)
-class RealSquare:
-    """``target**2 + remainder`` is in the ideal and ``remainder`` is >= 0 by its sign pattern (positive
-    coefficients, odd powers only of ``nonnegative_symbols``): so target**2 <= 0, i.e. target == 0."""
-
-    remainder: PolyData
-    nonnegative_symbols: tuple[str, ...]
-
-
-@dataclass(frozen=True)
-class Certificate:
-    """``target ** power == sum(cofactors[i] * generators[i])`` as polynomials over QQ in ``symbols``.
-
-    With ``sign`` set, the identity is ``target * sign.multiplier == sum(...)`` plus the sign argument.
-    """
-
-    symbols: tuple[str, ...]
-    target: PolyData
-    power: int
-    generators: tuple[PolyData, ...]
-    cofactors: tuple[PolyData, ...]
-    sign: SignArgument | None = None
-    contradiction: SignContradiction | None = None
-    real_square: RealSquare | None = None
-    shift_contradiction: ShiftContradiction | None = None
-
-
+Certificate = Union[
+    IdealCertificate,
+    ConjugateCertificate,
+    RealSquareCertificate,
+    SignContradictionCertificate,
+    ShiftContradictionCertificate,
+]

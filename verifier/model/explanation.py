@@ -47,6 +47,8 @@ class CertificateText:
     terms: tuple[tuple[str, str], ...]  # (cofactor, generator) pairs with a non-zero cofactor
     multiplier: str | None = None  # a sign-argument proof: (LEFT - RIGHT) * multiplier is in the ideal
     sign_note: str | None = None  # what else the sign argument shows
+    # the certificate's kind (``model/certificate.py``): says which identity ``terms`` expand
+    kind: str = "ideal"
 
 
 @dataclass(frozen=True)

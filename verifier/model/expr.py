@@ -1,13 +1,19 @@
 """Expression trees of the claim language: plain frozen data, never a sympy object, never evaluated.
 
 The claims layer builds them, the algebra layer translates them into polynomials, and the evaluators
-compute their values at points.
+compute their values at points.  Every walk over a tree goes through ``fold`` (post-order, one method
+per node kind receiving its children already folded) or ``map_expr`` (a bottom-up rebuild); ``preorder``
+lists nodes parents first where the order of first visits matters.  All are iterative: symbolic
+execution builds deep trees (unrolled loops) that share sub-trees (DAGs), so each distinct node object
+is visited once and Python's recursion limit is never reached.
 """
 from __future__ import annotations
 
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Literal, Union
+from typing import Callable, Iterator, Literal, Mapping, MutableMapping, Protocol, Sequence, TypeVar, Union
+
+from verifier.model.functions import CONSTANTS, FUNCTIONS
 
 
 @dataclass(frozen=True)
@@ -51,22 +57,13 @@ class Pow:
     exponent: Fraction
 
 
-KNOWN_FUNCTIONS: dict[str, int] = {
-    # canonical name -> number of arguments
-    "sqrt": 1,
-    "hypot": 2,  # sqrt(a**2 + b**2)
-    "fma": 3,  # a*b + c
-    "sin": 1,
-    "cos": 1,
-    "tan": 1,
-    "exp": 1,
-    "log": 1,  # opaque: the same argument gives the same value
-}
+# canonical name -> number of arguments: a view of the function table (verifier/model/functions.py)
+KNOWN_FUNCTIONS: dict[str, int] = {name: entry.arity for name, entry in FUNCTIONS.items()}
 
 
 @dataclass(frozen=True)
 class Call:
-    """A call of one of ``KNOWN_FUNCTIONS`` (``pow`` is parsed into ``Pow``)."""
+    """A call of a function of the table ``FUNCTIONS`` (``pow`` is parsed into ``Pow``)."""
 
     function: str
     args: tuple["Expr", ...]
@@ -74,9 +71,11 @@ class Call:
 
 @dataclass(frozen=True)
 class Opaque:
-    """A value the tool cannot see into (an unresolved call in Python code).
+    """A value the tool cannot see into (an unresolved call in Python code), or a named constant.
 
     The same name applied to the same arguments is the same value; nothing else is known about it.
+    A constant of the table ``CONSTANTS`` (pi) is an ``Opaque`` without arguments: the algebra treats it
+    as an unknown, the evaluators know its value.
     """
 
     name: str
@@ -88,3 +87,178 @@ Expr = Union[Num, Var, BinOp, Neg, Pow, Call, Opaque]
 # The number pi: an opaque constant.  Proofs hold for every value of it; since no witness can be given in
 # terms of an unknown constant, a claim whose difference depends on it is never refuted.
 PI = Opaque("pi", ())
+
+
+def is_constant(node: Opaque) -> bool:
+    """True for a named constant of the table (pi), whose value the evaluators know."""
+    return not node.args and node.name in CONSTANTS
+
+
+# ---------------------------------------------------------------- the traversal
+
+T = TypeVar("T")
+
+
+class ExprFold(Protocol[T]):
+    """One method per node kind; each receives the node and its children's results, already folded."""
+
+    def num(self, node: Num) -> T: ...
+
+    def var(self, node: Var) -> T: ...
+
+    def binop(self, node: BinOp, left: T, right: T) -> T: ...
+
+    def neg(self, node: Neg, operand: T) -> T: ...
+
+    def pow(self, node: Pow, base: T) -> T: ...
+
+    def call(self, node: Call, args: Sequence[T]) -> T: ...
+
+    def opaque(self, node: Opaque, args: Sequence[T]) -> T: ...
+
+
+def children(expr: Expr) -> tuple[Expr, ...]:
+    if isinstance(expr, BinOp):
+        return (expr.left, expr.right)
+    if isinstance(expr, Neg):
+        return (expr.operand,)
+    if isinstance(expr, Pow):
+        return (expr.base,)
+    if isinstance(expr, (Call, Opaque)):
+        return expr.args
+    return ()
+
+
+def _apply(folder: ExprFold[T], node: Expr, folded: Mapping[int, T]) -> T:
+    """``node`` folded, its children's results looked up by identity in ``folded``."""
+    if isinstance(node, Num):
+        return folder.num(node)
+    if isinstance(node, Var):
+        return folder.var(node)
+    if isinstance(node, BinOp):
+        return folder.binop(node, folded[id(node.left)], folded[id(node.right)])
+    if isinstance(node, Neg):
+        return folder.neg(node, folded[id(node.operand)])
+    if isinstance(node, Pow):
+        return folder.pow(node, folded[id(node.base)])
+    if isinstance(node, Call):
+        return folder.call(node, [folded[id(arg)] for arg in node.args])
+    if isinstance(node, Opaque):
+        return folder.opaque(node, [folded[id(arg)] for arg in node.args])
+    raise TypeError(f"not an expression: {node!r}")
+
+
+def fold(expr: Expr, folder: ExprFold[T], memo: MutableMapping[Expr, T] | None = None) -> T:
+    """``expr`` folded bottom-up: children first (left to right), then the node with their results.
+
+    Each distinct node object is folded once.  With ``memo`` (kept by the caller across folds) nodes are
+    also told apart by value: an equal sub-tree met again, in this fold or a later one, is not folded
+    again.  (Hashing by value costs a walk of the sub-tree; identity is the cheap default.)
+    """
+    # every node folded or found in this fold, by identity; the stack holds (node, children done)
+    results: dict[int, T] = {}
+    stack: list[tuple[Expr, bool]] = [(expr, False)]
+    while stack:
+        node, expanded = stack.pop()
+        if expanded:
+            value = _apply(folder, node, results)
+            results[id(node)] = value
+            if memo is not None:
+                memo[node] = value
+            continue
+        if id(node) in results:
+            continue
+        if memo is not None and node in memo:
+            results[id(node)] = memo[node]
+            continue
+        stack.append((node, True))
+        for child in reversed(children(node)):
+            stack.append((child, False))
+    return results[id(expr)]
+
+
+class _Rebuild:
+    """The fold behind ``map_expr``: a node whose children changed is rebuilt, then ``change`` applies."""
+
+    def __init__(self, change: Callable[[Expr], Expr]) -> None:
+        self.change = change
+
+    def num(self, node: Num) -> Expr:
+        return self.change(node)
+
+    def var(self, node: Var) -> Expr:
+        return self.change(node)
+
+    def binop(self, node: BinOp, left: Expr, right: Expr) -> Expr:
+        same = left is node.left and right is node.right
+        return self.change(node if same else BinOp(node.op, left, right))
+
+    def neg(self, node: Neg, operand: Expr) -> Expr:
+        return self.change(node if operand is node.operand else Neg(operand))
+
+    def pow(self, node: Pow, base: Expr) -> Expr:
+        return self.change(node if base is node.base else Pow(base, node.exponent))
+
+    def call(self, node: Call, args: Sequence[Expr]) -> Expr:
+        same = all(new is old for new, old in zip(args, node.args))
+        return self.change(node if same else Call(node.function, tuple(args)))
+
+    def opaque(self, node: Opaque, args: Sequence[Expr]) -> Expr:
+        same = all(new is old for new, old in zip(args, node.args))
+        return self.change(node if same else Opaque(node.name, tuple(args)))
+
+
+def map_expr(expr: Expr, change: Callable[[Expr], Expr]) -> Expr:
+    """``expr`` rebuilt bottom-up with ``change`` applied to every node (its children already changed).
+
+    What ``change`` returns is not walked again; unchanged sub-trees are kept (sharing survives).
+    """
+    return fold(expr, _Rebuild(change))
+
+
+class _Collect:
+    """The fold behind ``postorder``: it only records the order in which nodes are folded."""
+
+    def __init__(self) -> None:
+        self.order: list[Expr] = []
+
+    def _record(self, node: Expr, *_folded: object) -> None:
+        self.order.append(node)
+
+    num = var = binop = neg = pow = call = opaque = _record
+
+
+def postorder(expr: Expr) -> list[Expr]:
+    """Distinct node objects (by identity) in post-order: children before parents."""
+    collect = _Collect()
+    fold(expr, collect)
+    return collect.order
+
+
+def preorder(expr: Expr) -> Iterator[Expr]:
+    """Distinct node objects (by identity) in pre-order: a node before its children, left to right."""
+    seen: set[int] = set()
+    stack = [expr]
+    while stack:
+        node = stack.pop()
+        if id(node) in seen:
+            continue
+        seen.add(id(node))
+        yield node
+        stack.extend(reversed(children(node)))
+
+
+def variables(expr: Expr) -> set[str]:
+    return {node.name for node in postorder(expr) if isinstance(node, Var)}
+
+
+def has_opaque(expr: Expr) -> bool:
+    """True when the expression has a value the tool cannot compute (pi is computable)."""
+    return any(isinstance(node, Opaque) and not is_constant(node) for node in postorder(expr))
+
+
+def substitute(expr: Expr, mapping: Mapping[str, Expr]) -> Expr:
+    """``expr`` with the variables named in ``mapping`` replaced, all at once."""
+    if not mapping:
+        return expr
+    return map_expr(expr, lambda node: mapping.get(node.name, node) if isinstance(node, Var) else node)

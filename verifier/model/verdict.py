@@ -9,6 +9,10 @@ from verifier.model.claim import Claim
 
 VerdictName = Literal["proved", "refuted", "inconclusive", "error"]
 Method = Literal["expansion", "ideal", "saturation", "radical", "sign"]
+# Which resource limit cut a decision short (None: the decision ran to its end).  Results cut short are
+# never cached: a busy machine must not make an "inconclusive" stick.
+Limit = Literal["time", "memory"]
+LIMITS: tuple[str, ...] = ("time", "memory")
 
 @dataclass(frozen=True)
 class Witness:
@@ -33,6 +37,7 @@ class ObligationResult:
     assumed: tuple[str, ...] = ()
     certificate: Certificate | None = None
     vacuous: bool = False  # proved because the conditions cannot all hold (1 is in the ideal)
+    limit: Limit | None = None  # the time or memory limit that stopped this obligation, if one did
 
 
 @dataclass(frozen=True)
@@ -49,3 +54,4 @@ class Verdict:
     seconds: float
     obligations: tuple[ObligationResult, ...] = ()
     cached: bool = False
+    limit: Limit | None = None  # the time or memory limit that stopped the decision, if one did

@@ -8,13 +8,15 @@ from __future__ import annotations
 
 import math
 import sys
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
-from typing import Any, Literal
+from typing import Literal
 
 from verifier.claims.language import ClaimSyntaxError, parse_expression, parse_relation
 from verifier.model.claim import NamedConditionSet
 from verifier.model.expr import Var
+from verifier.model.limits import DEFAULT_MEMORY_MB, DEFAULT_TIMEOUT_SECONDS
+from verifier.pipeline.workers import MAX_MEMORY_MB
 
 if sys.version_info >= (3, 11):
     import tomllib
@@ -23,9 +25,15 @@ else:  # pragma: no cover - exercised on Python 3.10 only
 
 TABLE = "tool.idealcheck"
 KNOWN_KEYS = ("paths", "include", "exclude", "conditions", "on_inconclusive", "timeout", "memory_mb", "jobs", "cache_dir",
-              "accuracy")
+              "accuracy", "max_file_kb")
+# Upper bound of the sampled points per claim: they are kept in memory.
+MAX_ACCURACY_SAMPLES = 1_000_000
 CONDITION_KEYS = ("vars", "given")
 ACCURACY_KEYS = ("samples", "seed", "range", "ranges")
+DEFAULT_CACHE_DIR = ".idealcheck_cache"  # relative to the folder of the pyproject.toml
+
+OnInconclusive = Literal["fail", "warn"]
+TomlTable = dict[str, object]
 
 
 class ConfigError(Exception):
@@ -50,12 +58,13 @@ class Config:
     include: tuple[str, ...] = ()
     exclude: tuple[str, ...] = ()
     conditions: tuple[NamedConditionSet, ...] = ()
-    on_inconclusive: Literal["fail", "warn"] = "fail"
-    timeout: float = 10.0  # seconds per claim
-    memory_mb: int = 2048  # per worker process
+    on_inconclusive: OnInconclusive = "fail"
+    timeout: float = DEFAULT_TIMEOUT_SECONDS  # seconds per claim
+    memory_mb: int = DEFAULT_MEMORY_MB  # per worker process
     jobs: int | None = None  # worker processes; None: one per core
-    cache_dir: str = ".idealcheck_cache"
+    cache_dir: str = DEFAULT_CACHE_DIR
     accuracy: AccuracyConfig = AccuracyConfig()
+    max_file_kb: int | None = None  # size cap of a scanned file; None: the default (discover)
 
     def named(self, name: str) -> NamedConditionSet | None:
         return next((item for item in self.conditions if item.name == name), None)
@@ -64,7 +73,7 @@ class Config:
 # ---------------------------------------------------------------- finding and reading the file
 
 
-def _read_toml(path: Path) -> dict[str, Any]:
+def _read_toml(path: Path) -> TomlTable:
     try:
         data = path.read_bytes()
     except OSError as exc:
@@ -75,6 +84,8 @@ def _read_toml(path: Path) -> dict[str, Any]:
         raise ConfigError(f"{path}: not UTF-8 text") from None
     try:
         return tomllib.loads(text)
+    except RecursionError:
+        raise ConfigError(f"{path}: invalid TOML: nested too deeply to read") from None
     except tomllib.TOMLDecodeError as exc:
         message = str(exc)
         if "line" not in message:  # "at end of document": say which line that is
@@ -82,7 +93,7 @@ def _read_toml(path: Path) -> dict[str, Any]:
         raise ConfigError(f"{path}: invalid TOML: {message}") from None
 
 
-def _our_table(document: dict[str, Any], path: Path) -> dict[str, Any] | None:
+def _our_table(document: TomlTable, path: Path) -> TomlTable | None:
     tool = document.get("tool")
     if tool is None:
         return None
@@ -96,7 +107,7 @@ def _our_table(document: dict[str, Any], path: Path) -> dict[str, Any] | None:
     return table
 
 
-def find_config_file(start: Path) -> tuple[Path, dict[str, Any]] | None:
+def find_config_file(start: Path) -> tuple[Path, TomlTable] | None:
     """The nearest pyproject.toml at or above ``start`` with a ``[tool.idealcheck]`` table.
 
     The search stops at the top of a git working tree so that a project never picks up an outer one.
@@ -135,61 +146,78 @@ def load_config(start: Path, explicit: Path | None = None) -> Config:
 # ---------------------------------------------------------------- validation
 
 
-def _type_name(value: Any) -> str:
+def _type_name(value: object) -> str:
     names = {bool: "a boolean", int: "an integer", float: "a number", str: "a string", list: "an array", dict: "a table"}
     return names.get(type(value), type(value).__name__)
 
 
-def _string_list(value: Any, key: str, path: Path) -> tuple[str, ...]:
+def _string_list(value: object, key: str, path: Path) -> tuple[str, ...]:
     if not isinstance(value, list) or not all(isinstance(item, str) for item in value):
         raise ConfigError(f"{path}: `{key}` must be an array of strings, found {_type_name(value)}")
     return tuple(value)
 
 
-def _positive_number(value: Any, key: str, path: Path) -> float:
+def _positive_number(value: object, key: str, path: Path) -> float:
     if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value) or value <= 0:
         raise ConfigError(f"{path}: `{key}` must be a positive number, found {value!r}")
     return float(value)
 
 
-def _positive_int(value: Any, key: str, path: Path) -> int:
+def _positive_int(value: object, key: str, path: Path) -> int:
     if isinstance(value, bool) or not isinstance(value, int) or value <= 0:
         raise ConfigError(f"{path}: `{key}` must be a positive integer, found {value!r}")
     return value
 
 
-def _build(table: dict[str, Any], path: Path, root: Path) -> Config:
+def _bounded_int(value: object, key: str, path: Path, most: int) -> int:
+    number = _positive_int(value, key, path)
+    if number > most:
+        raise ConfigError(f"{path}: `{key}` must be at most {most}, found {value!r}")
+    return number
+
+
+def _build(table: TomlTable, path: Path, root: Path) -> Config:
     for key in table:
         if key not in KNOWN_KEYS:
             raise ConfigError(f"{path}: unknown key `{TABLE}.{key}` (known: {', '.join(KNOWN_KEYS)})")
-    values: dict[str, Any] = {}
-    for key in ("paths", "include", "exclude"):
-        if key in table:
-            values[key] = _string_list(table[key], f"{TABLE}.{key}", path)
+    config = Config(path=path, root=root)  # the defaults, replaced key by key below
+    if "paths" in table:
+        config = replace(config, paths=_string_list(table["paths"], f"{TABLE}.paths", path))
+    if "include" in table:
+        config = replace(config, include=_string_list(table["include"], f"{TABLE}.include", path))
+    if "exclude" in table:
+        config = replace(config, exclude=_string_list(table["exclude"], f"{TABLE}.exclude", path))
     if "on_inconclusive" in table:
-        value = table["on_inconclusive"]
-        if value not in ("fail", "warn"):
-            raise ConfigError(f"{path}: `{TABLE}.on_inconclusive` must be \"fail\" or \"warn\", found {value!r}")
-        values["on_inconclusive"] = value
+        config = replace(config, on_inconclusive=_on_inconclusive(table["on_inconclusive"], path))
     if "timeout" in table:
-        values["timeout"] = _positive_number(table["timeout"], f"{TABLE}.timeout", path)
+        config = replace(config, timeout=_positive_number(table["timeout"], f"{TABLE}.timeout", path))
     if "memory_mb" in table:
-        values["memory_mb"] = _positive_int(table["memory_mb"], f"{TABLE}.memory_mb", path)
+        config = replace(config, memory_mb=_bounded_int(table["memory_mb"], f"{TABLE}.memory_mb", path, MAX_MEMORY_MB))
+    if "max_file_kb" in table:
+        config = replace(config, max_file_kb=_bounded_int(table["max_file_kb"], f"{TABLE}.max_file_kb", path, MAX_MEMORY_MB))
     if "jobs" in table:
-        values["jobs"] = _positive_int(table["jobs"], f"{TABLE}.jobs", path)
+        config = replace(config, jobs=_positive_int(table["jobs"], f"{TABLE}.jobs", path))
     if "cache_dir" in table:
         value = table["cache_dir"]
         if not isinstance(value, str) or not value.strip():
             raise ConfigError(f"{path}: `{TABLE}.cache_dir` must be a non-empty string, found {value!r}")
-        values["cache_dir"] = value
+        config = replace(config, cache_dir=value)
     if "conditions" in table:
-        values["conditions"] = _condition_sets(table["conditions"], path)
+        config = replace(config, conditions=_condition_sets(table["conditions"], path))
     if "accuracy" in table:
-        values["accuracy"] = _accuracy(table["accuracy"], path)
-    return Config(path=path, root=root, **values)
+        config = replace(config, accuracy=_accuracy(table["accuracy"], path))
+    return config
 
 
-def _interval(value: Any, key: str, path: Path) -> tuple[float, float]:
+def _on_inconclusive(value: object, path: Path) -> OnInconclusive:
+    if value == "fail":
+        return "fail"
+    if value == "warn":
+        return "warn"
+    raise ConfigError(f"{path}: `{TABLE}.on_inconclusive` must be \"fail\" or \"warn\", found {value!r}")
+
+
+def _interval(value: object, key: str, path: Path) -> tuple[float, float]:
     if (
         not isinstance(value, list) or len(value) != 2
         or any(isinstance(v, bool) or not isinstance(v, (int, float)) or not math.isfinite(v) for v in value)
@@ -200,14 +228,14 @@ def _interval(value: Any, key: str, path: Path) -> tuple[float, float]:
     return float(value[0]), float(value[1])
 
 
-def _accuracy(value: Any, path: Path) -> AccuracyConfig:
+def _accuracy(value: object, path: Path) -> AccuracyConfig:
     key = f"{TABLE}.accuracy"
     if not isinstance(value, dict):
         raise ConfigError(f"{path}: `{key}` must be a table, found {_type_name(value)}")
     for item in value:
         if item not in ACCURACY_KEYS:
             raise ConfigError(f"{path}: unknown key `{key}.{item}` (known: {', '.join(ACCURACY_KEYS)})")
-    samples = _positive_int(value["samples"], f"{key}.samples", path) if "samples" in value else None
+    samples = _bounded_int(value["samples"], f"{key}.samples", path, MAX_ACCURACY_SAMPLES) if "samples" in value else None
     seed = value.get("seed")
     if seed is not None and (isinstance(seed, bool) or not isinstance(seed, int)):
         raise ConfigError(f"{path}: `{key}.seed` must be an integer, found {seed!r}")
@@ -223,7 +251,7 @@ def _accuracy(value: Any, path: Path) -> AccuracyConfig:
     return AccuracyConfig(samples, seed, default, tuple(ranges))
 
 
-def _condition_sets(value: Any, path: Path) -> tuple[NamedConditionSet, ...]:
+def _condition_sets(value: object, path: Path) -> tuple[NamedConditionSet, ...]:
     key = f"{TABLE}.conditions"
     if not isinstance(value, dict):
         raise ConfigError(f"{path}: `{key}` must be a table of condition sets, found {_type_name(value)}")

@@ -4,6 +4,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from verifier.model.accuracy import AccuracyEstimate, SideAccuracy
+from verifier.report.escape import shown_lines
 
 ACCURACY_DISCLAIMER = (
     "note: accuracy figures are a sampled estimate at random points, not a bound; rounding can be worse "
@@ -84,4 +85,4 @@ def render_accuracy_section(
         for estimate in estimates:
             lines.extend(accuracy_lines(estimate, side_names=names))
     lines.append(ACCURACY_DISCLAIMER)
-    return "\n".join(lines) + "\n"
+    return shown_lines(lines)

@@ -4,6 +4,7 @@ from __future__ import annotations
 from verifier.model.audit import AuditResult, OneSided
 from verifier.model.verdict import Verdict
 from verifier.report.common import EXACTNESS_REMINDER, summary_line, witness_values_text
+from verifier.report.escape import shown_lines
 from verifier.report.text import verdict_lines
 
 _DETAIL_WIDTH = 72
@@ -49,7 +50,9 @@ def _one_sided(items: tuple[OneSided, ...], where: str) -> list[str]:
 def render_audit_text(result: AuditResult) -> str:
     plan = result.plan
     lines = [f"audit of {plan.optimized} against {plan.reference}"]
-    rows = [(function_label(f.module, f.name), v.verdict, short_detail(v)) for f, v in result.function_verdicts()]
+    rows: list[tuple[str, str, str]] = [
+        (function_label(f.module, f.name), v.verdict, short_detail(v)) for f, v in result.function_verdicts()
+    ]
     extra = result.verdicts[len(plan.functions):]
     rows += [(v.claim.location.path, v.verdict, _short(v.reason)) for v in extra]
     if rows:
@@ -69,4 +72,4 @@ def render_audit_text(result: AuditResult) -> str:
     lines.append("")
     lines.append(summary_line(result.verdicts))
     lines.append(EXACTNESS_REMINDER)
-    return "\n".join(lines) + "\n"
+    return shown_lines(lines)

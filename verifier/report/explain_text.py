@@ -2,11 +2,13 @@
 from __future__ import annotations
 
 from verifier.model.explanation import (
+    CertificateText,
     ClaimExplanation,
     Explanation,
     ObligationExplanation,
 )
 from verifier.report.accuracy_text import ACCURACY_DISCLAIMER, accuracy_lines
+from verifier.report.escape import shown_lines
 from verifier.report.common import witness_values_text
 
 INDENT = "    "
@@ -45,22 +47,22 @@ def _obligation_lines(item: ObligationExplanation, several: bool) -> list[str]:
         lines.append(f"{ind}leading-term ideal, minimal generators: " + ", ".join(item.leading_generators))
     s = item.structure
     if s is not None:
-        n = f"{s.variable_count} variables"
+        variables = f"{s.variable_count} variables"
         if item.aux:
-            n += f" ({len(item.aux)} of them auxiliary)"
+            variables += f" ({len(item.aux)} of them auxiliary)"
         if s.dimension < 0:
             lines.append(f"{ind}condition variety: empty (1 is in the ideal)")
         elif s.zero_dimensional:
-            count = str(s.standard_monomial_count) if s.count_complete else f"more than {s.standard_monomial_count}"
-            lines.append(f"{ind}condition variety: dimension 0 in {n} (finitely many points)")
-            lines.append(f"{ind}standard monomials: {count} (the dimension of the quotient ring as a vector space,"
+            monomials = str(s.standard_monomial_count) if s.count_complete else f"more than {s.standard_monomial_count}"
+            lines.append(f"{ind}condition variety: dimension 0 in {variables} (finitely many points)")
+            lines.append(f"{ind}standard monomials: {monomials} (the dimension of the quotient ring as a vector space,"
                          " the number of complex solutions counted with multiplicity)")
             if item.standard_monomials is not None:
                 lines.append(f"{ind}  " + ", ".join(item.standard_monomials))
         else:
             free = ", ".join(item.independent_variables)
             qualifier = "" if s.dimension_exact else "at least "
-            lines.append(f"{ind}condition variety: dimension {qualifier}{s.dimension} in {n}; "
+            lines.append(f"{ind}condition variety: dimension {qualifier}{s.dimension} in {variables}; "
                          f"independent modulo the leading terms: {free}")
     lines.append(f"{ind}normal form of the left side:  {item.left_normal_form}")
     lines.append(f"{ind}normal form of the right side: {item.right_normal_form}")
@@ -68,18 +70,7 @@ def _obligation_lines(item: ObligationExplanation, several: bool) -> list[str]:
     if item.difference_description:
         lines.append(f"{ind}  in plain terms: {item.difference_description}")
     if item.certificate is not None:
-        power = item.certificate.power
-        target = "LEFT - RIGHT" if power == 1 else f"(LEFT - RIGHT)**{power}"
-        if item.certificate.multiplier is not None:
-            target = f"(LEFT - RIGHT) * ({item.certificate.multiplier})"
-        if not item.certificate.terms:
-            lines.append(f"{ind}certificate: {target} expands to 0")
-        else:
-            lines.append(f"{ind}certificate: {target} = sum of cofactor * generator:")
-            for cofactor, generator in item.certificate.terms:
-                lines.append(f"{ind}  ({cofactor}) * ({generator})")
-        if item.certificate.sign_note is not None:
-            lines.append(f"{ind}  sign argument: {item.certificate.sign_note}")
+        lines.extend(_certificate_lines(item.certificate, ind))
     if result is not None and result.witness is not None:
         w = result.witness
         how = "checked exactly" if w.exact else "checked with high-precision arithmetic"
@@ -111,4 +102,33 @@ def render_explanation(explanation: Explanation) -> str:
         lines.extend(claim_lines(item))
     if any(o.accuracy is not None for c in explanation.claims for o in c.obligations):
         lines.append(ACCURACY_DISCLAIMER)
-    return "\n".join(lines) + "\n"
+    return shown_lines(lines)
+
+
+def _identity_left(certificate: CertificateText) -> str | None:
+    """The side of the certificate's identity that equals sum(cofactor * generator), by proof kind."""
+    if certificate.kind == "conjugate":
+        return f"(LEFT - RIGHT) * ({certificate.multiplier})"
+    if certificate.kind == "real_square":
+        return "(LEFT - RIGHT)**2 + P"
+    if certificate.kind == "sign_contradiction":
+        return "F - ratio*S - constant"
+    if certificate.kind == "shift_contradiction":
+        return None  # no equation is used
+    return "LEFT - RIGHT" if certificate.power == 1 else f"(LEFT - RIGHT)**{certificate.power}"
+
+
+def _certificate_lines(certificate: CertificateText, ind: str) -> list[str]:
+    lines = []
+    left = _identity_left(certificate)
+    if left is None:
+        lines.append(f"{ind}certificate: no equation is needed")
+    elif not certificate.terms:
+        lines.append(f"{ind}certificate: {left} expands to 0")
+    else:
+        lines.append(f"{ind}certificate: {left} = sum of cofactor * generator:")
+        for cofactor, generator in certificate.terms:
+            lines.append(f"{ind}  ({cofactor}) * ({generator})")
+    if certificate.sign_note is not None:
+        lines.append(f"{ind}  sign argument: {certificate.sign_note}")
+    return lines

@@ -8,7 +8,9 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
+from verifier.model.skipped import Skipped
 from verifier.model.verdict import Verdict
+from verifier.report.escape import shown
 from verifier.report.common import (
     OnInconclusive,
     fails_run,
@@ -19,8 +21,9 @@ from verifier.report.common import (
 
 
 def escape_data(text: str) -> str:
-    # The escapes of the workflow-command format (GitHub Actions toolkit, common practice).
-    return text.replace("%", "%25").replace("\r", "%0D").replace("\n", "%0A")
+    # The escapes of the workflow-command format (GitHub Actions toolkit, common practice), after the
+    # control characters other than newlines are made visible (the log is shown on a terminal).
+    return shown(text.replace("%", "%25").replace("\r", "%0D").replace("\n", "%0A"))
 
 
 def escape_property(text: str) -> str:
@@ -48,8 +51,12 @@ def annotation(verdict: Verdict, on_inconclusive: OnInconclusive) -> str | None:
 
 
 def render_github(
-    verdicts: Sequence[Verdict], *, version: str, on_inconclusive: OnInconclusive = "fail"
+    verdicts: Sequence[Verdict], *, version: str, on_inconclusive: OnInconclusive = "fail",
+    skipped: Sequence[Skipped] = (),
 ) -> str:
     lines = [line for v in ordered(verdicts) if (line := annotation(v, on_inconclusive)) is not None]
+    for item in skipped:
+        lines.append(f"::warning file={escape_property(item.path)},title={escape_property('idealcheck: not read')}"
+                     f"::{escape_data(item.path + ': ' + item.reason)}")
     lines.append(f"::notice title={escape_property('idealcheck ' + version)}::{escape_data(summary_line(verdicts))}")
     return "\n".join(lines) + "\n"

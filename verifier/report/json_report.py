@@ -5,8 +5,10 @@ import json
 from collections.abc import Sequence
 from typing import Any
 
+from verifier.model.skipped import Skipped
 from verifier.model.verdict import Verdict
 from verifier.report.common import ordered, summary_counts
+from verifier.report.escape import portable_tree
 
 
 def claim_object(verdict: Verdict) -> dict[str, Any]:
@@ -42,10 +44,16 @@ def claim_object(verdict: Verdict) -> dict[str, Any]:
     }
 
 
-def render_json(verdicts: Sequence[Verdict], *, version: str) -> str:
+def skipped_object(item: Skipped) -> dict[str, Any]:
+    return {"path": item.path, "kind": item.kind, "reason": item.reason}
+
+
+def render_json(verdicts: Sequence[Verdict], *, version: str, skipped: Sequence[Skipped] = ()) -> str:
     document = {
         "tool": {"name": "idealcheck", "version": version},
         "claims": [claim_object(v) for v in ordered(verdicts)],
         "summary": summary_counts(verdicts),
+        "skipped": [skipped_object(item) for item in skipped],  # not read, with the reason
     }
-    return json.dumps(document, indent=2, ensure_ascii=False) + "\n"
+    # names that are not UTF-8 appear as \\xNN escapes: the document always encodes
+    return json.dumps(portable_tree(document), indent=2, ensure_ascii=False) + "\n"

@@ -10,6 +10,7 @@ from __future__ import annotations
 import xml.etree.ElementTree as ET
 from collections.abc import Sequence
 
+from verifier.model.skipped import Skipped
 from verifier.model.verdict import Verdict
 from verifier.report.common import (
     OnInconclusive,
@@ -19,8 +20,18 @@ from verifier.report.common import (
     ordered,
     problem_message,
 )
+from verifier.report.escape import xml_text
 
 Outcome = str  # "passed", "failure", "error", "skipped"
+
+
+def _clean(element: ET.Element) -> None:
+    """Every attribute and text made representable in XML 1.0 (control characters, undecodable bytes)."""
+    for item in element.iter():
+        for key, value in item.attrib.items():
+            item.attrib[key] = xml_text(value)
+        if item.text is not None:
+            item.text = xml_text(item.text)
 
 
 def outcome(verdict: Verdict, on_inconclusive: OnInconclusive) -> Outcome:
@@ -45,7 +56,8 @@ def test_names(verdicts: Sequence[Verdict]) -> list[str]:
 
 
 def render_junit(
-    verdicts: Sequence[Verdict], *, version: str, on_inconclusive: OnInconclusive = "fail"
+    verdicts: Sequence[Verdict], *, version: str, on_inconclusive: OnInconclusive = "fail",
+    skipped: Sequence[Skipped] = (),
 ) -> str:
     items = ordered(verdicts)
     outcomes = [outcome(v, on_inconclusive) for v in items]
@@ -68,6 +80,8 @@ def render_junit(
     )
     properties = ET.SubElement(suite, "properties")
     ET.SubElement(properties, "property", {"name": "idealcheck.version", "value": version})
+    for item in skipped:  # files and folders left out unread, with the reason
+        ET.SubElement(properties, "property", {"name": "idealcheck.not-read", "value": f"{item.path}: {item.reason}"})
     for verdict, name, kind in zip(items, test_names(items), outcomes):
         loc = verdict.claim.location
         case = ET.SubElement(
@@ -94,5 +108,6 @@ def render_junit(
         else:
             out = ET.SubElement(case, "system-out")
             out.text = f"proved ({verdict.method})" if verdict.method else "proved"
+    _clean(suites)
     ET.indent(suites)
     return ET.tostring(suites, encoding="unicode", xml_declaration=True) + "\n"

@@ -17,6 +17,7 @@ from pathlib import Path
 from typing import Any
 from urllib.parse import quote
 
+from verifier.model.skipped import Skipped
 from verifier.model.verdict import Verdict
 from verifier.report.common import (
     OnInconclusive,
@@ -25,6 +26,7 @@ from verifier.report.common import (
     ordered,
     problem_message,
 )
+from verifier.report.escape import portable_tree
 
 SCHEMA_URI = "https://docs.oasis-open.org/sarif/sarif/v2.1.0/errata01/os/schemas/sarif-schema-2.1.0.json"
 SOURCE_ROOT = "%SRCROOT%"
@@ -108,7 +110,8 @@ def repository_uri(path: str, cwd: str | None, repository_root: str | None) -> s
         relative = os.path.relpath(absolute, repository_root)
         if not relative.startswith(".."):
             path = relative
-    return quote(path.replace(os.sep, "/"))
+    # a name that is not UTF-8 keeps its bytes as %XX
+    return quote(path.replace(os.sep, "/").encode("utf-8", "surrogateescape"))
 
 
 def _fingerprint(uri: str, text: str, occurrence: int) -> str:
@@ -159,6 +162,12 @@ def _base_ids(repository_root: str | None) -> dict[str, Any]:
                           "description": {"text": "The root of the checked repository."}}}
 
 
+def _notification(item: Skipped, cwd: str | None, repository_root: str | None) -> dict[str, Any]:
+    artifact = {"uri": repository_uri(item.path, cwd, repository_root), "uriBaseId": SOURCE_ROOT}
+    return {"level": "warning", "message": {"text": f"not read: {item.path}: {item.reason}"},
+            "locations": [{"physicalLocation": {"artifactLocation": artifact}}]}
+
+
 def _document(version: str, results: list[dict[str, Any]], invocation: dict[str, Any],
               repository_root: str | None) -> str:
     document = {
@@ -175,7 +184,7 @@ def _document(version: str, results: list[dict[str, Any]], invocation: dict[str,
             }
         ],
     }
-    return json.dumps(document, indent=2, ensure_ascii=False) + "\n"
+    return json.dumps(portable_tree(document), indent=2, ensure_ascii=False) + "\n"
 
 
 def render_sarif(
@@ -185,8 +194,11 @@ def render_sarif(
     on_inconclusive: OnInconclusive = "fail",
     cwd: str | None = None,
     repository_root: str | None = None,
+    skipped: Sequence[Skipped] = (),
 ) -> str:
-    """The SARIF log; with ``cwd`` and ``repository_root`` the URIs are relative to the repository root."""
+    """The SARIF log; with ``cwd`` and ``repository_root`` the URIs are relative to the repository root.
+
+    ``skipped`` (files and folders left out unread) become tool-execution notifications."""
     results: list[dict[str, Any]] = []
     seen: dict[tuple[str, str], int] = {}
     for verdict in ordered(verdicts):
@@ -197,7 +209,10 @@ def render_sarif(
         occurrence = seen.get(key, 0)
         seen[key] = occurrence + 1
         results.append(_result(verdict, on_inconclusive, uri, occurrence))
-    return _document(version, results, {"executionSuccessful": True}, repository_root)
+    invocation: dict[str, Any] = {"executionSuccessful": True}
+    if skipped:
+        invocation["toolExecutionNotifications"] = [_notification(i, cwd, repository_root) for i in skipped]
+    return _document(version, results, invocation, repository_root)
 
 
 def render_sarif_failure(message: str, *, version: str, repository_root: str | None = None) -> str:

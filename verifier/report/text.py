@@ -9,7 +9,9 @@ from __future__ import annotations
 from collections.abc import Sequence
 from typing import Literal
 
+from verifier.model.skipped import Skipped
 from verifier.model.verdict import ObligationResult, Verdict, Witness
+from verifier.report.escape import shown
 from verifier.report.common import (
     BRIEF_CAUTION,
     OnInconclusive,
@@ -30,6 +32,10 @@ INDENT = "    "
 _COLOURS = {"proved": "32", "refuted": "1;31", "inconclusive": "33", "error": "1;35"}
 # The specific part of a refutation's reason follows this generic opening (the algebra layer's wording).
 _GENERIC_REFUTATION = "the sides differ at the witness, where every condition holds; "
+
+
+class Escaped(str):
+    """A line whose pieces from the code under review are already escaped, so it may hold our colour codes."""
 
 
 def coloured(word: str, color: bool) -> str:
@@ -57,15 +63,20 @@ def _witness_line(witness: Witness, indent: str, names: tuple[str, str]) -> str:
 def _obligation_lines(result: ObligationResult, names: tuple[str, str], *, color: bool,
                       short: bool = False) -> list[str]:
     label = result.label or "obligation"
-    head = f"{INDENT}- {label}: {coloured(result.verdict, color)}"
+    head = f"{INDENT}- {shown(label)}: {coloured(result.verdict, color)}"
     if result.method:
-        head += f" ({result.method})"
-    lines = [head]
+        head += f" ({shown(result.method)})"
+    lines: list[str] = [Escaped(head)]
     inner = INDENT + "  "
-    if result.verdict != "proved" and result.reason:
-        lines.append(f"{inner}reason: {result.reason}")
-    if result.counter_normal_form is not None:
-        lines.append(f"{inner}counter-normal-form: {result.counter_normal_form}")
+    reason, cnf = result.reason, result.counter_normal_form
+    if short and cnf is not None and reason.startswith(_GENERIC_REFUTATION):
+        # as for a one-obligation claim: the specific part of the reason beside the counter-normal-form
+        lines.append(f"{inner}counter-normal-form: {cnf} ({reason[len(_GENERIC_REFUTATION):]})")
+        reason, cnf = "", None
+    if result.verdict != "proved" and reason:
+        lines.append(f"{inner}reason: {reason}")
+    if cnf is not None:
+        lines.append(f"{inner}counter-normal-form: {cnf}")
     if result.witness is not None:
         if short:
             lines.append(_witness_line(result.witness, inner, names))
@@ -75,7 +86,8 @@ def _obligation_lines(result: ObligationResult, names: tuple[str, str], *, color
 
 
 def _header(verdict: Verdict, color: bool) -> str:
-    return f"{verdict.claim.location}: {coloured(verdict.verdict, color)}: {verdict.claim.text}"
+    location, text = shown(str(verdict.claim.location)), shown(verdict.claim.text)
+    return Escaped(f"{location}: {coloured(verdict.verdict, color)}: {text}")
 
 
 def verdict_lines(verdict: Verdict, *, color: bool = False) -> list[str]:
@@ -87,10 +99,10 @@ def verdict_lines(verdict: Verdict, *, color: bool = False) -> list[str]:
     if note:
         lines.append(f"{INDENT}{note}")
     if verdict.method:
-        method = verdict.method
+        method_text: str = verdict.method
         if verdict.cached:
-            method += " (from cache, certificate re-checked)" if verdict.verdict == "proved" else " (from cache)"
-        lines.append(f"{INDENT}method: {method}")
+            method_text += " (from cache, certificate re-checked)" if verdict.verdict == "proved" else " (from cache)"
+        lines.append(f"{INDENT}method: {method_text}")
     elif verdict.cached:
         lines.append(f"{INDENT}from cache (witness re-checked)")
     if verdict.reason:
@@ -125,7 +137,9 @@ def failure_lines(verdict: Verdict, *, color: bool = False) -> list[str]:
     if cnf is not None and reason.startswith(_GENERIC_REFUTATION):
         lines.append(f"{INDENT}counter-normal-form: {cnf} ({reason[len(_GENERIC_REFUTATION):]})")
     else:
-        if reason and not (several and reason.startswith("all ")):
+        # with several obligations each failing one shows its own reason (which the summary repeats)
+        repeated = several and any(r.reason and reason.endswith(r.reason) for r in verdict.obligations)
+        if reason and not (several and reason.startswith("all ")) and not repeated:
             lines.append(f"{INDENT}reason: {reason}")
         if cnf is not None:
             lines.append(f"{INDENT}counter-normal-form: {cnf}")
@@ -147,12 +161,23 @@ def passing_line(verdict: Verdict, *, color: bool = False, width: int | None = N
     else:
         note = expectation_note(verdict) if expectation_met(verdict) else None
         tail = f" ({note or 'allowed by on_inconclusive = warn: ' + verdict.reason})"
-    text = verdict.claim.text
-    head = f"{verdict.claim.location}: {verdict.verdict}: "
+    # Escaped piece by piece (not line by line) so that the colour codes around the verdict survive.
+    text, location, tail = shown(verdict.claim.text), shown(str(verdict.claim.location)), shown(tail)
+    head = f"{location}: {verdict.verdict}: "
     if width is not None and len(head) + len(text) + len(tail) > width:
         room = max(12, width - len(head) - len(tail) - 3)
         text = text[:room].rstrip() + "..." if len(text) > room else text
-    return f"{verdict.claim.location}: {coloured(verdict.verdict, color)}: {text}{tail}"
+    return Escaped(f"{location}: {coloured(verdict.verdict, color)}: {text}{tail}")
+
+
+def skipped_lines(skipped: Sequence[Skipped]) -> list[str]:
+    """What was left out unread, one line each (nothing when everything was read)."""
+    if not skipped:
+        return []
+    noun = "path" if len(skipped) == 1 else "paths"
+    lines = [f"not read ({len(skipped)} {noun}; claims in them, if any, were not checked):"]
+    lines.extend(f"{INDENT}{item.path}: {item.reason}" for item in skipped)
+    return lines
 
 
 def render_text(
@@ -163,8 +188,10 @@ def render_text(
     color: bool = False,
     on_inconclusive: OnInconclusive = "fail",
     width: int | None = None,
+    skipped: Sequence[Skipped] = (),
 ) -> str:
-    """The report; ``width`` (a terminal's columns) cuts long claim texts of the one-line passing claims."""
+    """The report; ``width`` (a terminal's columns) cuts long claim texts of the one-line passing claims;
+    ``skipped`` lists what was not read."""
     items = ordered(verdicts)
     failing = [v for v in items if fails_run(v, on_inconclusive)]
     passing = [v for v in items if not fails_run(v, on_inconclusive)]
@@ -179,7 +206,9 @@ def render_text(
             if failing and passing:
                 lines.append("")
             lines.extend(passing_line(v, color=color, width=width) for v in passing)
+    lines.extend(skipped_lines(skipped))
     if detail != "quiet" and any(v.verdict == "proved" for v in items):
         lines.append(BRIEF_CAUTION)
     lines.append(summary_line(verdicts))
-    return "\n".join(lines) + "\n"
+    # Lines from the code under review are escaped here; Escaped lines were escaped piece by piece.
+    return "\n".join(line if isinstance(line, Escaped) else shown(line) for line in lines) + "\n"

@@ -1,7 +1,9 @@
 """Test helper: Python-syntax text -> claim expression trees (whitelisted ast nodes only, no eval).
 
-The project's claim-language parser lives in the claims layer; the witness tests build their trees with
-this small stand-in so that they do not depend on it.
+The project's claim-language parser lives in the claims layer; tests of the algebra, the features and
+the reports build their trees with this small stand-in so that they do not depend on it.  A decimal
+literal stands for its exact decimal value, as in the claim language (``0.1`` is 1/10, and
+``3.14159265358979323846`` keeps all its digits rather than those of the nearest double).
 """
 from __future__ import annotations
 

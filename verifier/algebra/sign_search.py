@@ -1,0 +1,261 @@
+"""The search for real (sign) proofs, untrusted: each finder returns a certificate the kernel re-checks.
+
+Ideal membership works over the complex numbers and cannot tell ``sqrt(u)`` from ``-sqrt(u)``, so claims
+such as ``sqrt(x**2) == x given x >= 0`` or ``sqrt(x)*sqrt(y) == sqrt(x*y)`` are out of its reach.  The
+conjugate argument: write the difference as ``f = A*r + B`` with r a principal square root (r >= 0) and
+A, B free of r.  If
+  (1) ``f * (A*r - B)`` lies in the ideal of the conditions, then ``(A*r)**2 == B**2`` wherever they hold;
+  (2) ``-A*B`` is congruent modulo the ideal to a polynomial P whose terms all have positive coefficients
+      and whose odd powers are of quantities known to be >= 0 (principal roots, exponentials, variables
+      with a sign hypothesis), then ``-A*B >= 0`` wherever the conditions hold.
+Then ``A*r == B != 0`` is impossible (r >= 0 would give A*B > 0), so ``A*r == -B``, i.e. ``f == 0``.
+Besides it: contradictory sign hypotheses (directly, or after shifting a variable by its lower bound)
+and a real sum of squares.  The certificate classes are in ``model/certificate.py``, their checkers in
+``kernel/checkers.py``; nothing here decides that a claim is proved.
+"""
+from __future__ import annotations
+
+from fractions import Fraction
+from typing import Iterator, Sequence
+
+from sympy.polys.rings import PolyElement
+
+from verifier.algebra.facts import nonnegative_symbols
+from verifier.algebra.groebner import GroebnerResult, membership_cofactors, reduce
+from verifier.algebra.kernel.checkers import contradicts, shift_contradicts, shifted_negation
+from verifier.algebra.kernel.polynomial import fraction_text, poly_to_data, sign_pattern_ok
+from verifier.algebra.translate import Translation
+from verifier.model.certificate import (
+    PolyData,
+    ConjugateCertificate,
+    RealSquareCertificate,
+    ShiftContradictionCertificate,
+    SignContradictionCertificate,
+)
+
+
+def _split_linear(f: PolyElement, index: int, radicand: PolyElement) -> tuple[PolyElement, PolyElement]:
+    """f == A*r + B modulo r**2 - radicand, with A and B free of r (r is generator ``index``)."""
+    ring = f.ring
+    a, b = ring.zero, ring.zero
+    for monom, coeff in f.terms():
+        e = monom[index]
+        rest = ring({monom[:index] + (0,) + monom[index + 1:]: coeff})
+        part = rest * radicand ** (e // 2)
+        if e % 2:
+            a += part
+        else:
+            b += part
+    return a, b
+
+
+def _split_plain(f: PolyElement, index: int) -> tuple[PolyElement, PolyElement] | None:
+    """f == A*v + B with A, B free of v, when f has degree 1 in v."""
+    if f.degree(index) != 1:
+        return None
+    ring = f.ring
+    a, b = ring.zero, ring.zero
+    for monom, coeff in f.terms():
+        rest = ring({monom[:index] + (0,) + monom[index + 1:]: coeff})
+        if monom[index]:
+            a += rest
+        else:
+            b += rest
+    return a, b
+
+
+def _root_candidates(tr: Translation, positive: Sequence[str]) -> Iterator[tuple[int, PolyElement, PolyElement]]:
+    """(index, A, B) for every nonnegative symbol v with f == A*v + B (radicals after v**2 -> radicand)."""
+    f = tr.difference
+    symbols = [str(x) for x in tr.ring.symbols]
+    radicands: dict[int, PolyElement] = {}
+    for gen in tr.generators:
+        if gen.kind == "radical" and gen.variable in symbols:
+            index = symbols.index(gen.variable)
+            radicand = tr.ring.gens[index] ** 2 - gen.poly
+            if radicand.degree(index) <= 0:
+                radicands[index] = radicand
+    for name in positive:
+        index = symbols.index(name)
+        if f.degree(index) <= 0:
+            continue
+        if index in radicands:
+            yield (index, *_split_linear(f, index, radicands[index]))
+        else:
+            split = _split_plain(f, index)
+            if split is not None:
+                yield (index, *split)
+
+
+def _nonnegative_form(value: PolyElement, tr: Translation, basis: GroebnerResult, positive_index: set[int],
+                      deadline: float | None) -> tuple[PolyElement, list[tuple[PolyElement, object]]] | None:
+    """(P, [(S, lam)]) with value == P + sum(lam*S) modulo the ideal, P of a nonnegative sign pattern,
+    S sign hypotheses (S >= 0) and lam > 0; or None."""
+    _, p = reduce(value, basis.basis, deadline=deadline) if basis.basis else ((), value)
+    if sign_pattern_ok(p, positive_index):
+        return p, []
+    for hypothesis, _strict in tr.signs:
+        _, h = reduce(hypothesis, basis.basis, deadline=deadline) if basis.basis else ((), hypothesis)
+        if not h or not p:
+            continue
+        lam = p.LC / h.LC if p.LM == h.LM else None
+        if lam is None or lam <= 0:
+            continue
+        rest = p - h * lam
+        if sign_pattern_ok(rest, positive_index):
+            return rest, [(hypothesis, lam)]
+    return None
+
+
+def _fraction(value: object) -> Fraction:
+    return Fraction(int(value.numerator), int(value.denominator))  # type: ignore[attr-defined]
+
+
+def _claim_part(tr: Translation) -> tuple[tuple[str, ...], PolyData, tuple[PolyData, ...]]:
+    """(symbols, target, generators) of the certificate of ``tr``: what ties it to the claim."""
+    return (tuple(str(s) for s in tr.ring.symbols), poly_to_data(tr.difference),
+            tuple(poly_to_data(g.poly) for g in tr.generators))
+
+
+def find_sign_proof(tr: Translation, basis: GroebnerResult, *,
+                    deadline: float | None) -> ConjugateCertificate | None:
+    """A certificate of the conjugate argument for ``tr.difference``, or None."""
+    f = tr.difference
+    ring = tr.ring
+    symbols = [str(s) for s in ring.symbols]
+    positive = nonnegative_symbols(tr)
+    positive_index = {symbols.index(n) for n in positive}
+    for index, a, b in _root_candidates(tr, positive):
+        if not a or not b:
+            continue
+        r = ring.gens[index]
+        multiplier = a * r - b
+        cofactors = membership_cofactors(f * multiplier, basis, deadline=deadline)
+        if cofactors is None:
+            continue
+        form = _nonnegative_form(-a * b, tr, basis, positive_index, deadline)
+        if form is None:
+            continue
+        p, hypotheses = form
+        combination = -a * b - p - sum((h * lam for h, lam in hypotheses), ring.zero)
+        p_cofactors = membership_cofactors(combination, basis, deadline=deadline) if combination else \
+            tuple(ring.zero for _ in tr.generators)
+        if p_cofactors is None:
+            continue
+        names, target, generators = _claim_part(tr)
+        return ConjugateCertificate(
+            names, target, generators, tuple(poly_to_data(c) for c in cofactors),
+            root=symbols[index],
+            multiplier=poly_to_data(multiplier),
+            nonnegative=poly_to_data(p),
+            nonnegative_cofactors=tuple(poly_to_data(c) for c in p_cofactors),
+            nonnegative_symbols=positive,
+            hypotheses=tuple((poly_to_data(h), fraction_text(_fraction(lam))) for h, lam in hypotheses),
+        )
+    return None
+
+
+def find_sign_contradiction(tr: Translation, basis: GroebnerResult | None, *,
+                            deadline: float | None) -> SignContradictionCertificate | None:
+    """A certificate that the sign hypotheses cannot hold together (for example a branch ``a <= b``
+    under ``given a > b``), or None.  Each hypothesis is P > 0 or P >= 0; modulo the ideal, either one P
+    is a constant of the wrong sign, or P1 == ratio*P2 with ratio < 0 and one of them strict."""
+    if not tr.signs:
+        return None
+    ring = tr.ring
+
+    def normal(p: PolyElement) -> PolyElement:
+        if basis is None or not basis.basis:
+            return p
+        return reduce(p, basis.basis, deadline=deadline)[1]
+
+    def cofactors_of(p: PolyElement) -> tuple | None:
+        if not p:
+            return tuple(ring.zero for _ in tr.generators)
+        if basis is None:
+            return None
+        found = membership_cofactors(p, basis, deadline=deadline)
+        return None if found is None else tuple(found)
+
+    normals = [normal(p) for p, _ in tr.signs]
+    for i, (p1, strict1) in enumerate(tr.signs):
+        n1 = normals[i]
+        options: list[tuple[PolyElement, bool, Fraction, Fraction]] = []
+        if n1.is_ground:
+            constant = _fraction(n1.LC) if n1 else Fraction(0)
+            options.append((ring.zero, False, Fraction(0), constant))
+        for j, (p2, strict2) in enumerate(tr.signs):
+            n2 = normals[j]
+            if j == i or not n1 or not n2 or n1.is_ground:
+                continue
+            ratio = _fraction(n1.LC) / _fraction(n2.LC)
+            rest = n1 - n2 * ring.domain.convert(ratio.numerator) / ratio.denominator
+            if ratio < 0 and rest.is_ground:
+                # x - 2 > 0 and 1 - x > 0: x - 2 == -(1 - x) - 1
+                options.append((p2, strict2, ratio, _fraction(rest.LC) if rest else Fraction(0)))
+        for p2, strict2, ratio, constant in options:
+            if not contradicts(strict1, strict2, ratio, constant):
+                continue
+            combination = p1 - p2 * ring.domain.convert(ratio.numerator) / ratio.denominator - constant
+            cofactors = cofactors_of(combination)
+            if cofactors is None:
+                continue
+            names, target, generators = _claim_part(tr)
+            return SignContradictionCertificate(
+                names, target, generators, tuple(poly_to_data(c) for c in cofactors),
+                first=poly_to_data(p1), first_strict=strict1,
+                second=poly_to_data(p2) if p2 else (), second_strict=strict2 if p2 else False,
+                ratio=fraction_text(ratio), constant=fraction_text(constant),
+            )
+    return None
+
+
+def find_real_square(tr: Translation, basis: GroebnerResult, *,
+                     deadline: float | None) -> RealSquareCertificate | None:
+    """f**2 + P in the ideal with P >= 0 by its sign pattern: then f**2 == -P <= 0, so f == 0 over the
+    reals (x == 0 given x**2 + y**2 == 0)."""
+    if not basis.basis:
+        return None
+    f = tr.difference
+    symbols = [str(x) for x in tr.ring.symbols]
+    positive = nonnegative_symbols(tr)
+    _, remainder = reduce(f**2, basis.basis, deadline=deadline)
+    p = -remainder
+    if not sign_pattern_ok(p, {symbols.index(n) for n in positive}):
+        return None
+    cofactors = membership_cofactors(f**2 + p, basis, deadline=deadline)
+    if cofactors is None:
+        return None
+    names, target, generators = _claim_part(tr)
+    return RealSquareCertificate(names, target, generators,
+                                 tuple(poly_to_data(c) for c in cofactors), poly_to_data(p), positive)
+
+
+def find_shift_contradiction(tr: Translation) -> ShiftContradictionCertificate | None:
+    """Sign hypotheses that contradict once a variable is shifted by its lower bound (see
+    ``ShiftContradictionCertificate``); the variable must not occur in any other nonnegative symbol's role."""
+    symbols = [str(x) for x in tr.ring.symbols]
+    positive = nonnegative_symbols(tr)
+    for bound, bound_strict in tr.signs:
+        terms = bound.terms()
+        linear = [(m, c) for m, c in terms if sum(m) == 1]
+        if len(linear) != 1 or linear[0][1] != 1 or any(sum(m) > 1 for m, _ in terms):
+            continue
+        index = linear[0][0].index(1)
+        shift = -_fraction(bound.coeff(1)) if len(terms) == 2 else Fraction(0)
+        if symbols[index] in positive and shift < 0:
+            continue  # the shift would lose the known sign of the variable itself
+        positive_index = {symbols.index(n) for n in positive if n != symbols[index]}
+        for other, other_strict in tr.signs:
+            if other == bound or other.degree(index) <= 0:
+                continue
+            q = shifted_negation(other, index, shift)
+            if shift_contradicts(q, index, bound_strict, other_strict, positive_index):
+                names, target, generators = _claim_part(tr)
+                return ShiftContradictionCertificate(
+                    names, target, generators,
+                    bound=poly_to_data(bound), bound_strict=bound_strict, variable=symbols[index],
+                    shift=fraction_text(shift), other=poly_to_data(other), other_strict=other_strict,
+                    nonnegative_symbols=tuple(n for n in positive if n != symbols[index]),
+                )
+    return None

@@ -1,0 +1,492 @@
+"""The translation rules: expression trees -> polynomials over QQ, with auxiliary variables and generators.
+
+Every construct that is not a polynomial gets a fresh variable and the equations that tie it down:
+- a division by u: an inverse variable d per irreducible factor of u, with ``d*u - 1`` (u assumed non-zero);
+- ``sqrt(u)``: a radical variable r with ``r**2 - u`` (u assumed >= 0; equal radicands share one r);
+  ``hypot(a, b)`` is ``sqrt(a**2 + b**2)`` and ``fma(a, b, c)`` is ``a*b + c``;
+- ``sin``/``cos`` of integer-linear combinations of angles: one (s, c) pair per base angle with
+  ``s**2 + c**2 - 1``; the multiple-angle and addition formulas are expanded exactly; ``tan`` is sin/cos;
+- ``exp`` of linear combinations: one e and its inverse per base quantity with ``e*ei - 1``;
+- ``log`` and opaque calls: one variable per distinct argument (nothing else is known about it), except
+  that the logarithm of a product of variables with positive hypotheses splits into a sum;
+- ``pi``: an opaque constant whose sine and cosine at pi/n (n = 1, 2, 3, 4, 6) are known exactly;
+- a square root of a rational constant: one radical per prime of its square-free part.
+Radicands (>= 0) and log arguments (> 0) join the sign hypotheses.  Each auxiliary variable is shown in
+the original variables when a polynomial is printed.  The driver is verifier/algebra/translate.py.
+"""
+from __future__ import annotations
+
+import math
+from fractions import Fraction
+from typing import Iterator, Literal, Sequence
+
+from sympy import QQ, Symbol, factorint
+from sympy.polys.orderings import grevlex
+from sympy.polys.rings import PolyElement, PolyRing
+
+from verifier.algebra.polytext import format_poly, parenthesized, poly_key
+from verifier.model.explanation import AuxKind, AuxVariable
+from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold, preorder
+from verifier.model.functions import FUNCTIONS, rational_sqrt
+
+GeneratorKind = Literal["equation", "nonzero", "inverse", "radical", "trig", "exp"]
+
+# Auxiliary names start with "$": no claim-language name (identifier, dotted name, subscript) can.
+AUX_PREFIX = "$"
+MAX_POWER = 4096  # exponents beyond this are refused rather than expanded
+
+
+class TranslationError(Exception):
+    """The obligation uses something the polynomial translation cannot represent (reason is specific)."""
+
+
+class Translator:
+    """The state of one translation: the ring (grown by each auxiliary variable), the generators, the
+    assumptions, and the canonical keys that let equal constructs share one auxiliary variable."""
+
+    def __init__(self, variables: Sequence[str]):
+        self.variables = list(variables)
+        self.ring = PolyRing([Symbol(n) for n in self.variables] or [Symbol("$one")], QQ, grevlex)
+        self.aux: list[AuxVariable] = []
+        self.generators: list[tuple[PolyElement, GeneratorKind, str, str]] = []
+        self.assumed: list[str] = []
+        self._atoms: dict[tuple, str] = {}  # canonical key -> aux variable name
+        self._inverse_of: dict[str, PolyElement] = {}  # inverse variable -> the factor it inverts
+        self._memo: dict[Expr, PolyElement] = {}
+        self._counter = 0
+        self._angle_scale: dict[tuple, int] = {}  # direction key -> lcm of coefficient denominators
+        self.domain_signs: list[tuple[PolyElement, bool]] = []  # radicands >= 0, log arguments > 0
+        self.positive_variables: set[str] = set()  # variables with a hypothesis v > 0 (or v >= c > 0)
+        self._exp_scale: dict[tuple, int] = {}
+
+    # -- ring management
+
+    def lift(self, p: PolyElement) -> PolyElement:
+        return p if p.ring is self.ring else p.set_ring(self.ring)
+
+    def const(self, value: Fraction | int) -> PolyElement:
+        value = Fraction(value)
+        return self.ring.ground_new(QQ(value.numerator, value.denominator))
+
+    def _new_symbol(self, stem: str, meaning: str, kind: AuxKind) -> str:
+        self._counter += 1
+        name = f"{AUX_PREFIX}{stem}{self._counter}"
+        self.aux.append(AuxVariable(name, meaning, kind))
+        self.ring = PolyRing(list(self.ring.symbols) + [Symbol(name)], QQ, grevlex)
+        return name
+
+    def gen(self, name: str) -> PolyElement:
+        index = [str(s) for s in self.ring.symbols].index(name)
+        return self.ring.gens[index]
+
+    def printed(self, p: PolyElement) -> str:
+        return format_poly(p, {a.name: a.meaning for a in self.aux})
+
+    def add_generator(self, poly: PolyElement, kind: GeneratorKind, meaning: str, variable: str = "") -> None:
+        self.generators.append((poly, kind, meaning, variable))
+
+    # -- expressions
+
+    def value(self, expr: Expr) -> PolyElement:
+        """``expr`` as a polynomial in the current ring; equal sub-expressions are translated once."""
+        return self.lift(fold(expr, _Polynomials(self), self._memo))
+
+    # -- expressions
+
+    def atom(self, key: tuple, stem: str, meaning: str, kind: AuxKind) -> PolyElement:
+        name = self._atoms.get(key)
+        if name is None:
+            name = self._new_symbol(stem, meaning, kind)
+            self._atoms[key] = name
+        return self.gen(name)
+
+    def power(self, base: PolyElement, exponent: Fraction) -> PolyElement:
+        if exponent.denominator not in (1, 2):
+            raise TranslationError(f"power {exponent} is neither an integer nor a half-integer")
+        if abs(exponent.numerator) > MAX_POWER:
+            raise TranslationError(f"exponent {exponent} is larger than {MAX_POWER}")
+        if exponent.denominator == 2:
+            base = self.sqrt(base)
+        k = exponent.numerator
+        if k >= 0:
+            return self.lift(base) ** k
+        if not base:
+            raise TranslationError("division by zero: a negative power of 0")
+        return self.inverse(base) ** (-k)
+
+    # -- non-polynomial constructs
+
+    def inverse(self, u: PolyElement, shown: str | None = None) -> PolyElement:
+        """1/u, with one inverse variable per irreducible factor of u (so equal denominators share).
+
+        ``shown`` names u in the report when it is a single factor (``cos(t)`` rather than its expansion).
+        """
+        u = self.lift(u)
+        if not u:
+            raise TranslationError("division by zero: a denominator is identically 0")
+        if u.is_ground:
+            c = u.LC
+            return self.const(Fraction(int(c.denominator), int(c.numerator)))
+        coeff, factors = u.factor_list()
+        if len(factors) != 1 or factors[0][1] != 1:
+            shown = None
+        result = self.const(Fraction(int(coeff.denominator), int(coeff.numerator)))
+        for factor, multiplicity in factors:
+            factor = self.lift(factor)
+            if factor.LC < 0:  # canonical sign, so that 1/(y - x) shares 1/(x - y)
+                factor = -factor
+                if multiplicity % 2:
+                    result = -result
+            inverse_factor = self._factor_inverse(factor, shown) ** multiplicity
+            result = self.lift(result) * self.lift(inverse_factor)
+        return self.lift(result)
+
+    def _factor_inverse(self, factor: PolyElement, shown: str | None = None) -> PolyElement:
+        # the inverse of an inverse variable is what it inverts; an exp variable has its own inverse
+        if len(factor.terms()) == 1 and factor.LC == 1:
+            monom = factor.LM
+            if sum(monom) == 1:
+                name = str(self.ring.symbols[monom.index(1)])
+                if name in self._inverse_of:
+                    return self.lift(self._inverse_of[name])
+                partner = self._exp_partner(name)
+                if partner is not None:
+                    return self.gen(partner)
+        key = ("inverse", poly_key(factor))
+        if key in self._atoms:
+            return self.gen(self._atoms[key])
+        if shown is None or factor.LC != 1:
+            shown = self.printed(factor)
+        name = self._new_symbol("d", f"1/{parenthesized(shown)}", "inverse")
+        self._atoms[key] = name
+        self._inverse_of[name] = factor
+        d = self.gen(name)
+        self.add_generator(d * self.lift(factor) - 1, "inverse", f"{shown} != 0", name)
+        self.assumed.append(f"{shown} != 0")
+        return d
+
+    def sqrt(self, u: PolyElement) -> PolyElement:
+        u = self.lift(u)
+        if u.is_ground:
+            value = Fraction(int(u.LC.numerator), int(u.LC.denominator)) if u else Fraction(0)
+            if value < 0:
+                raise TranslationError(f"square root of the negative constant {value}")
+            root = rational_sqrt(value)
+            if root is not None:
+                return self.const(root)
+            split = _split_constant_radicand(value)
+            if split is not None:
+                # sqrt(12) = 2*sqrt(3), sqrt(6) = sqrt(2)*sqrt(3): one radical per prime (all >= 0)
+                outside, primes = split
+                result = self.const(outside)
+                for prime in primes:
+                    key = ("sqrt", poly_key(self.const(prime)))
+                    radical = self.gen(self._atoms[key]) if key in self._atoms else self._new_radical(
+                        self.const(prime), key)
+                    result = self.lift(result) * self.lift(radical)
+                return self.lift(result)
+        else:
+            content, primitive = u.primitive()
+            content_value = Fraction(int(content.numerator), int(content.denominator))
+            root = rational_sqrt(content_value) if content_value > 0 else None
+            if root is not None and content_value != 1:
+                radical = self.sqrt(self.lift(primitive))
+                return self.const(root) * radical
+        key = ("sqrt", poly_key(u))
+        if key in self._atoms:
+            return self.gen(self._atoms[key])
+        return self._new_radical(u, key)
+
+    def _new_radical(self, u: PolyElement, key: tuple) -> PolyElement:
+        shown = self.printed(u)
+        name = self._new_symbol("r", f"sqrt({shown})", "radical")
+        self._atoms[key] = name
+        r = self.gen(name)
+        self.add_generator(r**2 - self.lift(u), "radical", f"sqrt({shown})**2 == {shown}", name)
+        if not u.is_ground:
+            self.assumed.append(f"{shown} >= 0 (square root)")
+            self.domain_signs.append((u, False))
+        return r
+
+    def call(self, function: str, args: Sequence[PolyElement]) -> PolyElement:
+        """A function of the table applied to translated arguments (translation rules: module docstring)."""
+        args = [self.lift(a) for a in args]
+        if function == "sqrt":
+            return self.sqrt(args[0])
+        if function == "hypot":
+            return self.sqrt(args[0] ** 2 + args[1] ** 2)
+        if function == "fma":
+            return args[0] * args[1] + args[2]
+        if function in ("sin", "cos", "tan"):
+            argument = args[0]
+            cos_value, sin_value = self.angle(argument)
+            if function == "sin":
+                return sin_value
+            if function == "cos":
+                return cos_value
+            inverse_cos = self.inverse(cos_value, f"cos({self.printed(self.lift(argument))})")
+            return self.lift(sin_value) * inverse_cos
+        if function == "exp":
+            return self.exponential(args[0])
+        if function == "log":
+            return self.logarithm(args[0])
+        raise TranslationError(f"unsupported function {function}")
+
+    def logarithm(self, u: PolyElement) -> PolyElement:
+        u = self.lift(u)
+        if u.is_ground and u == 1:
+            return self.const(0)
+        split = self._positive_factors(u)
+        if split is not None:
+            # log(c*x**2*y) = log(c) + 2*log(x) + log(y) when x, y > 0 are hypotheses of the claim
+            constant, factors = split
+            result = self._log_atom(self.const(constant)) if constant != 1 else self.const(0)
+            for factor, multiplicity in factors:
+                logarithm = self._log_atom(factor)  # may extend the ring: compute before lifting
+                result = self.lift(result) + multiplicity * self.lift(logarithm)
+            return self.lift(result)
+        return self._log_atom(u)
+
+    def opaque(self, name: str, args: Sequence[PolyElement]) -> PolyElement:
+        """One variable per opaque name and distinct translated arguments (pi is ``pi``)."""
+        args = [self.lift(a) for a in args]
+        key = ("opaque", name, tuple(poly_key(a) for a in args))
+        shown = f"{name}({', '.join(self.printed(a) for a in args)})" if args else name
+        return self.atom(key, "f", shown, "opaque")
+
+    def _log_atom(self, u: PolyElement) -> PolyElement:
+        u = self.lift(u)
+        shown = self.printed(u)
+        key = ("log", poly_key(u))
+        if key not in self._atoms:
+            self.assumed.append(f"{shown} > 0 (logarithm)")
+            if not u.is_ground:
+                self.domain_signs.append((u, True))
+        return self.atom(key, "l", f"log({shown})", "log")
+
+    def _positive_factors(self, u: PolyElement) -> tuple[Fraction, list[tuple[PolyElement, int]]] | None:
+        """u == c * prod(v**k) with c > 0 and every v a variable with a hypothesis v > 0 (or v >= c > 0)."""
+        if u.is_ground or len(u.terms()) != 1:
+            return None
+        monom, coeff = u.terms()[0]
+        constant = Fraction(int(coeff.numerator), int(coeff.denominator))
+        if constant <= 0:
+            return None
+        symbols = [str(x) for x in self.ring.symbols]
+        factors = []
+        for index, exponent in enumerate(monom):
+            if exponent:
+                if symbols[index] not in self.positive_variables:
+                    return None
+                factors.append((self.ring.gens[index], exponent))
+        return constant, factors
+
+    # -- angles and exponentials: split an argument into base directions with integer multiples
+
+    def _directions(self, arg: PolyElement) -> list[tuple[tuple, PolyElement, Fraction]]:
+        """Split arg into sum(coefficient * direction): one per linear original variable, one for the
+        primitive non-linear rest, one for the constant."""
+        arg = self.lift(arg)
+        symbols = [str(s) for s in self.ring.symbols]
+        linear: dict[int, Fraction] = {}
+        constant = Fraction(0)
+        rest = self.ring.zero
+        for monom, coeff in arg.terms():
+            value = Fraction(int(coeff.numerator), int(coeff.denominator))
+            degree = sum(monom)
+            if degree == 0:
+                constant = value
+            elif degree == 1 and not symbols[monom.index(1)].startswith(AUX_PREFIX):
+                linear[monom.index(1)] = value
+            else:
+                rest += self.ring({monom: coeff})
+        parts: list[tuple[tuple, PolyElement, Fraction]] = []
+        for index in sorted(linear):
+            parts.append((("var", symbols[index]), self.ring.gens[index], linear[index]))
+        if rest:
+            content, primitive = rest.primitive()
+            if primitive.LC < 0:
+                primitive, content = -primitive, -content
+            parts.append((("poly", poly_key(primitive)), primitive,
+                          Fraction(int(content.numerator), int(content.denominator))))
+        if constant:
+            parts.append((("const",), self.ring.one, constant))
+        return parts
+
+    def angle(self, arg: PolyElement) -> tuple[PolyElement, PolyElement]:
+        """(cos(arg), sin(arg)) as polynomials in (s, c) pairs of base angles."""
+        cos_value, sin_value = self.const(1), self.const(0)
+        for key, direction, coeff in self._directions(arg):
+            scale = self._angle_scale.get(key, coeff.denominator)
+            if scale % coeff.denominator:
+                raise TranslationError(
+                    f"angle {self.printed(direction)} appears with incompatible fractions; "
+                    "pre-scan should have fixed its scale"
+                )
+            multiple = coeff.numerator * (scale // coeff.denominator)
+            c, s = self._angle_pair(key, direction, scale)
+            ck, sk = _multiple_angle(self.lift(c), self.lift(s), abs(multiple), self.const(1))
+            if multiple < 0:
+                sk = -sk
+            cos_value, sin_value = (
+                self.lift(cos_value) * ck - self.lift(sin_value) * sk,
+                self.lift(sin_value) * ck + self.lift(cos_value) * sk,
+            )
+        return self.lift(cos_value), self.lift(sin_value)
+
+    def _angle_pair(self, key: tuple, direction: PolyElement, scale: int) -> tuple[PolyElement, PolyElement]:
+        base_text = _scaled(self.printed(direction), scale)
+        c = self.atom(("cos", key, scale), "c", f"cos({base_text})", "cos")
+        s = self.atom(("sin", key, scale), "s", f"sin({base_text})", "sin")
+        pair_key = ("pair", key, scale)
+        if pair_key not in self._atoms:
+            self._atoms[pair_key] = ""
+            c, s = self.lift(c), self.lift(s)
+            self.add_generator(s**2 + c**2 - 1, "trig", f"sin({base_text})**2 + cos({base_text})**2 == 1")
+            pi_name = self._atoms.get(("opaque", "pi", ()))
+            if pi_name and key == ("poly", poly_key(self.gen(pi_name))) and scale in _PI_FRACTIONS:
+                # exact values at pi/scale (common practice): sin(pi) = 0, cos(pi/3) = 1/2, ...
+                for relation, text in _PI_FRACTIONS[scale]:
+                    self.add_generator(relation(self.lift(c), self.lift(s)), "trig",
+                                       text.replace("X", base_text))
+        return self.lift(c), self.lift(s)
+
+    def exponential(self, arg: PolyElement) -> PolyElement:
+        result = self.const(1)
+        for key, direction, coeff in self._directions(arg):
+            scale = self._exp_scale.get(key, coeff.denominator)
+            if scale % coeff.denominator:
+                raise TranslationError(f"exponent {self.printed(direction)} appears with incompatible fractions")
+            multiple = coeff.numerator * (scale // coeff.denominator)
+            base_text = _scaled(self.printed(direction), scale)
+            e = self.atom(("exp", key, scale), "e", f"exp({base_text})", "exp")
+            ei = self.atom(("exp_inv", key, scale), "ei", f"exp(-{parenthesized(base_text)})", "exp_inverse")
+            pair_key = ("exp_pair", key, scale)
+            if pair_key not in self._atoms:
+                self._atoms[pair_key] = ""
+                e, ei = self.lift(e), self.lift(ei)
+                self.add_generator(e * ei - 1, "exp", f"exp({base_text})*exp(-{parenthesized(base_text)}) == 1")
+            factor = self.lift(e) ** multiple if multiple >= 0 else self.lift(ei) ** (-multiple)
+            result = self.lift(result) * factor
+        return self.lift(result)
+
+    def _exp_partner(self, name: str) -> str | None:
+        for key, value in self._atoms.items():
+            if value == name and key[0] in ("exp", "exp_inv"):
+                other = ("exp_inv" if key[0] == "exp" else "exp",) + key[1:]
+                return self._atoms.get(other)
+        return None
+
+    # -- pre-scan: the common scale of every angle / exponential direction
+
+    def prescan(self, exprs: Sequence[Expr]) -> None:
+        for expr in exprs:
+            for call in _scaled_calls(expr):
+                exponential = FUNCTIONS[call.function].family == "exponential"
+                table = self._exp_scale if exponential else self._angle_scale
+                for key, _direction, coeff in self._directions(self.value(call.args[0])):
+                    table[key] = _lcm(table.get(key, 1), coeff.denominator)
+        # the pre-scan created no auxiliary variables for angles (only for the arguments' own
+        # divisions and radicals); translation proper starts from a clean memo so that calls are redone
+        self._memo = {k: v for k, v in self._memo.items() if not _has_scaled_call(k)}
+
+
+_PI_FRACTIONS = {
+    1: ((lambda c, s: c + 1, "cos(X) == -1"), (lambda c, s: s, "sin(X) == 0")),
+    2: ((lambda c, s: c, "cos(X) == 0"), (lambda c, s: s - 1, "sin(X) == 1")),
+    3: ((lambda c, s: 2 * c - 1, "cos(X) == 1/2"), (lambda c, s: 4 * s**2 - 3, "sin(X)**2 == 3/4")),
+    4: ((lambda c, s: 2 * c**2 - 1, "cos(X)**2 == 1/2"), (lambda c, s: s - c, "sin(X) == cos(X)")),
+    6: ((lambda c, s: 4 * c**2 - 3, "cos(X)**2 == 3/4"), (lambda c, s: 2 * s - 1, "sin(X) == 1/2")),
+}
+
+
+def _lcm(a: int, b: int) -> int:
+    return a * b // math.gcd(a, b)
+
+
+def _scaled(text: str, scale: int) -> str:
+    return text if scale == 1 else f"{parenthesized(text)}/{scale}"
+
+
+_FACTOR_LIMIT = 10**12  # constant radicands beyond this are not factored
+
+
+def _split_constant_radicand(value: Fraction) -> tuple[Fraction, list[int]] | None:
+    """sqrt(value) == outside * prod(sqrt(p) for p in primes), value > 0 rational, primes distinct."""
+    numerator = value.numerator * value.denominator  # sqrt(n/d) = sqrt(n*d)/d
+    if value <= 0 or numerator > _FACTOR_LIMIT:
+        return None
+    outside = Fraction(1, value.denominator)
+    primes = []
+    for prime, exponent in sorted(factorint(numerator).items()):
+        outside *= prime ** (exponent // 2)
+        if exponent % 2:
+            primes.append(int(prime))
+    if len(primes) <= 1 and outside == 1:
+        return None  # already a single prime radical: nothing to split
+    return outside, primes
+
+
+def _multiple_angle(c: PolyElement, s: PolyElement, k: int, one: PolyElement) -> tuple[PolyElement, PolyElement]:
+    """(cos(k*u), sin(k*u)) from c = cos(u), s = sin(u): the real and imaginary parts of (c + i*s)**k."""
+    re, im = one, one * 0
+    base_re, base_im = c, s
+    while k:
+        if k & 1:
+            re, im = re * base_re - im * base_im, re * base_im + im * base_re
+        k >>= 1
+        if k:
+            base_re, base_im = base_re**2 - base_im**2, 2 * base_re * base_im
+    return re, im
+
+
+class _Polynomials:
+    """The fold that translates a tree: each node from its children's polynomials (lifted to the current
+    ring, which grows as auxiliary variables appear)."""
+
+    def __init__(self, translator: Translator) -> None:
+        self.t = translator
+
+    def num(self, node: Num) -> PolyElement:
+        return self.t.const(node.value)
+
+    def var(self, node: Var) -> PolyElement:
+        return self.t.gen(node.name)
+
+    def neg(self, node: Neg, operand: PolyElement) -> PolyElement:
+        return -self.t.lift(operand)
+
+    def binop(self, node: BinOp, left: PolyElement, right: PolyElement) -> PolyElement:
+        left, right = self.t.lift(left), self.t.lift(right)
+        if node.op == "+":
+            return left + right
+        if node.op == "-":
+            return left - right
+        if node.op == "*":
+            return left * right
+        if node.op == "/":
+            inverse = self.t.inverse(right)
+            return self.t.lift(left) * inverse
+        raise TranslationError(f"unsupported operator {node.op!r}")
+
+    def pow(self, node: Pow, base: PolyElement) -> PolyElement:
+        return self.t.power(self.t.lift(base), node.exponent)
+
+    def call(self, node: Call, args: Sequence[PolyElement]) -> PolyElement:
+        return self.t.call(node.function, args)
+
+    def opaque(self, node: Opaque, args: Sequence[PolyElement]) -> PolyElement:
+        return self.t.opaque(node.name, args)
+
+
+def _scaled_calls(expr: Expr) -> Iterator[Call]:
+    """The calls whose argument is split into base directions with a common scale (sin, cos, tan, exp),
+    outer calls first."""
+    for node in preorder(expr):
+        entry = FUNCTIONS.get(node.function) if isinstance(node, Call) else None
+        if isinstance(node, Call) and entry is not None and entry.family in ("trigonometric", "exponential"):
+            yield node
+
+
+def _has_scaled_call(expr: Expr) -> bool:
+    return next(_scaled_calls(expr), None) is not None

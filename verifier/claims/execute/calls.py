@@ -1,0 +1,263 @@
+"""Calls: the callee the scope names, its arguments, and its value (inlined, math, built-in or opaque)."""
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+from verifier.claims.execute.expressions import Alternatives, Evaluator
+from verifier.claims.execute.scope import (
+    BuiltinCallee,
+    Callee,
+    InlineCallee,
+    MathCallee,
+    MethodCallee,
+    OpaqueCallee,
+    UnknownCallee,
+)
+from verifier.claims.execute.state import Frame, Outcome, State, Status
+from verifier.claims.execute.values import (
+    ARRAY,
+    NONE,
+    Seq,
+    Stuck,
+    Unknown,
+    Value,
+    as_expr,
+)
+from verifier.model import ir
+from verifier.model.expr import Expr, Opaque, Var
+
+Arguments = list[tuple[State, list[Value], dict[str, Value]]]
+OUTPUT_KINDS = (ir.ParameterKind.OUT, ir.ParameterKind.INOUT)
+
+_IMPURE_PREFIXES = ("random.", "np.random.", "numpy.random.", "time.", "os.", "sys.", "secrets.", "uuid.",
+                    "datetime.", "io.", "socket.", "subprocess.", "rng.", "self.rng.")
+_IMPURE_NAMES = frozenset({"random", "rand", "randn", "randint", "uniform", "normal", "gauss", "input", "open",
+                           "print", "time", "perf_counter", "monotonic", "next", "id", "hash"})
+
+
+def impure(name: str) -> bool:
+    """Calls whose value may differ between two calls with the same arguments (by name, conservatively)."""
+    return name.startswith(_IMPURE_PREFIXES) or name.rsplit(".", 1)[-1] in _IMPURE_NAMES
+
+
+class CallEvaluator(Evaluator):
+    """Evaluates calls; running an inlined body is left to ``Executor.exec_block``."""
+
+    def exec_block(self, statements: Sequence[ir.Statement], states: list[State], frame: Frame) -> list[Outcome]:
+        raise NotImplementedError  # Executor
+
+    def resolve(self, node: ir.Invoke, state: State, frame: Frame) -> Callee:
+        """What ``node`` calls; a name bound on the path is a local value, which is not called."""
+        line = node.line
+        if isinstance(node.callee, ir.Name):
+            bound = state.get(node.callee.name)
+            if isinstance(bound, Unknown):
+                return UnknownCallee(bound.reason)
+            if bound is not None:
+                return UnknownCallee(f"calling the local value {node.callee.name} at line {line} is not supported")
+        return self.scope.callee(self, frame.module, frame.function, node.callee,
+                                 lambda name: state.get(name) is not None, line)
+
+    def call(self, node: ir.Invoke, state: State, frame: Frame, iterable: bool) -> Alternatives:
+        line = node.line
+        callee = self.resolve(node, state, frame)
+        if isinstance(callee, BuiltinCallee):
+            return [(after, self.builtin_value(callee.name, args, keywords, line, iterable, frame.ident))
+                    for after, args, keywords in self.arguments(node, state, frame)]
+        if isinstance(callee, MathCallee):
+            return self._math_call(callee.name, node, state, frame)
+        if isinstance(callee, InlineCallee):
+            receiver = state.get(callee.receiver) if callee.receiver is not None else None
+            return self.inline(callee.function, node, state, frame, receiver)
+        if isinstance(callee, MethodCallee):
+            return self._method_call(callee, node, state, frame)
+        if isinstance(callee, UnknownCallee):
+            return [(state, Unknown(callee.reason))]
+        return self.opaque(callee.name, node, state, frame, prefix=())
+
+    def _method_call(self, callee: MethodCallee, node: ir.Invoke, state: State, frame: Frame) -> Alternatives:
+        # `value.name(...)` on a variable or unknown value: opaque in the receiver and arguments
+        result: Alternatives = []
+        for after, receiver in self.evaluate(callee.receiver, state, frame):
+            expr = as_expr(receiver)
+            if isinstance(receiver, Var):
+                result.extend(self.opaque(f"{receiver.name}.{callee.name}", node, after, frame, prefix=()))
+            elif expr is not None:
+                result.extend(self.opaque(f".{callee.name}", node, after, frame, prefix=(expr,)))
+            elif isinstance(receiver, Unknown):
+                result.append((after, receiver))
+            else:
+                result.append((after, Unknown(f"the method call {node.spelling}(...) at line {node.line} "
+                                              "is not supported")))
+        return result
+
+    def arguments(self, node: ir.Invoke, state: State, frame: Frame) -> Arguments:
+        """Every (path, positional values, keyword values) of the call's arguments."""
+        line = node.line
+        paths: Arguments = [(state, [], {})]
+        for arg in node.arguments:
+            if arg.star is ir.Star.MAPPING:
+                raise Stuck(f"`**` arguments at line {line} are not supported")
+            new_paths: Arguments = []
+            for s, positional, keywords in paths:
+                for after, value in self.evaluate(arg.value, s, frame):
+                    if arg.star is ir.Star.SEQUENCE:
+                        if not isinstance(value, Seq):
+                            raise Stuck(f"`*` arguments at line {line} are not supported here")
+                        new_paths.append((after, positional + list(value.items), keywords))
+                    elif arg.keyword is not None:
+                        new_paths.append((after, positional, {**keywords, arg.keyword: value}))
+                    else:
+                        new_paths.append((after, positional + [value], keywords))
+            paths = new_paths
+        return paths
+
+    def opaque(self, name: str, node: ir.Invoke, state: State, frame: Frame, prefix: tuple[Expr, ...]
+               ) -> Alternatives:
+        line = node.line
+        if impure(name):
+            # an opaque value stands for a pure function (same arguments, same value); random numbers,
+            # clocks and I/O are not, and treating them so could prove random() - random() == 0
+            return [(state, Unknown(f"the call {name}(...) at line {line} may give a different value each "
+                                    "time (random numbers, clocks, I/O) and is not followed"))]
+        result: Alternatives = []
+        for after, positional, keywords in self.arguments(node, state, frame):
+            values: list[Value] = list(prefix) + positional
+            full_name = name
+            if keywords:
+                full_name += "[" + ",".join(f"{k}=" for k in sorted(keywords)) + "]"
+                values += [keywords[k] for k in sorted(keywords)]
+            exprs = [as_expr(v) for v in values]
+            bad = next((v for v, e in zip(values, exprs) if e is None), None)
+            if bad is not None:
+                reason = bad.reason if isinstance(bad, Unknown) else (
+                    f"the call {name}(...) at line {line} passes a tuple, list or None to a function the tool "
+                    "cannot see into")
+                result.append((after, Unknown(reason)))
+                continue
+            note = f"opaque call {name}(...) at line {line}" + (f" of {frame.module}" if frame.depth else "")
+            result.append((after.with_note(note), Opaque(full_name, tuple(e for e in exprs if e is not None))))
+        return result
+
+    def _math_call(self, name: str, node: ir.Invoke, state: State, frame: Frame) -> Alternatives:
+        line = node.line
+        result: Alternatives = []
+        for after, args, keywords in self.arguments(node, state, frame):
+            if keywords:
+                result.append((after, Unknown(f"keyword arguments to {name} at line {line} are not supported")))
+                continue
+            if any(isinstance(a, Seq) for a in args):
+                value = self.bounded(self.array_call(name, args, line), line)
+                if isinstance(value, Seq) and value.kind is ARRAY:
+                    value = Seq(value.items, value.kind, value.ident, frame.ident)
+                result.append((after, value))
+                continue
+            filled = self.zeros(name, args, frame.ident)
+            if filled is not None:
+                result.append((after, filled))
+                continue
+            exprs = [as_expr(a) for a in args]
+            bad = next((a for a, e in zip(args, exprs) if e is None), None)
+            if bad is not None:
+                result.append((after, bad if isinstance(bad, Unknown) else
+                               Unknown(f"{name} of a tuple, list or None at line {line} is not supported")))
+                continue
+            operands = [e for e in exprs if e is not None]
+            computed = self.math_value(name, operands, line)
+            if computed is None:
+                note = f"opaque call {name}(...) at line {line}"
+                result.append((after.with_note(note), Opaque(name, tuple(operands))))
+            else:
+                result.append((after, self.bounded(computed, line)))
+        return result
+
+    # -- inlining
+
+    def inline(self, function: ir.Function, node: ir.Invoke, state: State, frame: Frame,
+               receiver: Value | None) -> Alternatives:
+        line = node.line
+        if function.key in frame.stack:
+            raise Stuck(f"the recursive call of {function.name} at line {line} is not supported")
+        if frame.depth + 1 > self.inline_depth:
+            raise Stuck(f"the inlining depth limit of {self.inline_depth} was reached at the call of "
+                        f"{function.name} at line {line}")
+        if function.generator:
+            raise Stuck(f"the generator function {function.name} called at line {line} is not supported")
+        self.depend(function.module)
+        note = f"inlined {function.name} from {function.module}"
+        if note not in self.inlined:
+            self.inlined.append(note)
+        callee = Frame(function.module, function, frame.depth + 1, frame.stack + (function.key,), self.new_ident())
+        result: Alternatives = []
+        for after, positional, keywords in self.arguments(node, state, frame):
+            if receiver is not None:
+                positional = [receiver] + positional
+            start = self.bind_arguments(function, positional, keywords,
+                                        State((), after.conditions, after.notes), line)
+            for outcome in self.exec_block(function.body, [start], callee):
+                back = State(after.env, outcome.state.conditions, outcome.state.notes)
+                if outcome.status in (Status.RETURN, Status.NEXT):
+                    back = self._outputs_back(function, node, outcome.state, back)
+                if outcome.status is Status.RETURN:
+                    result.append((back, outcome.value if outcome.value is not None else NONE))
+                elif outcome.status is Status.NEXT:
+                    result.append((back, NONE))
+                elif outcome.status is Status.STUCK:
+                    raise Stuck(f"{outcome.reason} (in {function.name} of {function.module}, called at line {line})")
+                # RAISE: this path of the caller raises too and returns nothing
+        return result
+
+    def _outputs_back(self, function: ir.Function, node: ir.Invoke, inside: State, back: State) -> State:
+        """Out-parameters passed a caller's local (``f(x, &y)``): the local takes the value left in them."""
+        positional = [p for p in function.parameters if p.binding in (ir.Binding.POSITIONAL,
+                                                                        ir.Binding.POSITIONAL_ONLY)]
+        for param, arg in zip(positional, node.arguments):
+            if param.kind in OUTPUT_KINDS and isinstance(arg.value, ir.Name) and arg.keyword is None:
+                value = inside.get(param.name)
+                if value is not None:
+                    back = back.bind(arg.value.name, value)
+        return back
+
+    def bind_arguments(self, function: ir.Function, positional: list[Value], keywords: dict[str, Value],
+                       state: State, line: int) -> State:
+        """``state`` with the parameters of ``function`` bound to a call's arguments (and defaults)."""
+        name = function.name
+        ordered = [p for p in function.parameters if p.binding in (ir.Binding.POSITIONAL, ir.Binding.POSITIONAL_ONLY)]
+        variadic = any(p.binding is ir.Binding.VARIADIC for p in function.parameters)
+        variadic_keyword = any(p.binding is ir.Binding.VARIADIC_KEYWORD for p in function.parameters)
+        if len(positional) > len(ordered) and not variadic:
+            raise Stuck(f"the call of {name} at line {line} passes {len(positional)} positional "
+                        f"arguments, it takes {len(ordered)}")
+        if variadic or variadic_keyword:
+            raise Stuck(f"calling {name} with *args/**kwargs parameters at line {line} is not supported")
+        remaining = dict(keywords)
+        for i, param in enumerate(ordered):
+            if i < len(positional):
+                if param.name in remaining:
+                    raise Stuck(f"the call of {name} at line {line} gives {param.name} twice")
+                state = state.bind(param.name, positional[i])
+            elif param.name in remaining and param.binding is not ir.Binding.POSITIONAL_ONLY:
+                state = state.bind(param.name, remaining.pop(param.name))
+            elif param.default is not None:
+                state = state.bind(param.name, self._default(param.default, function))
+            else:
+                raise Stuck(f"the call of {name} at line {line} misses the argument {param.name}")
+        for param in function.parameters:
+            if param.binding is not ir.Binding.KEYWORD_ONLY:
+                continue
+            if param.name in remaining:
+                state = state.bind(param.name, remaining.pop(param.name))
+            elif param.default is not None:
+                state = state.bind(param.name, self._default(param.default, function))
+            else:
+                raise Stuck(f"the call of {name} at line {line} misses the keyword argument {param.name}")
+        if remaining:
+            raise Stuck(f"the call of {name} at line {line} passes unknown keyword arguments "
+                        f"{', '.join(sorted(remaining))}")
+        return state
+
+    def _default(self, node: ir.Expr, function: ir.Function) -> Value:
+        alternatives = self.evaluate_detached(node, function.module)
+        if len(alternatives) != 1 or alternatives[0][0].conditions:
+            return Unknown(f"the default value of a parameter of {function.name} is not supported")
+        return alternatives[0][1]

@@ -1,0 +1,97 @@
+"""Values of the symbolic executor: claim-language expressions, sequences of known length, None, unknowns."""
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Union
+
+from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
+from verifier.model.ir import SequenceKind
+
+TUPLE, LIST, ARRAY = SequenceKind.TUPLE, SequenceKind.LIST, SequenceKind.ARRAY
+MUTABLE = (LIST, ARRAY)
+
+
+@dataclass(frozen=True)
+class Unknown:
+    """A value the executor does not model; ``reason`` names the construct and its line."""
+
+    reason: str
+
+
+@dataclass(frozen=True)
+class Seq:
+    """A tuple, list or array of known length.
+
+    ``ident`` tells mutable sequences apart for in-place changes; ``owner`` is the frame that created a
+    list (only it may change the list in place; -1 for module-level lists, which nobody may change).
+    """
+
+    items: tuple["Value", ...]
+    kind: SequenceKind = SequenceKind.TUPLE
+    ident: int = 0
+    owner: int = 0
+
+
+@dataclass(frozen=True)
+class NoneValue:
+    """No value (Python's None; a function that falls off its end)."""
+
+
+NONE = NoneValue()
+Value = Union[Num, Var, BinOp, Neg, Pow, Call, Opaque, Unknown, Seq, NoneValue]
+EXPR_TYPES = (Num, Var, BinOp, Neg, Pow, Call, Opaque)
+
+
+def is_expr(value: object) -> bool:
+    """Whether ``value`` is a claim-language expression (a number, not a sequence, None or unknown)."""
+    return isinstance(value, EXPR_TYPES)
+
+
+def as_expr(value: Value) -> Expr | None:
+    """``value`` as a claim-language expression, or None when it is not one (typed narrowing of is_expr)."""
+    if isinstance(value, (Num, Var, BinOp, Neg, Pow, Call, Opaque)):
+        return value
+    return None
+
+
+def first_unknown(value: Value) -> Unknown | None:
+    """The first unknown inside ``value`` (itself, or an item of a sequence at any depth)."""
+    if isinstance(value, Unknown):
+        return value
+    if isinstance(value, Seq):
+        for item in value.items:
+            found = first_unknown(item)
+            if found is not None:
+                return found
+    return None
+
+
+def is_int(value: object) -> bool:
+    return isinstance(value, Num) and value.value.denominator == 1
+
+
+def int_of(value: Value) -> int | None:
+    """The integer a constant value holds, or None."""
+    if isinstance(value, Num) and value.value.denominator == 1:
+        return int(value.value)
+    return None
+
+
+def is_array(value: object) -> bool:
+    return isinstance(value, Seq) and value.kind is ARRAY
+
+
+def contains_list(value: Value, ident: int) -> bool:
+    """Whether ``value`` holds (at any depth) the mutable sequence ``ident``."""
+    if isinstance(value, Seq):
+        return any((isinstance(i, Seq) and i.kind in MUTABLE and i.ident == ident) or contains_list(i, ident)
+                   for i in value.items)
+    return False
+
+
+class Stuck(Exception):
+    """The current path cannot be followed (unsupported statement, limit, recursion ...)."""
+
+    def __init__(self, reason: str):
+        super().__init__(reason)
+        self.reason = reason

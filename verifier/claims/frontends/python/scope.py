@@ -1,0 +1,279 @@
+"""What Python names mean to the executor: module constants, imports (followed into project modules), math
+and numpy, built-ins, classes and methods, star imports.  Decided when the function runs, since a local
+bound on the path hides a global of the same name."""
+from __future__ import annotations
+
+from fractions import Fraction
+
+import libcst as cst
+
+from verifier.claims.execute.functions import math_constant
+from verifier.claims.execute.scope import (
+    BuiltinCallee,
+    Callee,
+    Host,
+    InlineCallee,
+    IsBound,
+    MathCallee,
+    MethodCallee,
+    OpaqueCallee,
+    UnknownCallee,
+)
+from verifier.claims.execute.expressions import dotted_name
+from verifier.claims.execute.state import State
+from verifier.claims.execute.values import MUTABLE, NONE, Seq, Stuck, Unknown, Value
+from verifier.claims.frontends.python.lower import lower_expression, lower_function
+from verifier.claims.frontends.python.modules import (
+    MATH_MODULES,
+    MemberImport,
+    ModuleImport,
+    ModuleInfo,
+    ModuleLoader,
+    dotted,
+)
+from verifier.model import ir
+from verifier.model.expr import Num, Var
+
+MAX_IMPORT_CHAIN = 8
+# Decorators known not to change what a function computes (JIT compilers, caches, method kinds).
+NEUTRAL_DECORATORS = frozenset(
+    {"njit", "jit", "vectorize", "lru_cache", "cache", "staticmethod", "wraps", "profile", "cfunc", "guvectorize"}
+)
+_STAR_MATH = frozenset({"sqrt", "hypot", "fma", "sin", "cos", "tan", "exp", "log", "log10", "log2", "pow",
+                        "square", "fabs", "floor", "ceil", "trunc", "fmod", "copysign"})
+_BUILTINS = frozenset({"pow", "float", "int", "tuple", "list", "len", "sum", "range", "enumerate", "zip",
+                       "reversed", "abs", "min", "max", "round", "divmod", "complex", "sorted", "map", "filter",
+                       "any", "all", "print", "isinstance", "bool", "str"})
+
+
+def neutral_decorators(node: cst.FunctionDef) -> bool:
+    for decorator in node.decorators:
+        expr = decorator.decorator
+        if isinstance(expr, cst.Call):
+            expr = expr.func
+        name = dotted(expr)
+        if name is None or name.split(".")[-1] not in NEUTRAL_DECORATORS:
+            return False
+    return True
+
+
+def static_like(node: cst.FunctionDef) -> bool:
+    names = set()
+    for decorator in node.decorators:
+        expr = decorator.decorator
+        name = dotted(expr.func if isinstance(expr, cst.Call) else expr)
+        names.add((name or "?").split(".")[-1])
+    return "staticmethod" in names and names <= NEUTRAL_DECORATORS
+
+
+def qualified(module: ModuleInfo, name: str) -> str:
+    """A project name that cannot be seen into, qualified by its module so that equal names in
+    different modules are different opaque values."""
+    stem = module.path[:-3] if module.path.endswith(".py") else module.path
+    return ".".join(part for part in stem.replace("\\", "/").split("/") if part not in ("", ".")) + "." + name
+
+
+def _other_star_imports(module: ModuleInfo) -> list[str]:
+    return [m for m in module.star_imports if m.lstrip(".").split(".")[0] not in MATH_MODULES]
+
+
+def _star_reason(name: str, module: ModuleInfo, line: int) -> str:
+    sources = ", ".join(_other_star_imports(module))
+    return f"the name {name} at line {line} may come from `from {sources} import *`, which the tool does not follow"
+
+
+class PythonScope:
+    """The executor's ``Scope`` for Python; one per executor (module constants are cached per claim)."""
+
+    def __init__(self, loader: ModuleLoader):
+        self.loader = loader
+        self._constants: dict[tuple[str, str], Value] = {}
+        self._busy: set[tuple[str, str]] = set()
+
+    def lower(self, module: ModuleInfo, node: cst.FunctionDef, qualname: str, owner: str | None = None
+              ) -> ir.Function:
+        return lower_function(module, node, qualname, owner)
+
+    # -- values
+
+    def global_value(self, host: Host, module: str, name: str, line: int) -> Value:
+        return self._global(host, name, self.loader.module(module), line)
+
+    def _global(self, host: Host, name: str, module: ModuleInfo, line: int) -> Value:
+        if name == "None":
+            return NONE
+        if name in ("True", "False"):
+            return Num(Fraction(1 if name == "True" else 0))
+        if name in module.rebound:
+            return Unknown(f"the module-level name {name} (line {line}) is bound in a way the tool does not follow")
+        if name in module.constants:
+            return self.module_constant(host, module, name, line)
+        target = module.imports.get(name)
+        if isinstance(target, MemberImport):
+            base = target.dotted.lstrip(".")
+            if base in MATH_MODULES:
+                return math_constant(base, target.name, line)
+            other = None if base.split(".")[0] in MATH_MODULES else self.loader.find(target.dotted, module)
+            if other is not None:
+                host.depend(other.path)
+                return self._global(host, target.name, other, line)
+            return Var(f"{base}.{target.name}" if base else target.name)
+        if isinstance(target, ModuleImport):
+            return Unknown(f"the module {name} used as a value at line {line}")
+        if name in module.functions or name in module.classes:
+            return Unknown(f"the function or class {name} used as a value at line {line} is not supported")
+        if name in ("pi", "tau", "e") and any(m in MATH_MODULES for m in module.star_imports):
+            return math_constant("math", name, line)
+        if _other_star_imports(module):
+            return Unknown(_star_reason(name, module, line))
+        # an undefined global: any real number (a claim must hold for every value of it)
+        return Var(name)
+
+    def module_constant(self, host: Host, module: ModuleInfo, name: str, line: int) -> Value:
+        """The value of the module-level constant ``name`` (assigned once at top level)."""
+        key = (module.path, name)
+        if key in self._constants:
+            return self._constants[key]
+        nodes = module.constants[name]
+        if len(nodes) != 1 or key in self._busy:
+            return Unknown(f"the module-level name {name} is assigned more than once (used at line {line})")
+        self._busy.add(key)
+        try:
+            alternatives = host.evaluate_detached(lower_expression(module, nodes[0]), module.path)
+        except Stuck as exc:
+            alternatives = [(State(()), Unknown(exc.reason))]
+        finally:
+            self._busy.discard(key)
+        value: Value
+        if len(alternatives) != 1 or alternatives[0][0].conditions:
+            value = Unknown(f"the module-level constant {name} depends on a condition")
+        else:
+            value = alternatives[0][1]
+            if isinstance(value, Seq) and value.kind in MUTABLE:
+                value = Seq(value.items, value.kind, value.ident, -1)  # module lists must not be changed here
+        self._constants[key] = value
+        host.depend(module.path)
+        return value
+
+    def member_value(self, host: Host, module: str, node: ir.Field, is_bound: IsBound, line: int) -> Value | None:
+        info = self.loader.module(module)
+        target = self._module_path(node.base, is_bound, info)
+        if target is None:
+            return None
+        dotted_module, other = target
+        if dotted_module in MATH_MODULES:
+            return math_constant(dotted_module, node.name, line)
+        if other is not None:
+            host.depend(other.path)
+            return self._global(host, node.name, other, line)
+        return Var(dotted_name(node) or node.name)
+
+    def _module_path(self, node: ir.Expr, is_bound: IsBound, module: ModuleInfo
+                     ) -> tuple[str, ModuleInfo | None] | None:
+        """If ``node`` names an imported module (``np``, ``pkg.mod``), its dotted name and file (if in the project)."""
+        spelled = dotted_name(node)
+        if spelled is None:
+            return None
+        head, _, rest = spelled.partition(".")
+        if is_bound(head):
+            return None
+        target = module.imports.get(head)
+        if target is None:
+            if head in MATH_MODULES and not rest and head not in module.constants and head not in module.functions:
+                return ("numpy" if head == "np" else head, None)
+            return None
+        full = target.dotted if isinstance(target, ModuleImport) else target.full
+        if rest:
+            full += "." + rest
+        base = full.lstrip(".")
+        if base.split(".")[0] in MATH_MODULES:
+            return ("numpy" if base == "np" else base, None)
+        info = self.loader.find(full, module)
+        if info is None:
+            if isinstance(target, MemberImport) and not rest:
+                return None  # `from pkg import thing`: a value or function rather than a module
+            return (base, None)
+        return (base, info)
+
+    # -- callees
+
+    def callee(self, host: Host, module: str, caller: ir.Function | None, node: ir.Expr, is_bound: IsBound,
+               line: int) -> Callee:
+        info = self.loader.module(module)
+        if isinstance(node, ir.Name):
+            return self._global_callee(host, node.name, info, line, 0)
+        if not isinstance(node, ir.Field):
+            return UnknownCallee(f"the call at line {line} is not supported")
+        attr = node.name
+        owner = self._module_path(node.base, is_bound, info)
+        if owner is not None:
+            dotted_module, other = owner
+            if dotted_module in MATH_MODULES or dotted_module.split(".")[0] in MATH_MODULES:
+                return MathCallee(attr) if dotted_module in MATH_MODULES else OpaqueCallee(f"{dotted_module}.{attr}")
+            if other is not None:
+                host.depend(other.path)
+                return self._global_callee(host, attr, other, line, 0)
+            return OpaqueCallee(f"{dotted_module}.{attr}")
+        bound = self._bound_method(node, caller, info)
+        if bound is not None:
+            return bound
+        if isinstance(node.base, ir.Name) and not is_bound(node.base.name):
+            class_name = node.base.name
+            methods = info.classes.get(class_name)
+            if methods is not None and class_name not in info.rebound:
+                method = methods.get(attr)
+                if method is not None and static_like(method):
+                    return InlineCallee(self.lower(info, method, f"{class_name}.{attr}", class_name))
+                return OpaqueCallee(f"{class_name}.{attr}")
+        return MethodCallee(node.base, attr)
+
+    def _bound_method(self, node: ir.Field, caller: ir.Function | None, module: ModuleInfo) -> Callee | None:
+        """``self.method(...)`` inside a method of a class of this module: that class's method."""
+        if caller is None or caller.owner is None or not isinstance(node.base, ir.Name):
+            return None
+        params = caller.positional_names()
+        if not params or node.base.name != params[0] or caller.owner in module.rebound:
+            return None
+        method = module.classes.get(caller.owner, {}).get(node.name)
+        if method is None or not neutral_decorators(method):
+            return None
+        function = self.lower(module, method, f"{caller.owner}.{node.name}", caller.owner)
+        if static_like(method):
+            return InlineCallee(function)
+        return InlineCallee(function, receiver=node.base.name)
+
+    def _global_callee(self, host: Host, name: str, module: ModuleInfo, line: int, depth: int) -> Callee:
+        if depth > MAX_IMPORT_CHAIN:
+            return UnknownCallee(f"the import chain for {name} (line {line}) is too long to follow")
+        if name in module.rebound:
+            return UnknownCallee(f"the module-level name {name} (line {line}) is bound in a way the tool does not "
+                                 "follow")
+        if name in module.functions:
+            node = module.functions[name]
+            if not neutral_decorators(node):
+                return OpaqueCallee(qualified(module, name))
+            return InlineCallee(self.lower(module, node, name))
+        if name in module.classes or name in module.constants:
+            return OpaqueCallee(qualified(module, name))
+        target = module.imports.get(name)
+        if isinstance(target, ModuleImport):
+            return UnknownCallee(f"calling the module {name} at line {line} is not supported")
+        if isinstance(target, MemberImport):
+            base = target.dotted.lstrip(".")
+            if base in MATH_MODULES:
+                return MathCallee(target.name)
+            if base.split(".")[0] in MATH_MODULES:
+                return OpaqueCallee(f"{base}.{target.name}")
+            other = self.loader.find(target.dotted, module)
+            if other is None:
+                # `from pkg import mod` then mod(...)? or an outside library: opaque
+                return OpaqueCallee(f"{base}.{target.name}" if base else target.name)
+            host.depend(other.path)
+            return self._global_callee(host, target.name, other, line, depth + 1)
+        if name in _BUILTINS:
+            return BuiltinCallee(name)
+        if any(m in MATH_MODULES for m in module.star_imports) and name in _STAR_MATH:
+            return MathCallee(name)
+        if _other_star_imports(module):
+            return UnknownCallee(_star_reason(name, module, line))
+        return OpaqueCallee(name)

@@ -1,0 +1,124 @@
+"""Claim text in a path: the claim's variable spellings (``x``, ``q.w``, ``v[0]``) replaced by their values.
+
+Shared by every front end's function and statement claims; ``constant`` gives a module-level constant
+the claim names (None when there is none).
+"""
+from __future__ import annotations
+
+import re
+from collections.abc import Callable
+
+from verifier.claims.execute import Seq, State, Unknown, Value
+from verifier.claims.execute.values import as_expr
+from verifier.claims.obligations import ClaimProblem
+from verifier.model.claim import Condition
+from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
+
+ConstantLookup = Callable[[str], "Value | None"]
+
+
+_SPELLING = re.compile(r"[A-Za-z_][A-Za-z_0-9]*")
+_ACCESSOR = re.compile(r"\.([A-Za-z_][A-Za-z_0-9]*)|\[(-?[0-9]+)\]|\[([^\]]*)\]")
+
+
+def resolve_spelling(name: str, state: State, constant: ConstantLookup) -> Value:
+    """The value a claim's variable spelling (``x``, ``q.w``, ``v[0]``) has in ``state``."""
+    head = _SPELLING.match(name)
+    if head is None:
+        return Var(name)
+    base_name = head.group(0)
+    value = state.get(base_name)
+    if value is None:
+        value = constant(base_name)
+        if value is None:
+            return Var(name)  # a free variable (or a constant the code cannot follow either)
+    position = head.end()
+    spelled = base_name
+    while position < len(name):
+        match = _ACCESSOR.match(name, position)
+        if match is None:
+            return Unknown(f"cannot read the name {name}")
+        position = match.end()
+        spelled += match.group(0)
+        if isinstance(value, Unknown):
+            return value
+        if match.group(1) is not None:
+            if isinstance(value, Var):
+                value = Var(f"{value.name}.{match.group(1)}")
+            elif isinstance(value, Opaque):
+                value = Opaque(f"{value.name}.{match.group(1)}", value.args)
+            else:
+                return Unknown(f"{spelled} is not a variable at this point")
+        elif match.group(2) is not None:
+            index = int(match.group(2))
+            if isinstance(value, Seq):
+                if not -len(value.items) <= index < len(value.items):
+                    return Unknown(f"{spelled} is out of range")
+                value = value.items[index]
+            elif isinstance(value, Var):
+                value = Var(f"{value.name}[{index}]")
+            elif isinstance(value, Opaque):
+                value = Opaque(f"{value.name}[{index}]", value.args)
+            else:
+                return Unknown(f"{spelled} is not a variable at this point")
+        else:
+            if isinstance(value, Var):
+                value = Var(f"{value.name}[{match.group(3)}]")
+            else:
+                return Unknown(f"{spelled} is not a variable at this point")
+    return value
+
+
+def substitute(expr: Expr, state: State, constant: ConstantLookup) -> Value:
+    """``expr`` (claim text) with the parameters and locals replaced by their values in ``state``."""
+    if isinstance(expr, Var):
+        return resolve_spelling(expr.name, state, constant)
+    if isinstance(expr, Num):
+        return expr
+    if isinstance(expr, Neg):
+        inner = substitute(expr.operand, state, constant)
+        inner_expr = as_expr(inner)
+        return Neg(inner_expr) if inner_expr is not None else _not_number(inner)
+    if isinstance(expr, BinOp):
+        left = substitute(expr.left, state, constant)
+        right = substitute(expr.right, state, constant)
+        left_expr, right_expr = as_expr(left), as_expr(right)
+        if left_expr is None:
+            return _not_number(left)
+        if right_expr is None:
+            return _not_number(right)
+        return BinOp(expr.op, left_expr, right_expr)
+    if isinstance(expr, Pow):
+        base = substitute(expr.base, state, constant)
+        base_expr = as_expr(base)
+        return Pow(base_expr, expr.exponent) if base_expr is not None else _not_number(base)
+    args: list[Expr] = []
+    for arg in expr.args:
+        value = substitute(arg, state, constant)
+        arg_expr = as_expr(value)
+        if arg_expr is None:
+            return _not_number(value)
+        args.append(arg_expr)
+    if isinstance(expr, Call):
+        return Call(expr.function, tuple(args))
+    return Opaque(expr.name, tuple(args))
+
+
+def _not_number(value: Value) -> Unknown:
+    if isinstance(value, Unknown):
+        return value
+    return Unknown("the claim uses a tuple, list or None inside arithmetic")
+
+
+def substitute_condition(condition: Condition, state: State, constant: ConstantLookup) -> Condition:
+    left = substitute(condition.left, state, constant)
+    right = substitute(condition.right, state, constant)
+    left_expr, right_expr = as_expr(left), as_expr(right)
+    for side, side_expr in ((left, left_expr), (right, right_expr)):
+        if side_expr is None:
+            reason = side.reason if isinstance(side, Unknown) else "not a number"
+            raise ClaimProblem("inconclusive", f"the condition {condition.text} cannot be followed: {reason}")
+    assert left_expr is not None and right_expr is not None
+    if left_expr == condition.left and right_expr == condition.right:
+        return condition
+    return Condition(condition.relation, left_expr, right_expr, condition.text, condition.origin)
