@@ -118,7 +118,7 @@ def test_render_report_in_every_format(project: Path) -> None:
     assert location["message"]["text"] == "cell 4" and finding["properties"]["cell"] == 4
     junit = ET.fromstring(api.render_report(result, "junit"))
     names = [case.get("name") for case in junit.iter("testcase")]
-    assert "cell 4 line 1: (p - q)*(p + q) == p**2 + q**2" in names
+    assert "cell 4: (p - q)*(p + q) == p**2 + q**2" in names  # no line number: stable when code moves
     assert api.render_report(result.verdicts, "text") == text
     with pytest.raises(ValueError):
         api.render_report(result, "yaml")  # type: ignore[arg-type]

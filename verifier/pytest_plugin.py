@@ -235,7 +235,10 @@ class ClaimItem(pytest.Item):
     def runtest(self) -> None:
         verdict = self.collection.verdict(self)
         self.user_properties.append(("idealcheck_verdict", verdict.verdict))
-        if verdict.verdict == "proved":
+        expected = verdict.claim.expected  # an inline `expect VERDICT: REASON`: skipped while it holds
+        if expected is not None and verdict.verdict == expected.verdict:
+            pytest.skip(f"idealcheck {verdict.verdict} as expected: {expected.reason}")
+        if verdict.verdict == "proved" and expected is None:
             return
         if verdict.verdict == "inconclusive" and self.collection.claim_set.on_inconclusive == "warn":
             pytest.skip(f"idealcheck inconclusive: {verdict.reason}")

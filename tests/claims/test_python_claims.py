@@ -220,7 +220,7 @@ def test_math_functions_and_powers(tmp_path, monkeypatch):
         from math import fma, hypot
 
 
-        # idealcheck: returns (a, b, c, d, e, f, g)
+        # idealcheck: returns (x, x, x, x, x, x, x)
         def functions(x, y, z):
             return (math.sqrt(x), hypot(x, y), fma(x, y, z), pow(x, 3), math.pow(x, 0.5), np.cos(x) ** 2,
                     x ** -1)

@@ -67,13 +67,19 @@ def test_a_malformed_notebook_is_an_error_with_its_file(project: Path) -> None:
 
 
 def _hook_files(project: Path) -> tuple[list[str], str]:
-    """The files the pre-commit framework passes to the hook: its file typing against ``types_or``."""
+    """The files the pre-commit framework passes to the hook: its file typing against ``types`` (every tag
+    required) and ``types_or`` (any tag), as the framework documents them."""
     yaml = pytest.importorskip("yaml")  # both come with pre-commit, in the [test] extra
     identify = pytest.importorskip("identify.identify")
     (hook,) = yaml.safe_load((CHECKOUT / ".pre-commit-hooks.yaml").read_text())
-    wanted = set(hook["types_or"])
+    every, some = set(hook.get("types", ["file"])), set(hook.get("types_or", []))
     files = sorted(str(p.relative_to(project)) for p in project.rglob("*") if p.is_file())
-    return [f for f in files if wanted & identify.tags_from_path(str(project / f))], hook["entry"]
+
+    def passed(name: str) -> bool:
+        tags = identify.tags_from_path(str(project / name))
+        return every <= tags and (not some or bool(some & tags))
+
+    return [f for f in files if passed(f)], hook["entry"]
 
 
 def test_check_the_api_and_the_hook_entry_find_the_same_claims(project: Path) -> None:

@@ -115,9 +115,9 @@ def test_check_accuracy_ranks_the_naive_root_as_less_accurate(cli):
     assert result.code == 0, result.out + result.err
     out = result.out
     assert "proved" in out
-    assert "the right side is more accurate on these samples" in out
+    assert "the claim is more accurate on these samples" in out
     assert "sampled estimate" in out and "not a bound" in out and "numerical review" in out
-    left_line = next(line for line in out.splitlines() if line.strip().startswith("left"))
+    left_line = next(line for line in out.splitlines() if line.strip().startswith("the function"))
     assert "ulp" in left_line and "b = " in left_line
 
 
@@ -147,7 +147,7 @@ def test_accuracy_settings_from_the_config(tmp_path, monkeypatch, cli):
     assert run.code == 0
     out = run.out
     assert "30 sampled points" in out
-    assert "the right side is more accurate on these samples" in out
+    assert "the claim is more accurate on these samples" in out
     # the command line overrides the config
     run = cli("check", "roots.py", "--no-cache", "--in-process", "--accuracy", "--accuracy-samples", "7")
     assert run.code == 0

@@ -4,7 +4,9 @@ from __future__ import annotations
 from collections.abc import Callable
 
 from verifier.claims.comments import MARKER, CommentClaim, find_comments
+from verifier.claims.expectation import attach_expectations, strip_expectations
 from verifier.claims.expression import PYTHON_EXTENSIONS, expression_claims
+from verifier.claims.unknown_names import flag_unknown_names
 from verifier.model.claim import Claim, ExtractionContext
 
 PythonExtractor = Callable[[str, str, list[CommentClaim], ExtractionContext], list[Claim]]
@@ -40,11 +42,15 @@ def python_comments(text: str) -> list[CommentClaim]:
 
 def extract_python_module(path: str, text: str, context: ExtractionContext) -> list[Claim]:
     """The claims of ``text`` read as a Python module, reported under ``path`` (notebooks build such a text)."""
-    comments = python_comments(text)
+    found = python_comments(text)
+    comments, expectations, problems = strip_expectations(found)
     extract_python = _python_extractor()
     if extract_python is not None:
-        return extract_python(path, text, comments, context)
-    return [claim for comment in comments for claim in expression_claims(comment, path, context)]
+        claims = extract_python(path, text, comments, context)
+    else:
+        claims = [claim for comment in comments for claim in expression_claims(comment, path, context)]
+    claims = flag_unknown_names(path, text, claims, comments, context)
+    return attach_expectations(claims, path, found, expectations, problems)
 
 
 def _prose_comments(path: str, text: str) -> list[CommentClaim] | None:
@@ -72,21 +78,27 @@ def extract(path: str, text: str, context: ExtractionContext | None = None) -> l
         from verifier.claims.notebook import extract_notebook
 
         return extract_notebook(path, text, context, extract_python_module)
-    if path.lower().endswith(PYTHON_EXTENSIONS):
-        extract_python = _python_extractor()
-        if extract_python is not None:
-            return extract_python(path, text, python_comments(text), context)
     prose = _prose_comments(path, text)
-    comments = find_comments(path, text) if prose is None else prose
-    if comments and _is_kernel(path):
+    python_file = path.lower().endswith(PYTHON_EXTENSIONS)
+    if python_file:
+        found = python_comments(text)  # comments and function docstrings
+    else:
+        found = find_comments(path, text) if prose is None else prose
+    # An inline `expect VERDICT: REASON` is split off before the claim is read, then put on its claims.
+    comments, expectations, problems = strip_expectations(found)
+    claims: list[Claim] = []
+    extract_python = _python_extractor() if python_file else None
+    if extract_python is not None:
+        claims = flag_unknown_names(path, text, extract_python(path, text, comments, context), comments, context)
+    elif comments and _is_kernel(path):
         # The kernel front ends (tree-sitter) load only for files of their languages that hold claims.
         from verifier.claims.kernels.extract import extract_kernel
 
-        return extract_kernel(path, text, comments, context)
-    claims: list[Claim] = []
-    for comment in comments:
-        claims.extend(expression_claims(comment, path, context))
-    return claims
+        claims = extract_kernel(path, text, comments, context)
+    else:
+        for comment in comments:
+            claims.extend(expression_claims(comment, path, context))
+    return attach_expectations(claims, path, found, expectations, problems)
 
 
 __all__ = ["extract", "extract_python_module", "python_comments", "find_comments", "expression_claims", "CommentClaim"]

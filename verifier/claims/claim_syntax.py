@@ -134,3 +134,20 @@ def stripped(offset: int, piece: str) -> tuple[int, str]:
     lead = len(piece) - len(piece.lstrip())
     return offset + lead, piece.strip()
 
+
+# Typographic operators (from papers, word processors, other languages) and what the claim language writes.
+NON_ASCII_OPERATORS: dict[str, str] = {
+    "\u00b7": "*", "\u22c5": "*", "\u2219": "*", "\u2022": "*", "\u00d7": "*", "\u2217": "*",
+    "\u00f7": "/", "\u2215": "/", "\u2212": "-", "\u2013": "-", "\u2014": "-",
+    "\u2264": "<=", "\u2266": "<=", "\u2265": ">=", "\u2267": ">=", "\u2260": "!=",
+    "\u2261": "==", "\uff1d": "==", "\u00b2": "**2", "\u00b3": "**3", "\u221a": "sqrt(...)",
+}
+
+
+def check_operator_characters(text: str) -> None:
+    """A ``ClaimSyntaxError`` with the fix at the first typographic operator (``a·b`` is not a name)."""
+    for offset, char in enumerate(text):
+        fix = NON_ASCII_OPERATORS.get(char)
+        if fix is not None:
+            raise ClaimSyntaxError(f"`{char}` (U+{ord(char):04X}) is not an operator of the claim language; "
+                                   f"write `{fix}` instead", offset)

@@ -20,6 +20,7 @@ from verifier.claims.claim_syntax import (
     ClaimSource,
     ClaimSyntaxError,
     check_brackets,
+    check_operator_characters,
     one_line,
     split_top_level,
     stripped,
@@ -229,6 +230,7 @@ def split_given(text: str) -> tuple[str, str | None, int]:
 def parse_claim_text(text: str, named: NamedSets = None) -> ParsedClaim:
     """Parse what follows ``idealcheck:`` (offsets in errors are relative to ``text``)."""
     text = one_line(text)
+    check_operator_characters(text)
     head, given_text, given_offset = split_given(text)
     conditions: tuple[Condition, ...] = ()
     if given_text is not None:

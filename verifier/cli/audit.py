@@ -23,6 +23,7 @@ from verifier.cli.options import (
     load_config_or_exit,
     on_inconclusive,
     run_options,
+    single_output,
 )
 from verifier.features.audit import AuditError, plan_audit, run_audit
 from verifier.model.claim import Condition, ExtractionContext
@@ -90,6 +91,7 @@ def run_audit_command(args: argparse.Namespace) -> int:
             return table
         return render(verdicts, report_format, version=__version__, on_inconclusive=failing)
 
-    emit_report(args.format, args.output, report, text_beside_machine=True,
+    stdout_format, targets = single_output(args.format, args.output)
+    emit_report(stdout_format, targets, report, text_beside_machine=True,
                 extra=accuracy_section(verdicts, accuracy_settings(args, config), ("optimized", "reference")))
     return EXIT_FINDINGS if any(fails_run(v, failing) for v in verdicts) else EXIT_OK

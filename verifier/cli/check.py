@@ -3,6 +3,7 @@ from __future__ import annotations
 
 import argparse
 import os
+import sys
 from collections.abc import Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING
@@ -16,7 +17,6 @@ from verifier.cli.options import (
     accuracy_settings,
     add_accuracy_options,
     add_config_option,
-    add_format_options,
     add_run_mode_options,
     add_worker_options,
     emit_report,
@@ -24,10 +24,23 @@ from verifier.cli.options import (
     on_inconclusive,
     run_options,
 )
+from verifier.claims.near_miss import near_misses
+from verifier.cli.report_options import (
+    OutputTarget,
+    add_report_options,
+    detail_of,
+    no_claims_message,
+    plan_outputs,
+    repository_root,
+    terminal_width,
+    use_color,
+)
 from verifier.pipeline.config import Config
 from verifier.pipeline.discover import DiscoveryError
 from verifier.pipeline.runner import CheckRequest, check_run, parse_shard
-from verifier.report import fails_run, render
+from verifier.report import Format, fails_run, render
+from verifier.report.escape import shown
+from verifier.report.sarif import render_sarif_failure
 
 if TYPE_CHECKING:
     from verifier.cli.options import Subparsers
@@ -48,7 +61,6 @@ def register(subparsers: Subparsers) -> None:
     )
     parser.add_argument("paths", nargs="*", metavar="PATH", help="files or folders (default: .); "
                         "a file selects the claims that depend on it, wherever they are in the project")
-    add_format_options(parser, stdout_text="the text report")
     add_worker_options(parser, unit="claim")
     parser.add_argument("--shard", type=_shard, metavar="K/N", help="decide only the K-th of N deterministic shares of the claims")
     parser.add_argument("--staged", action="store_true", help="read the git index and check only claims touched by staged files")
@@ -58,6 +70,7 @@ def register(subparsers: Subparsers) -> None:
     add_run_mode_options(parser, unit="claim")
     add_config_option(parser)
     add_accuracy_options(parser)
+    add_report_options(parser)  # --format, --output FORMAT=FILE, -q/-v, --color, --require-claims
     parser.set_defaults(handler=run_check)
 
 
@@ -86,6 +99,22 @@ def config_start(paths: Sequence[str] | None, cwd: Path) -> Path:
 
 
 def run_check(args: argparse.Namespace) -> int:
+    stdout_format, targets = plan_outputs(args)
+    try:
+        return _run_check(args, stdout_format, targets)
+    except UsageError as exc:
+        # CI uploads the SARIF file whatever happened: give it a valid one that says why the run stopped
+        for target in targets:
+            if target.fmt == "sarif":
+                try:
+                    Path(target.path).write_text(render_sarif_failure(f"idealcheck: {exc}", version=__version__),
+                                                 encoding="utf-8")
+                except OSError:
+                    pass
+        raise
+
+
+def _run_check(args: argparse.Namespace, stdout_format: Format, targets: list[OutputTarget]) -> int:
     if args.staged and args.since:
         raise UsageError("--staged and --since cannot be combined")
     cwd = Path.cwd()
@@ -106,16 +135,38 @@ def run_check(args: argparse.Namespace) -> int:
         options=run_options(args, config),
         on_inconclusive=failing,
     )
+    texts: dict[str, str] = {}
     try:
-        result = check_run(request)
+        result = check_run(request, texts_out=texts)
     except DiscoveryError as exc:
         raise UsageError(str(exc)) from exc
     verdicts, skipped = list(result.verdicts), result.skipped
+    if not args.quiet:
+        _warn_near_misses(texts)
+    root = repository_root(str(cwd)) or str(config.root)
+    detail = detail_of(args)
+
+    def report(report_format: Format, color: bool = False, width: int | None = None) -> str:
+        return render(verdicts, report_format, version=__version__, on_inconclusive=failing, skipped=skipped,
+                      detail=detail, color=color, cwd=str(cwd), repository_root=root, width=width)  # type: ignore[arg-type]
+
     emit_report(
-        args.format,
-        args.output,
-        lambda report_format: render(verdicts, report_format, version=__version__, on_inconclusive=failing,
-                                     skipped=skipped),
+        stdout_format,
+        targets,
+        report,
         extra=accuracy_section(verdicts, accuracy_settings(args, config), options=request.options),
+        render_for_terminal=lambda: report("text", use_color(args.color, sys.stdout), terminal_width(sys.stdout)),
     )
+    if not verdicts:
+        if not args.quiet or args.require_claims:
+            print(no_claims_message(args.paths, args.require_claims), file=sys.stderr)
+        if args.require_claims:
+            return EXIT_FINDINGS
     return EXIT_FINDINGS if any(fails_run(v, failing) for v in verdicts) else EXIT_OK
+
+
+def _warn_near_misses(texts: dict[str, str]) -> None:
+    """A warning on stderr for each comment that misspells the claim marker (it is silently no claim)."""
+    for path in sorted(texts):
+        for miss in near_misses(path, texts[path]):
+            print(f"{path}:{miss.line}:{miss.column}: warning: {shown(miss.message())}", file=sys.stderr)

@@ -33,7 +33,8 @@ def register(subparsers: Subparsers) -> None:
         description="Decide the claim starting on FILE:LINE and show its condition ideal, reduced Groebner "
                     "basis, leading-term ideal, dimension, normal forms and the certificate or witness.",
     )
-    parser.add_argument("target", metavar="FILE:LINE", help="the file and the line the claim starts on")
+    parser.add_argument("target", metavar="FILE:LINE[:COL]",
+                        help="the file and the line the claim starts on (the place the check report prints works too)")
     add_timeout_option(parser, "seconds for the decision and again for the explanation (config: timeout)")
     add_accuracy_options(parser)
     add_config_option(parser)

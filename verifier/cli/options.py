@@ -19,6 +19,7 @@ from collections.abc import Callable, Sequence
 from pathlib import Path
 from typing import TYPE_CHECKING
 
+from verifier.cli.report_options import OutputTarget
 from verifier.model.accuracy import DEFAULT_RANGE, DEFAULT_SAMPLES, AccuracySettings
 from verifier.model.verdict import Verdict
 from verifier.pipeline.config import MAX_ACCURACY_SAMPLES, Config, ConfigError, OnInconclusive, load_config
@@ -216,48 +217,62 @@ def accuracy_settings(args: argparse.Namespace, config: Config) -> AccuracySetti
 
 
 def accuracy_section(verdicts: Sequence[Verdict], settings: AccuracySettings | None,
-                     side_names: tuple[str, str] = ("left", "right"), options: RunOptions | None = None) -> str:
-    """The ``--accuracy`` text section for the proved verdicts ("" without ``--accuracy``)."""
+                     side_names: tuple[str, str] | None = None, options: RunOptions | None = None) -> str:
+    """The ``--accuracy`` text section for the proved verdicts ("" without ``--accuracy``); without
+    ``side_names`` each claim's sides are named after it (the function, the claim)."""
     if settings is None:
         return ""
     # mpmath (through the evaluators) loads only when accuracy is asked for: keeps --help fast
     from verifier.features.accuracy import estimate_verdicts
     from verifier.report.accuracy_text import render_accuracy_section
+    from verifier.report.common import side_names as names_of
 
-    return render_accuracy_section(estimate_verdicts(verdicts, settings, options), side_names)
+    items = estimate_verdicts(verdicts, settings, options)
+    if side_names is not None:
+        return render_accuracy_section(items, side_names)
+    per_item = [names_of(v.claim) for v in verdicts if v.verdict == "proved"]
+    return render_accuracy_section(items, names_per_item=per_item)
+
+
+def single_output(report_format: Format, output: str | None) -> tuple[Format, list[OutputTarget]]:
+    """The stdout format and files of the plain ``--format F --output FILE`` pair: FILE gets F, stdout
+    then gets the text for people."""
+    if not output:
+        return report_format, []
+    return "text", [OutputTarget(report_format, output)]
 
 
 def emit_report(
-    report_format: Format,
-    output: str | None,
+    stdout_format: Format,
+    targets: Sequence[OutputTarget],
     render: Callable[[Format], str],
     *,
     extra: str = "",
     text_beside_machine: bool = False,
+    render_for_terminal: Callable[[], str] | None = None,
 ) -> None:
     """Write a report where the options say.
 
     ``render(format)`` gives the report in a format ("text": the report for people); ``extra`` is text
-    that only people read (the accuracy section).  With ``--output`` the file gets the report in
-    ``--format`` and stdout the text; without it stdout gets the report in ``--format``, and when that
-    is machine-readable the extra text (and the text report, if ``text_beside_machine``) goes to stderr
-    so that stdout stays parseable.
+    that only people read (the accuracy section), so it goes with every text report.  Each target file
+    gets its format; stdout gets ``stdout_format`` (the text from ``render_for_terminal`` when given, which
+    may add colour).  When stdout is machine-readable, the extra text (and the text report, if
+    ``text_beside_machine``) goes to stderr so that stdout stays parseable - unless a text file has it.
     """
-    if output:
-        text = render("text")
-        written = text if report_format == "text" else render(report_format)
+    for target in targets:
+        written = render(target.fmt) + (extra if target.fmt == "text" else "")  # type: ignore[arg-type]
         try:
-            Path(output).write_text(written, encoding="utf-8")
+            Path(target.path).write_text(written, encoding="utf-8")
         except OSError as exc:
-            raise UsageError(f"--output: cannot write {output}: {exc.strerror or exc}") from exc
-        write_stdout(text + extra)
-    elif report_format == "text":
-        write_stdout(render("text") + extra)
-    else:
-        write_stdout(render(report_format))
-        aside = (render("text") if text_beside_machine else "") + extra
-        if aside:
-            sys.stderr.write(aside)
+            raise UsageError(f"--output: cannot write {target.path}: {exc.strerror or exc}") from exc
+    if stdout_format == "text":
+        write_stdout((render_for_terminal() if render_for_terminal else render("text")) + extra)
+        return
+    write_stdout(render(stdout_format))
+    text_in_file = any(t.fmt == "text" for t in targets)
+    aside = "" if text_in_file else (render("text") if text_beside_machine else "") + extra
+    if aside:
+        sys.stderr.write(aside)
 
 
 def write_stdout(text: str) -> None:

@@ -67,8 +67,26 @@ def parse_target(text: str) -> tuple[str, int]:
     return path, int(line)
 
 
-def claims_on_line(path: str, line: int, context: ExtractionContext, *, cwd: str = ".") -> list[Claim]:
-    """The claims of ``path`` that start on ``line`` (a chain gives several); ExplainError when none."""
+def parse_place(text: str) -> tuple[str, int, int | None]:
+    """``FILE:LINE`` or ``FILE:LINE:COLUMN`` (as the report prints a place) -> (file, line, column or None)."""
+    parts = text.rsplit(":", 2)
+    if len(parts) == 3 and parts[0] and parts[1].strip().isdigit() and parts[2].strip().isdigit():
+        path, line, column = parts[0], int(parts[1]), int(parts[2])
+        if line < 1 or column < 1:
+            raise ExplainError(f"expected FILE:LINE or FILE:LINE:COLUMN with numbers >= 1, got {text!r}")
+        return path, line, column
+    try:
+        path, line = parse_target(text)
+    except ExplainError:
+        raise ExplainError(f"expected FILE:LINE or FILE:LINE:COLUMN with numbers >= 1, got {text!r}") from None
+    return path, line, None
+
+
+def claims_on_line(path: str, line: int, context: ExtractionContext, *, cwd: str = ".",
+                   column: int | None = None) -> list[Claim]:
+    """The claims of ``path`` that start on ``line`` (a chain gives several); ExplainError when none.
+
+    With ``column`` only the claims at that place, when the line holds claims at several columns."""
     from verifier.claims import extract
 
     full = os.path.join(cwd, path)
@@ -85,6 +103,13 @@ def claims_on_line(path: str, line: int, context: ExtractionContext, *, cwd: str
         lines = sorted({c.location.line for c in claims})
         where = ("claims in this file start on lines " + ", ".join(map(str, lines))) if lines else "the file has no claims"
         raise ExplainError(f"no idealcheck claim starts on line {line} of {relative} ({where})")
+    if column is not None and len({c.location.column for c in found}) > 1:
+        at_column = [c for c in found if c.location.column == column]
+        if not at_column:
+            columns = ", ".join(str(col) for col in sorted({c.location.column for c in found}))
+            raise ExplainError(f"no idealcheck claim at line {line}, column {column} of {relative} "
+                               f"(claims on that line are at columns {columns})")
+        found = at_column
     return found
 
 
@@ -271,8 +296,8 @@ def explain(
     timeout: float = DEFAULT_TIMEOUT_SECONDS,
     accuracy: AccuracySettings | None = None,
 ) -> Explanation:
-    """Explain every claim starting at ``target`` (``FILE:LINE``)."""
-    path, line = parse_target(target)
-    claims = claims_on_line(path, line, context, cwd=cwd)
+    """Explain every claim starting at ``target`` (``FILE:LINE`` or ``FILE:LINE:COLUMN``)."""
+    path, line, column = parse_place(target)
+    claims = claims_on_line(path, line, context, cwd=cwd, column=column)
     explained = tuple(explain_claim(c, timeout=timeout, accuracy=accuracy) for c in claims)
     return Explanation(claims[0].location.path, line, explained)

@@ -75,6 +75,17 @@ class Problem:
 
 
 @dataclass(frozen=True)
+class Expectation:
+    """An accepted known result written on the claim: ``expect inconclusive: REASON`` after the claim text.
+
+    The claim passes while its verdict is ``verdict``; any other verdict (a proof included) is reported and fails.
+    """
+
+    verdict: Literal["refuted", "inconclusive", "error"]
+    reason: str
+
+
+@dataclass(frozen=True)
 class Claim:
     id: str  # stable within a run: "path:line:col", with "#k" for the k-th link of a chain
     location: Location
@@ -84,6 +95,7 @@ class Claim:
     problem: Problem | None = None  # set instead of obligations when the claim cannot be decided
     notes: tuple[str, ...] = ()  # claim-wide facts for the report (e.g. "inlined helpers.norm2 from geo/helpers.py")
     dependencies: tuple[str, ...] = field(default=())  # files (relative paths) the claim depends on, itself included
+    expected: Expectation | None = None  # an accepted known verdict (inline `expect VERDICT: REASON`)
 
 
 @dataclass(frozen=True)

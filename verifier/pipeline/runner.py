@@ -420,10 +420,15 @@ def with_cache(request: CheckRequest, texts: dict[str, str]) -> tuple[RunOptions
     return dataclasses.replace(options, cache=cache), ()
 
 
-def check_run(request: CheckRequest) -> RunResult:
-    """Run a whole check: the verdicts (in the order the claims were found) and what was not read."""
+def check_run(request: CheckRequest, *, texts_out: dict[str, str] | None = None) -> RunResult:
+    """Run a whole check: the verdicts (in the order the claims were found) and what was not read.
+
+    ``texts_out``, when given, receives the texts of the files read (the command line warns about
+    misspelt claim markers in them)."""
     allow_long_integers()
     warm_up_workers(request.options)
     claims, texts, skipped = gather_claims(request)
+    if texts_out is not None:
+        texts_out.update(texts)
     options, refused = with_cache(request, texts)
     return RunResult(tuple(run(claims, options)), skipped + refused)

@@ -38,24 +38,51 @@ def accuracy_lines(
     for name, side in ((side_names[0], estimate.left), (side_names[1], estimate.right)):
         lines.append(f"{indent}  {name:<{width}}: median {_ulps(side.median_ulps)}, worst {_ulps(side.worst_ulps)} at {_point(side)}")
         lines.append(f"{indent}  {'':<{width}}  (double result {side.worst_computed!r}, exact {side.worst_exact})")
-    if estimate.more_accurate is None:
-        lines.append(f"{indent}  both sides are equally accurate on these samples")
-    else:
-        better = side_names[0] if estimate.more_accurate == "left" else side_names[1]
-        lines.append(f"{indent}  the {better} side is more accurate on these samples")
+    lines.append(f"{indent}  {comparison(estimate.left, estimate.right, side_names)}")
     return lines
 
 
+def _side(name: str) -> str:
+    """``the left side``; names that are already a phrase (``the function``, ``this function``) stay."""
+    return name if name.startswith(("the ", "this ")) else f"the {name} side"
+
+
+def _lower(left: float, right: float, names: tuple[str, str]) -> str | None:
+    if left == right:
+        return None
+    return _side(names[0] if left < right else names[1])
+
+
+def comparison(left: SideAccuracy, right: SideAccuracy, names: tuple[str, str]) -> str:
+    """Which side has the lower median and which the lower worst error, said separately when they differ."""
+    median = _lower(left.median_ulps, right.median_ulps, names)
+    worst = _lower(left.worst_ulps, right.worst_ulps, names)
+    if median == worst:
+        if median is None:
+            return "both sides have the same median and worst error on these samples"
+        return f"{median} is more accurate on these samples (lower median and lower worst error)"
+    median_text = (f"lower median error: {median} ({_ulps(left.median_ulps)} vs {_ulps(right.median_ulps)})"
+                   if median else f"equal median error ({_ulps(left.median_ulps)})")
+    worst_text = (f"lower worst error: {worst} ({_ulps(left.worst_ulps)} vs {_ulps(right.worst_ulps)})"
+                  if worst else f"equal worst error ({_ulps(left.worst_ulps)})")
+    return f"{median_text}; {worst_text}; neither side is better on both"
+
+
 def render_accuracy_section(
-    items: Sequence[tuple[str, Sequence[AccuracyEstimate]]], side_names: tuple[str, str] = ("left", "right")
+    items: Sequence[tuple[str, Sequence[AccuracyEstimate]]],
+    side_names: tuple[str, str] = ("left", "right"),
+    names_per_item: Sequence[tuple[str, str]] | None = None,
 ) -> str:
-    """A report section: for each (heading, estimates) the estimate lines, then the disclaimer."""
+    """A report section: for each (heading, estimates) the estimate lines, then the disclaimer.
+
+    ``names_per_item`` names the sides of each item (the function and the claim), else ``side_names``."""
     lines: list[str] = ["", "floating-point accuracy (IEEE double, in the order the source writes each side):"]
     if not items:
         lines.append("    no proved claim to measure")
-    for heading, estimates in items:
+    for number, (heading, estimates) in enumerate(items):
+        names = names_per_item[number] if names_per_item is not None else side_names
         lines.append(f"  {heading}")
         for estimate in estimates:
-            lines.extend(accuracy_lines(estimate, side_names=side_names))
+            lines.extend(accuracy_lines(estimate, side_names=names))
     lines.append(ACCURACY_DISCLAIMER)
     return shown_lines(lines)

@@ -21,6 +21,10 @@ def claim_object(verdict: Verdict) -> dict[str, Any]:
             "right": verdict.witness.right,
         }
     cell = {} if claim.location.cell is None else {"cell": claim.location.cell}  # notebooks: line is in the cell
+    # an inline `expect VERDICT: REASON`, only when the claim has one (and whether it holds)
+    expected = {} if claim.expected is None else {"expected": {
+        "verdict": claim.expected.verdict, "reason": claim.expected.reason,
+        "met": verdict.verdict == claim.expected.verdict}}
     return {
         "id": claim.id,
         "path": claim.location.path,
@@ -35,6 +39,7 @@ def claim_object(verdict: Verdict) -> dict[str, Any]:
         "counter_normal_form": verdict.counter_normal_form,
         "witness": witness,
         "assumed": list(verdict.assumed),
+        **expected,
         "seconds": round(verdict.seconds, 3),
     }
 
