@@ -12,6 +12,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 from typing import Any, Protocol, Sequence
 
+import flint
 from sympy.polys.rings import PolyElement, PolyRing
 
 from verifier.algebra.groebner_division import (
@@ -68,6 +69,8 @@ class GroebnerResult:
 
 def _to_ring(vector: Vector, ring: PolyRing) -> tuple[PolyElement, ...]:
     domain = ring.domain
+    if domain.dtype is flint.fmpq:  # sympy runs on FLINT's rationals: no conversion per coefficient
+        return tuple(ring.dtype(zip([tuple(map(int, m)) for m in part.monoms()], part.coeffs())) for part in vector)
     return tuple(
         ring.from_dict({m: domain(int(c.numerator), int(c.denominator)) for m, c in part.to_dict().items()})
         for part in vector

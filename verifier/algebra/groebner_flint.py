@@ -96,8 +96,10 @@ class _Run:
             raise GroebnerTimeout("Groebner basis computation passed its deadline")
 
     def reduce(self, p: Any, sugar: int, origin: Origin) -> int | None:
-        """Reduce ``p`` by the current basis (smallest lead first); record and return it if nonzero."""
-        order = tuple(sorted(self.active, key=lambda k: self.key(self.lms[k])))
+        """Reduce ``p`` by the current basis, oldest element first; record and return it if nonzero."""
+        # Divisor order matters to FLINT's quasi-division: oldest first measured cyclic-6 1.5 s, smallest
+        # lead first 27 s, largest lead first 43 s, newest first 250 s (katsura-7: 1.0 / 1.3 / 2.3 / 2.2 s).
+        order = tuple(self.active)
         if order:
             p = p.reduction_primitive_part(flint.fmpz_mpoly_vec([self.polys[k] for k in order], self.ctx))
         if p.is_zero():
