@@ -73,7 +73,7 @@ def test_random_ideal_matches_sympy(seed: int) -> None:
     result = groebner_basis(generators)
     assert list(result.basis) == expected
     assert_cofactors_hold(result, generators)
-    assert groebner_basis(generators, track_cofactors=False) == GroebnerResult(result.basis, None, len(generators))
+    assert groebner_basis(generators, track_cofactors=False) == GroebnerResult(result.basis, False, len(generators))
 
     # Normal forms: our remainder equals sympy's remainder modulo the same Groebner basis.
     f = random_poly(rng, ring_, max_degree + 1, 4)
@@ -176,7 +176,8 @@ def test_unit_circle_and_line() -> None:
 
 def test_empty_and_zero_inputs() -> None:
     R, x, y = ring("x,y", QQ, grevlex)
-    assert groebner_basis([]) == GroebnerResult((), (), 0)
+    assert groebner_basis([]) == GroebnerResult((), True, 0)
+    assert groebner_basis([]).cofactors == ()
     result = groebner_basis([R.zero, R.zero])
     assert result.basis == () and result.cofactors == ()
     assert membership_cofactors(R.zero, result) == (R.zero, R.zero)
@@ -275,3 +276,55 @@ def test_non_rational_coefficients_rejected() -> None:
     R, x, y = ring("x,y", ZZ, grevlex)
     with pytest.raises(ValueError):
         groebner_basis([x - y])
+
+
+# ------------------------------------------------------------------------- lex through grevlex (FGLM)
+
+
+def cyclic(n: int, order):
+    """Cyclic n-roots (Bjoerck and Froeberg, J. Symbolic Comput. 12, 1991)."""
+    R, *x = ring(",".join(f"x{i}" for i in range(n)), QQ, order)
+    system = []
+    for length in range(1, n):
+        total = R.zero
+        for start in range(n):
+            term = R.one
+            for k in range(length):
+                term *= x[(start + k) % n]
+            total += term
+        system.append(total)
+    product = R.one
+    for v in x:
+        product *= v
+    return system + [product - 1]
+
+
+@pytest.mark.parametrize("system", [
+    pytest.param(lambda: cyclic(4, lex), id="cyclic-4"),
+    pytest.param(lambda: [p.set_ring(ring("u0,u1,u2,u3", QQ, lex)[0]) for p in katsura(3)], id="katsura-3"),
+])
+def test_zero_dimensional_lex_matches_sympy(system) -> None:
+    """Zero-dimensional lex bases come from grevlex and a change of order; reference: sympy's lex basis."""
+    generators = system()
+    R = generators[0].ring
+    result = groebner_basis(generators)
+    assert list(result.basis) == sympy_groebner(generators, R, method="buchberger")
+    assert_cofactors_hold(result, generators)
+    member = combination([R.gens[0] ** 2, R.gens[-1], R.one] + [R.zero] * (len(generators) - 3), generators)
+    cofactors = membership_cofactors(member, result)
+    assert cofactors is not None and member == combination(cofactors, generators)
+
+
+def test_katsura_4_membership_lift_expands() -> None:
+    """Cofactors lifted for one member only (not for the basis) still expand to it; reference: sympy's
+    grevlex basis for the basis itself."""
+    generators = katsura(4)
+    R = generators[0].ring
+    result = groebner_basis(generators)
+    assert list(result.basis) == sympy_groebner(generators, R, method="buchberger")
+    u = R.gens
+    member = combination([u[1] ** 2, u[0] * u[2], R.one, u[3], u[4] ** 3], generators)
+    cofactors = membership_cofactors(member, result)
+    assert cofactors is not None and member == combination(cofactors, generators)
+    assert result.basis != (R.one,)  # katsura-4 has solutions, so 1 is not a member
+    assert membership_cofactors(member + R.one, result) is None

@@ -1,12 +1,20 @@
-"""Times idealcheck's Groebner engine against sympy's own Buchberger on a few standard systems.
+"""Times idealcheck's Groebner engine against Singular, sympy's own Buchberger and the previous engine.
 
-Run: ``python tests/benchmarks/bench_groebner.py``.  Prints seconds and ratios (ours / sympy) measured in
-this one run; nothing is asserted about time.  Each row also checks that both bases agree.
+Run: ``python tests/benchmarks/bench_groebner.py [runs]``.  Prints CPU seconds and ratios measured in this
+one run; nothing is asserted about time.  Every row also checks that the bases agree.  Singular (Debian
+package ``singular``) is only a reference here, never a runtime dependency; its rows are skipped with a
+note when it is not installed.  The previous engine (pure Python, cofactors tracked during the run) is
+loaded from git history (commit OLD_ENGINE_COMMIT) into a temporary module.
 """
 from __future__ import annotations
 
+import importlib.util
+import shutil
+import subprocess
 import sys
+import tempfile
 import time
+from pathlib import Path
 from typing import Callable
 
 from sympy.polys.domains import QQ
@@ -14,7 +22,9 @@ from sympy.polys.groebnertools import groebner as sympy_groebner
 from sympy.polys.orderings import grevlex, lex
 from sympy.polys.rings import PolyElement, ring
 
-from verifier.algebra.groebner import GroebnerTimeout, groebner_basis
+from verifier.algebra.groebner import GroebnerTimeout, groebner_basis, membership_cofactors
+
+OLD_ENGINE_COMMIT = "fedfe9a"
 
 LIMIT = 120.0  # seconds per run of our engine before it is reported as a time-out
 
@@ -75,16 +85,98 @@ SYSTEMS: list[tuple[str, Callable[[], list[PolyElement]]]] = [
 
 
 def best_of(runs: int, action: Callable[[], object]) -> tuple[float, object]:
+    """Least CPU time over ``runs`` runs (CPU, so the figures do not depend on machine load)."""
     best, value = float("inf"), None
     for _ in range(runs):
-        start = time.perf_counter()
+        start = time.process_time()
         value = action()
-        best = min(best, time.perf_counter() - start)
+        best = min(best, time.process_time() - start)
     return best, value
+
+
+def old_engine():
+    """The engine as of OLD_ENGINE_COMMIT, or None outside a git checkout."""
+    root = Path(__file__).resolve().parents[2]
+    shown = subprocess.run(["git", "show", f"{OLD_ENGINE_COMMIT}:verifier/algebra/groebner.py"], cwd=root,
+                           capture_output=True, text=True)
+    if shown.returncode != 0:
+        return None
+    path = Path(tempfile.mkdtemp()) / "old_groebner.py"
+    path.write_text(shown.stdout)
+    spec = importlib.util.spec_from_file_location("old_groebner", path)
+    module = importlib.util.module_from_spec(spec)
+    sys.modules["old_groebner"] = module  # dataclasses look their module up while decorating
+    spec.loader.exec_module(module)
+    return module
+
+
+def singular_seconds(system: list[PolyElement], repeats: int) -> float | None:
+    """CPU seconds of one reduced ``std`` in Singular (average over ``repeats``), or None without it."""
+    if shutil.which("Singular") is None:
+        return None
+    ring_ = system[0].ring
+    names = ",".join(str(s) for s in ring_.symbols)
+    order = {"grevlex": "dp", "lex": "lp"}[ring_.order.alias]
+    ideal = ",\n".join(str(p.as_expr()).replace("**", "^") for p in system)
+    script = (f"ring r = 0, ({names}), {order}; ideal i = {ideal}; option(redSB);\n"
+              f'system("--ticks-per-sec", 1000); ideal g; int t = timer;\n'
+              f"for (int k = 1; k <= {repeats}; k++) {{ g = std(i); }}\n"
+              f"print(timer - t); print(size(g)); quit;\n")
+    out = subprocess.run(["Singular", "-q"], input=script, capture_output=True, text=True).stdout.split()
+    return int(out[0]) / 1000.0 / repeats
+
+
+def member_of(system: list[PolyElement]) -> PolyElement:
+    """A member of the ideal of the kind a proof needs: a combination of the generators with polynomial
+    multipliers (here x_i^2 times generator i, plus x_0 times the product of the last and second)."""
+    x = system[0].ring.gens
+    return sum((x[i % len(x)] ** 2 * g for i, g in enumerate(system)), system[0].ring.zero) \
+        + x[0] * system[-1] * system[1]
+
+
+def singular_rows(runs: int, old) -> None:
+    print("\nagainst Singular (CPU seconds; goal <= 10x for grevlex, <= 100x for lex) and the previous engine")
+    print(f"{'system':22} {'Singular s':>10} {'ours s':>8} {'ratio':>7} {'previous s':>10} {'new/prev':>8}")
+    for name, build, repeats in [("katsura-7 grevlex", lambda: katsura(7), 3),
+                                 ("cyclic-6 grevlex", lambda: cyclic(6), 20),
+                                 ("katsura-4 lex", lambda: katsura(4, lex), 50)]:
+        system = build()
+        t_ours, ours = best_of(runs, lambda: groebner_basis(system, track_cofactors=False))
+        t_sing = singular_seconds(system, repeats)
+        sing_text = (f"{t_sing:10.4f} {t_ours:8.3f} {t_ours / t_sing:7.1f}" if t_sing
+                     else f"{'(absent)':>10} {t_ours:8.3f} {'-':>7}")
+        prev_text = f"{'-':>10} {'-':>8}"
+        if old is not None:
+            t_old, previous = best_of(1, lambda: old.groebner_basis(system, track_cofactors=False))
+            assert list(previous.basis) == list(ours.basis), f"{name}: engines disagree"
+            prev_text = f"{t_old:10.2f} {t_ours / t_old:8.3f}"
+        print(f"{name:22} {sing_text} {prev_text}")
+    if shutil.which("Singular") is None:
+        print("(Singular is not installed: apt-get install singular for the reference rows)")
+
+
+def cofactor_rows(runs: int) -> None:
+    print("\ncofactors (what an ideal proof needs): tracked basis plus the lift of one member, against the "
+          "plain basis; goal <= 3x")
+    print(f"{'system':22} {'plain s':>8} {'proof s':>8} {'ratio':>7} {'all basis cofactors s':>22}")
+    for name, build in [("katsura-7 grevlex", lambda: katsura(7)), ("cyclic-6 grevlex", lambda: cyclic(6))]:
+        system = build()
+        member = member_of(system)
+        t_plain, _ = best_of(runs, lambda: groebner_basis(system, track_cofactors=False))
+
+        def proof():
+            result = groebner_basis(system)
+            return result, membership_cofactors(member, result)
+
+        t_proof, (result, cofactors) = best_of(1, proof)
+        assert cofactors is not None
+        t_all, _ = best_of(1, lambda: groebner_basis(system).cofactors)
+        print(f"{name:22} {t_plain:8.3f} {t_proof:8.3f} {t_proof / t_plain:7.1f} {t_all:22.3f}")
 
 
 def main() -> int:
     runs = int(sys.argv[1]) if len(sys.argv) > 1 else 3
+    print("against sympy's Buchberger (CPU seconds)")
     print(f"{'system':30} {'sympy s':>9} {'ours s':>9} {'ratio':>7} {'ours+cof s':>11} {'ratio':>7}  size")
     for name, build in SYSTEMS:
         system = build()
@@ -96,12 +188,14 @@ def main() -> int:
         assert list(plain.basis) == ref, f"{name}: basis differs from sympy's"
         try:
             t_cof, _ = best_of(
-                1, lambda: groebner_basis(system, track_cofactors=True, deadline=time.monotonic() + LIMIT)
+                1, lambda: groebner_basis(system, deadline=time.monotonic() + LIMIT).cofactors
             )
             cof_text = f"{t_cof:11.4f} {t_cof / t_ref:7.2f}"
         except GroebnerTimeout:
             cof_text = f"{'>' + str(int(LIMIT)):>11} {'-':>7}"
         print(f"{name:30} {t_ref:9.4f} {t_plain:9.4f} {t_plain / t_ref:7.2f} {cof_text}  {len(ref)}")
+    singular_rows(runs, old_engine())
+    cofactor_rows(runs)
     return 0
 
 
