@@ -70,7 +70,9 @@ class GroebnerResult:
 def _to_ring(vector: Vector, ring: PolyRing) -> tuple[PolyElement, ...]:
     domain = ring.domain
     if domain.dtype is flint.fmpq:  # sympy runs on FLINT's rationals: no conversion per coefficient
-        return tuple(ring.dtype(zip([tuple(map(int, m)) for m in part.monoms()], part.coeffs())) for part in vector)
+        # PolyRing.dtype is set when the ring is built; sympy declares no type for it
+        element = ring.dtype  # type: ignore[attr-defined]
+        return tuple(element(zip([tuple(map(int, m)) for m in part.monoms()], part.coeffs())) for part in vector)
     return tuple(
         ring.from_dict({m: domain(int(c.numerator), int(c.denominator)) for m, c in part.to_dict().items()})
         for part in vector
@@ -196,8 +198,8 @@ def reduce(
     remainder = divide(ctx, dict(f), reducers, quotients)
     result = [ring.zero for _ in basis]
     for i, q in zip(positions, quotients):
-        result[i] = ring.dtype(q)
-    return tuple(result), ring.dtype(dict(remainder))
+        result[i] = ring.dtype(q)  # type: ignore[attr-defined]  # set at run time, undeclared in sympy
+    return tuple(result), ring.dtype(dict(remainder))  # type: ignore[attr-defined]  # as above
 
 
 def membership_cofactors(

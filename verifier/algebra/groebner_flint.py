@@ -181,7 +181,7 @@ def _interreduce(run: _Run) -> tuple[list[int], list[Any]]:
     if not run.active:
         return [], []
     vec = flint.fmpz_mpoly_vec([run.polys[k] for k in run.active], run.ctx).autoreduction()
-    by_lead = {p.monomial(0): normalized(p) for p in (vec[i] for i in range(len(vec)))}
+    by_lead = {p.monomial(0): normalized(p) for p in (vec[i] for i in range(len(vec)))}  # type: ignore[arg-type]  # the vector has __len__; flint declares no type for it
     final = sorted(run.active, key=lambda k: run.key(run.lms[k]), reverse=True)
     if set(by_lead) != {run.lms[k] for k in final}:
         raise RuntimeError("inter-reduction changed the leading monomials of a minimal basis")

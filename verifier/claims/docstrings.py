@@ -12,6 +12,8 @@ from __future__ import annotations
 
 import re
 
+from collections.abc import Sequence
+
 import libcst as cst
 
 from verifier.claims.comments import MARKER, CommentClaim
@@ -26,6 +28,7 @@ _NEWLINE = re.compile(r"\r\n|\r|\n")
 def _docstring_parts(node: cst.FunctionDef) -> list[cst.SimpleString]:
     """The string literals that make up the function's docstring; [] when it has none."""
     body = node.body
+    smalls: Sequence[cst.CSTNode]
     if isinstance(body, cst.IndentedBlock):
         if not body.body or not isinstance(body.body[0], cst.SimpleStatementLine):
             return []

@@ -51,10 +51,10 @@ def near_misses(path: str, text: str) -> list[NearMiss]:
     for segment in comment_segments(path, text):
         body = segment.body
         skip = len(body) - len(body.lstrip(_DECORATION))
-        match = _NEAR.match(body, skip)
-        if match is None or match.group(0) == MARKER:
+        near = _NEAR.match(body, skip)
+        if near is None or near.group(0) == MARKER:
             continue
-        found.append(NearMiss(segment.line, segment.start + skip + 1, match.group(0)))
+        found.append(NearMiss(segment.line, segment.start + skip + 1, near.group(0)))
     return found
 
 
