@@ -110,6 +110,14 @@ class Lowering:
     def line(self, node: Any) -> int:
         return self.source.line(node)
 
+    def name_value(self, name: str, line: int) -> t.Node:
+        """A plain name in an expression: a parameter or local, else a file constant, else unsupported."""
+        if name in self.scope:
+            return t.Name(name, line)
+        if name in self.constants:
+            return self.constants[name]
+        return t.Unsupported(f"the name {name} is not a parameter, local or constant", line)
+
     def unsupported(self, node: Any, construct: str | None = None) -> t.Unsupported:
         what = construct or f"`{self.text(node).strip().splitlines()[0][:40]}` ({node.type.replace('_', ' ')})"
         return t.Unsupported(f"unsupported construct {what}", self.line(node))

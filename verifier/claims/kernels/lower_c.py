@@ -340,12 +340,7 @@ class CLowering(Lowering):
         if kind in ("true", "false"):
             return t.Lit(1 if kind == "true" else 0, "int")  # type: ignore[arg-type]
         if kind == "identifier":
-            name = self.text(node)
-            if name in self.scope:
-                return t.Name(name, line)
-            if name in self.constants:
-                return self.constants[name]
-            return t.Unsupported(f"the name {name} is not a parameter, local or constant", line)
+            return self.name_value(self.text(node), line)
         if kind == "qualified_identifier":
             name = self.text(node).split("::")[-1]
             if name in self.constants:

@@ -213,12 +213,7 @@ class JuliaLowering(Lowering):
         if kind == "boolean_literal":
             return t.Lit(Fraction(1 if self.text(node) == "true" else 0), "int")
         if kind == "identifier":
-            name = self.text(node)
-            if name in self.scope:
-                return t.Name(name, line)
-            if name in self.constants:
-                return self.constants[name]
-            return t.Unsupported(f"the name {name} is not a parameter, local or constant", line)
+            return self.name_value(self.text(node), line)
         if kind == "binary_expression":
             left, operator, right = node.named_children[0], node.named_children[1], node.named_children[-1]
             op = self.text(operator)

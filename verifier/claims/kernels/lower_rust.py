@@ -220,12 +220,7 @@ class RustLowering(Lowering):
         if kind == "boolean_literal":
             return t.Lit(Fraction(1 if self.text(node) == "true" else 0), "int")
         if kind == "identifier":
-            name = self.text(node)
-            if name in self.scope:
-                return t.Name(name, line)
-            if name in self.constants:
-                return self.constants[name]
-            return t.Unsupported(f"the name {name} is not a parameter, local or constant", line)
+            return self.name_value(self.text(node), line)
         if kind == "scoped_identifier":
             name = self.text(node).split("::")[-1]
             return self.constants.get(name, self.unsupported(node))
