@@ -123,7 +123,7 @@ def test_ctrl_c_ends_the_run_with_one_message(tmp_path: Path) -> None:
     process = subprocess.Popen([sys.executable, "-m", "verifier", "check", "--no-cache", "--jobs", "3",
                                 "--timeout", "60", "."], cwd=tmp_path, stdout=subprocess.PIPE,
                                stderr=subprocess.PIPE, env=env, start_new_session=True)
-    time.sleep(4)  # let the workers start reading the files (not an assertion on time)
+    _wait_for_workers(process.pid)  # a signal before the handlers are in place would test nothing
     os.killpg(process.pid, signal.SIGINT)  # what a terminal does on Ctrl-C
     try:
         _out, err = process.communicate(timeout=60)
@@ -132,4 +132,18 @@ def test_ctrl_c_ends_the_run_with_one_message(tmp_path: Path) -> None:
             os.killpg(process.pid, signal.SIGKILL)
     stderr = err.decode()
     assert "Traceback" not in stderr and "KeyboardInterrupt" not in stderr, stderr
-    assert stderr.count("interrupted") == 1 and process.returncode == 130
+    assert stderr.count("interrupted") == 1 and process.returncode == 130, (process.returncode, stderr)
+
+
+def _wait_for_workers(pid: int) -> None:
+    """Until the run has started a worker process (Linux: /proc lists children), or 30 s have passed."""
+    children = Path(f"/proc/{pid}/task/{pid}/children")
+    deadline = time.monotonic() + 30
+    while time.monotonic() < deadline:
+        if not children.exists():  # no /proc: fall back to a fixed pause
+            time.sleep(4)
+            return
+        if children.read_text().split():
+            time.sleep(0.5)  # the worker has been forked; let it take its first job
+            return
+        time.sleep(0.05)

@@ -44,7 +44,7 @@ DESCRIPTOR_RESERVE = 10  # for the fork server's own connections and the files t
 FORKSERVER_DESCRIPTORS = 24  # with fewer free, workers are spawned: a fork server short of them crashes
 # The largest memory limit the address-space limit can express (bytes in a signed 64-bit number).
 MAX_MEMORY_MB = (2**63 - 1) // (1024 * 1024)
-PRELOAD = ["verifier.pipeline.workers", "verifier.algebra.decide", "verifier.claims"]
+PRELOAD = ["verifier.pipeline.preload", "verifier.pipeline.workers", "verifier.algebra.decide", "verifier.claims"]
 
 
 @dataclass(frozen=True)
