@@ -108,7 +108,9 @@ class Translator:
         if exponent.denominator == 2:
             base = self.sqrt(base)
         k = exponent.numerator
-        if k >= 0:
+        if k == 0:  # x**0 is 1 for every x, 0**0 included (Python's and the polynomial ring's convention)
+            return self.ring.one
+        if k > 0:
             return self.lift(base) ** k
         if not base:
             raise TranslationError("division by zero: a negative power of 0")
