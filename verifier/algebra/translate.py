@@ -59,16 +59,16 @@ _SIGN_RELATIONS = ("<", "<=", ">", ">=")
 
 
 def _substitute_constants(obligation: Obligation) -> Obligation:
-    """Replace v by c wherever a condition says ``v == c`` (c a constant), except in those conditions
-    themselves.  Sound because the two agree at every point where the conditions hold, and it lets
-    ``exp(x) == 1 given x == 0`` see the value inside exp, sin and cos."""
+    """Replace v by c wherever a condition says ``v == c`` (c a constant: a number, ``-1``, ``pi/2``), except
+    in those conditions themselves.  Sound because the two agree at every point where the conditions hold,
+    and it lets ``exp(x) == 1 given x == 0`` see the value inside exp, sin and cos."""
     constants: dict[str, Expr] = {}
     defining: set[int] = set()
     for index, cond in enumerate(obligation.conditions):
         if cond.relation != "==":
             continue
         pair = (cond.left, cond.right) if isinstance(cond.left, Var) else (cond.right, cond.left)
-        if isinstance(pair[0], Var) and isinstance(pair[1], Num) and pair[0].name not in constants:
+        if isinstance(pair[0], Var) and _is_closed(pair[1]) and pair[0].name not in constants:
             constants[pair[0].name] = pair[1]
             defining.add(index)
     if not constants:
@@ -80,6 +80,11 @@ def _substitute_constants(obligation: Obligation) -> Obligation:
     )
     return replace(obligation, left=substitute(obligation.left, constants),
                    right=substitute(obligation.right, constants), conditions=conditions)
+
+
+def _is_closed(expr: Expr) -> bool:
+    """A constant expression: no variable anywhere in it (named constants such as pi are not variables)."""
+    return isinstance(expr, Num) or not variables(expr)
 
 
 def _positive_variables(conditions: Sequence[Condition]) -> set[str]:
