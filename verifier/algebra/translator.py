@@ -24,6 +24,7 @@ from sympy import QQ, Symbol, factorint
 from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
+from verifier.algebra.angles import MIN_ANGLE_STEP, PI_FRACTIONS, lcm, multiple_angle, scaled
 from verifier.algebra.polytext import format_poly, parenthesized, poly_key
 from verifier.model.explanation import AuxKind, AuxVariable
 from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold, preorder
@@ -55,6 +56,7 @@ class Translator:
         self._memo: dict[Expr, PolyElement] = {}
         self._counter = 0
         self._angle_scale: dict[tuple, int] = {}  # direction key -> lcm of coefficient denominators
+        self._angle_step: dict[tuple, int] = {}  # direction key -> gcd of the scaled coefficients
         self.domain_signs: list[tuple[PolyElement, bool]] = []  # radicands >= 0, log arguments > 0
         self.positive_variables: set[str] = set()  # variables with a hypothesis v > 0 (or v >= c > 0)
         self._exp_scale: dict[tuple, int] = {}
@@ -326,8 +328,12 @@ class Translator:
                     "pre-scan should have fixed its scale"
                 )
             multiple = coeff.numerator * (scale // coeff.denominator)
-            c, s = self._angle_pair(key, direction, scale)
-            ck, sk = _multiple_angle(self.lift(c), self.lift(s), abs(multiple), self.const(1))
+            step = self._angle_step.get(key, 1)
+            if step < MIN_ANGLE_STEP or multiple % step or self._is_pi(key):
+                step = 1  # multiples of pi keep pi/scale as their base: its exact values are known
+            multiple //= step
+            c, s = self._angle_pair(key, direction, scale, step)
+            ck, sk = multiple_angle(self.lift(c), self.lift(s), abs(multiple), self.const(1))
             if multiple < 0:
                 sk = -sk
             cos_value, sin_value = (
@@ -336,19 +342,24 @@ class Translator:
             )
         return self.lift(cos_value), self.lift(sin_value)
 
-    def _angle_pair(self, key: tuple, direction: PolyElement, scale: int) -> tuple[PolyElement, PolyElement]:
-        base_text = _scaled(self.printed(direction), scale)
-        c = self.atom(("cos", key, scale), "c", f"cos({base_text})", "cos")
-        s = self.atom(("sin", key, scale), "s", f"sin({base_text})", "sin")
-        pair_key = ("pair", key, scale)
+    def _is_pi(self, key: tuple) -> bool:
+        pi_name = self._atoms.get(("opaque", "pi", ()))
+        return pi_name is not None and key == ("poly", poly_key(self.gen(pi_name)))
+
+    def _angle_pair(self, key: tuple, direction: PolyElement, scale: int,
+                    step: int = 1) -> tuple[PolyElement, PolyElement]:
+        base_text = scaled(self.printed(direction), scale, step)
+        c = self.atom(("cos", key, scale, step), "c", f"cos({base_text})", "cos")
+        s = self.atom(("sin", key, scale, step), "s", f"sin({base_text})", "sin")
+        pair_key = ("pair", key, scale, step)
         if pair_key not in self._atoms:
             self._atoms[pair_key] = ""
             c, s = self.lift(c), self.lift(s)
             self.add_generator(s**2 + c**2 - 1, "trig", f"sin({base_text})**2 + cos({base_text})**2 == 1")
             pi_name = self._atoms.get(("opaque", "pi", ()))
-            if pi_name and key == ("poly", poly_key(self.gen(pi_name))) and scale in _PI_FRACTIONS:
+            if pi_name and key == ("poly", poly_key(self.gen(pi_name))) and step == 1 and scale in PI_FRACTIONS:
                 # exact values at pi/scale (common practice): sin(pi) = 0, cos(pi/3) = 1/2, ...
-                for relation, text in _PI_FRACTIONS[scale]:
+                for relation, text in PI_FRACTIONS[scale]:
                     self.add_generator(relation(self.lift(c), self.lift(s)), "trig",
                                        text.replace("X", base_text))
         return self.lift(c), self.lift(s)
@@ -360,7 +371,7 @@ class Translator:
             if scale % coeff.denominator:
                 raise TranslationError(f"exponent {self.printed(direction)} appears with incompatible fractions")
             multiple = coeff.numerator * (scale // coeff.denominator)
-            base_text = _scaled(self.printed(direction), scale)
+            base_text = scaled(self.printed(direction), scale)
             e = self.atom(("exp", key, scale), "e", f"exp({base_text})", "exp")
             ei = self.atom(("exp_inv", key, scale), "ei", f"exp(-{parenthesized(base_text)})", "exp_inverse")
             pair_key = ("exp_pair", key, scale)
@@ -382,32 +393,21 @@ class Translator:
     # -- pre-scan: the common scale of every angle / exponential direction
 
     def prescan(self, exprs: Sequence[Expr]) -> None:
+        found: dict[tuple, list[Fraction]] = {}  # direction key -> every coefficient of an angle
         for expr in exprs:
             for call in _scaled_calls(expr):
                 exponential = FUNCTIONS[call.function].family == "exponential"
                 table = self._exp_scale if exponential else self._angle_scale
                 for key, _direction, coeff in self._directions(self.value(call.args[0])):
-                    table[key] = _lcm(table.get(key, 1), coeff.denominator)
+                    table[key] = lcm(table.get(key, 1), coeff.denominator)
+                    if not exponential:
+                        found.setdefault(key, []).append(coeff)
+        for key, coeffs in found.items():
+            scale = self._angle_scale[key]
+            self._angle_step[key] = math.gcd(*(int(c * scale) for c in coeffs))
         # the pre-scan created no auxiliary variables for angles (only for the arguments' own
         # divisions and radicals); translation proper starts from a clean memo so that calls are redone
         self._memo = {k: v for k, v in self._memo.items() if not _has_scaled_call(k)}
-
-
-_PI_FRACTIONS = {
-    1: ((lambda c, s: c + 1, "cos(X) == -1"), (lambda c, s: s, "sin(X) == 0")),
-    2: ((lambda c, s: c, "cos(X) == 0"), (lambda c, s: s - 1, "sin(X) == 1")),
-    3: ((lambda c, s: 2 * c - 1, "cos(X) == 1/2"), (lambda c, s: 4 * s**2 - 3, "sin(X)**2 == 3/4")),
-    4: ((lambda c, s: 2 * c**2 - 1, "cos(X)**2 == 1/2"), (lambda c, s: s - c, "sin(X) == cos(X)")),
-    6: ((lambda c, s: 4 * c**2 - 3, "cos(X)**2 == 3/4"), (lambda c, s: 2 * s - 1, "sin(X) == 1/2")),
-}
-
-
-def _lcm(a: int, b: int) -> int:
-    return a * b // math.gcd(a, b)
-
-
-def _scaled(text: str, scale: int) -> str:
-    return text if scale == 1 else f"{parenthesized(text)}/{scale}"
 
 
 _FACTOR_LIMIT = 10**12  # constant radicands beyond this are not factored
@@ -427,19 +427,6 @@ def _split_constant_radicand(value: Fraction) -> tuple[Fraction, list[int]] | No
     if len(primes) <= 1 and outside == 1:
         return None  # already a single prime radical: nothing to split
     return outside, primes
-
-
-def _multiple_angle(c: PolyElement, s: PolyElement, k: int, one: PolyElement) -> tuple[PolyElement, PolyElement]:
-    """(cos(k*u), sin(k*u)) from c = cos(u), s = sin(u): the real and imaginary parts of (c + i*s)**k."""
-    re, im = one, one * 0
-    base_re, base_im = c, s
-    while k:
-        if k & 1:
-            re, im = re * base_re - im * base_im, re * base_im + im * base_re
-        k >>= 1
-        if k:
-            base_re, base_im = base_re**2 - base_im**2, 2 * base_re * base_im
-    return re, im
 
 
 class _Polynomials:
