@@ -272,19 +272,13 @@ class ExprConverter:
             return self.power(self._convert(node.left), node.right, node)
         raise self.error(f"unsupported operator `{_OPERATOR_SPELLING.get(op, '?')}`", node)
 
-    def power(self, base: Expr, exponent_node: ast.AST, node: ast.AST) -> Pow:
+    def power(self, base: Expr, exponent_node: ast.AST, node: ast.AST) -> Expr:
+        """``base ** exponent``; a power the algebra cannot represent (``2**x``, ``8**(1/3)``, ``x**1e400``)
+        is well-formed text, so it is an opaque value, not an error: the claim is then inconclusive."""
         exponent_expr = self._convert(exponent_node)
         exponent = self.fold(exponent_expr, exponent_node)
-        if exponent is None:
-            raise self.error("the exponent must be a constant number (like `2`, `-1` or `1/2`)", exponent_node)
-        if exponent.denominator not in (1, 2):
-            raise self.error(
-                f"non-integer power {exponent} of a non-radical: only integer exponents and halves "
-                "(square roots) are supported",
-                exponent_node,
-            )
-        if abs(exponent) > MAX_EXPONENT:
-            raise self.error(f"the exponent {exponent} is too large (limit {MAX_EXPONENT})", exponent_node)
+        if exponent is None or exponent.denominator not in (1, 2) or abs(exponent) > MAX_EXPONENT:
+            return Opaque("pow", (base, exponent_expr))
         return Pow(base, exponent)
 
     def fold(self, expr: Expr, node: ast.AST) -> Fraction | None:
