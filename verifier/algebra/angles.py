@@ -1,8 +1,6 @@
 """Angles for the translator: exact values at pi/n, the multiple-angle expansion, how a base angle prints."""
 from __future__ import annotations
 
-import math
-
 from sympy.polys.rings import PolyElement
 
 from verifier.algebra.polytext import parenthesized
@@ -18,10 +16,6 @@ PI_FRACTIONS = {
     4: ((lambda c, s: 2 * c**2 - 1, "cos(X)**2 == 1/2"), (lambda c, s: s - c, "sin(X) == cos(X)")),
     6: ((lambda c, s: 4 * c**2 - 3, "cos(X)**2 == 3/4"), (lambda c, s: 2 * s - 1, "sin(X) == 1/2")),
 }
-
-
-def lcm(a: int, b: int) -> int:
-    return a * b // math.gcd(a, b)
 
 
 def scaled(text: str, scale: int, step: int = 1) -> str:

@@ -84,7 +84,7 @@ def _substitute_constants(obligation: Obligation) -> Obligation:
 
 def _is_closed(expr: Expr) -> bool:
     """A constant expression: no variable anywhere in it (named constants such as pi are not variables)."""
-    return isinstance(expr, Num) or not variables(expr)
+    return not variables(expr)
 
 
 def _positive_variables(conditions: Sequence[Condition]) -> set[str]:

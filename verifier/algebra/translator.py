@@ -24,7 +24,7 @@ from sympy import QQ, Symbol, factorint
 from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
-from verifier.algebra.angles import MIN_ANGLE_STEP, PI_FRACTIONS, lcm, multiple_angle, scaled
+from verifier.algebra.angles import MIN_ANGLE_STEP, PI_FRACTIONS, multiple_angle, scaled
 from verifier.algebra.polytext import format_poly, parenthesized, poly_key
 from verifier.model.explanation import AuxKind, AuxVariable
 from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold, preorder
@@ -356,8 +356,7 @@ class Translator:
             self._atoms[pair_key] = ""
             c, s = self.lift(c), self.lift(s)
             self.add_generator(s**2 + c**2 - 1, "trig", f"sin({base_text})**2 + cos({base_text})**2 == 1")
-            pi_name = self._atoms.get(("opaque", "pi", ()))
-            if pi_name and key == ("poly", poly_key(self.gen(pi_name))) and step == 1 and scale in PI_FRACTIONS:
+            if step == 1 and scale in PI_FRACTIONS and self._is_pi(key):
                 # exact values at pi/scale (common practice): sin(pi) = 0, cos(pi/3) = 1/2, ...
                 for relation, text in PI_FRACTIONS[scale]:
                     self.add_generator(relation(self.lift(c), self.lift(s)), "trig",
@@ -399,7 +398,7 @@ class Translator:
                 exponential = FUNCTIONS[call.function].family == "exponential"
                 table = self._exp_scale if exponential else self._angle_scale
                 for key, _direction, coeff in self._directions(self.value(call.args[0])):
-                    table[key] = lcm(table.get(key, 1), coeff.denominator)
+                    table[key] = math.lcm(table.get(key, 1), coeff.denominator)
                     if not exponential:
                         found.setdefault(key, []).append(coeff)
         for key, coeffs in found.items():
