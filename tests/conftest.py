@@ -3,6 +3,8 @@
 - ``cli(*args, cwd=None, fresh_process=False)`` runs ``idealcheck`` and returns its exit status and
   output: in this process by default (fast), or as ``python -m verifier`` in a fresh interpreter when
   the test is about the program as installed (start-up, module guard, environment);
+  ``cli.verdicts(folder, file_name, texts, *args)`` writes each text as a ``# idealcheck:`` comment line of
+  one Python file, checks it and returns each claim text's verdict;
 - ``git_repo`` is an empty git repository in the test's ``tmp_path`` with a fixed identity, no commit
   signing and no system configuration; call it to run git there.
 
@@ -13,10 +15,11 @@ from __future__ import annotations
 
 import contextlib
 import io
+import json
 import os
 import subprocess
 import sys
-from collections.abc import Mapping
+from collections.abc import Iterable, Mapping
 from pathlib import Path
 from typing import NamedTuple
 
@@ -58,6 +61,12 @@ class Cli:
         finally:
             os.chdir(previous)
         return CliResult(code, out.getvalue(), err.getvalue())
+
+    def verdicts(self, folder: Path, file_name: str, texts: Iterable[str], *args: str) -> dict[str, str]:
+        """Each claim text's verdict, from a JSON report of one file of ``# idealcheck:`` comments."""
+        (folder / file_name).write_text("".join(f"# idealcheck: {text}\n" for text in texts))
+        result = self("check", "--no-cache", "--format", "json", *args, file_name, cwd=folder)
+        return {claim["text"]: claim["verdict"] for claim in json.loads(result.out)["claims"]}
 
 
 @pytest.fixture(scope="session")
