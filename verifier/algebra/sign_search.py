@@ -137,6 +137,7 @@ def _claim_part(tr: Translation) -> tuple[tuple[str, ...], PolyData, tuple[PolyD
 def find_sign_proof(tr: Translation, basis: GroebnerResult, *,
                     deadline: float | None) -> ConjugateCertificate | None:
     """A certificate of the conjugate argument for ``tr.difference``, or None."""
+    f = tr.difference
     ring = tr.ring
     symbols = [str(s) for s in ring.symbols]
     positive = nonnegative_symbols(tr)
@@ -145,11 +146,11 @@ def find_sign_proof(tr: Translation, basis: GroebnerResult, *,
         if not a or not b:
             continue
         r = ring.gens[index]
-        # the certificate speaks of the form linear in r, not of f itself: its checker reads A and B
-        # off form +- multiplier, which for f would fail when f has r**2, r**3 ... (fuzzing defect D2)
+        # the certificate states the form linear in r besides f: its checker reads A and B off
+        # form +- multiplier, which for f itself fails when f has r**2, r**3 ... (fuzzing defect D2)
         form = a * r + b
         multiplier = a * r - b
-        cofactors = membership_cofactors(form * multiplier, basis, deadline=deadline)
+        cofactors = membership_cofactors(f * multiplier, basis, deadline=deadline)
         if cofactors is None:
             continue
         nonnegative = _nonnegative_form(-a * b, tr, basis, positive_index, deadline)

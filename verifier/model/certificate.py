@@ -37,7 +37,7 @@ class ConjugateCertificate:
     ``form`` is the target with every power root**k (k >= 2) reduced by root**2 == radicand, so linear
     in the root, and ``form_cofactors`` show ``target - form`` in the ideal (all zero when the target is
     linear in the root already).  With A, B defined by ``form == A*root + B`` and ``multiplier ==
-    A*root - B``: ``cofactors`` show ``form * multiplier`` in the ideal, and ``nonnegative_cofactors``
+    A*root - B``: ``cofactors`` show ``target * multiplier`` in the ideal, and ``nonnegative_cofactors``
     show ``-A*B - nonnegative - sum(lam*S)`` in it, where ``nonnegative`` has positive coefficients and
     odd powers only of ``nonnegative_symbols`` (principal roots, exponentials, variables with a sign
     hypothesis, inverses of such) and each S is a sign hypothesis S >= 0 with weight lam >= 0.

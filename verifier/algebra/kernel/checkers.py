@@ -78,10 +78,11 @@ def _without(p: PolyElement, index: int) -> PolyElement:
 
 
 def check_conjugate(cert: ConjugateCertificate) -> Premises:
-    """(0) target - form is in the ideal; (1) form*multiplier is in the ideal; (2) form + multiplier ==
-    2*A*root and form - multiplier == 2*B with A, B free of root; (3) -A*B - P - sum(lam*S) is in the
-    ideal, lam >= 0, and P has a nonnegative sign pattern.  Then -A*B >= 0, which with (A*root)**2 ==
-    B**2 and root >= 0 leaves only A*root == -B, i.e. form == 0, and so target == 0."""
+    """(0) target - form is in the ideal; (1) target*multiplier is in the ideal, hence form*multiplier
+    too; (2) form + multiplier == 2*A*root and form - multiplier == 2*B with A, B free of root; (3)
+    -A*B - P - sum(lam*S) is in the ideal, lam >= 0, and P has a nonnegative sign pattern.  Then
+    -A*B >= 0, which with (A*root)**2 == B**2 and root >= 0 leaves only A*root == -B, i.e. form == 0,
+    and so target == 0."""
     symbols = cert.symbols
     ring = certificate_ring(symbols)
     positive = symbol_indices(cert.nonnegative_symbols, symbols)
@@ -93,8 +94,8 @@ def check_conjugate(cert: ConjugateCertificate) -> Premises:
     generators = polys(cert.generators, ring)
     _require(target - form == combination(polys(cert.form_cofactors, ring), generators, ring),
              "target - form is not in the ideal")
-    _require(form * multiplier == combination(polys(cert.cofactors, ring), generators, ring),
-             "form * multiplier is not in the ideal")
+    _require(target * multiplier == combination(polys(cert.cofactors, ring), generators, ring),
+             "target * multiplier is not in the ideal")
     twice_b = form - multiplier
     twice_ar = form + multiplier
     _require(twice_b.degree(index) <= 0, "B depends on the root")
