@@ -136,6 +136,11 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
         return _proved(tr, label, method, 1, cleared, _proved_reason(method, tr))
     basis_result = groebner_basis(generators, deadline=deadline) if generators else None
     if basis_result is not None and _is_unit_ideal(basis_result.basis):
+        if not ob.conditions:
+            # nothing was given, so a denominator the claim divides by is 0 everywhere (tan(pi/2))
+            return ObligationResult(label, "inconclusive", None,
+                                    "division by zero: a denominator of the claim is 0 wherever it is defined",
+                                    None, None, tr.assumed)
         # the conditions have no common (complex, hence real) point: the claim holds vacuously
         assert basis_result.cofactors is not None
         one_cofactors = basis_result.cofactors[0]
