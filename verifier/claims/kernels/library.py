@@ -5,6 +5,7 @@ import os
 from typing import Any
 
 from verifier.claims.kernels import tree as t
+from verifier.claims.kernels.fixed_form import is_fixed_form, to_free_form
 from verifier.claims.kernels.locate import FunctionSite, SourceIndex
 from verifier.claims.kernels.parse import ParsedSource, language_of, parse_source
 
@@ -37,7 +38,7 @@ def lowering_for(source: ParsedSource, path: str) -> Any:
 class KernelFile:
     def __init__(self, path: str, text: str, language: str):
         self.path = path
-        self.source = parse_source(language, text)
+        self.source = parse_source(language, to_free_form(text) if is_fixed_form(path) else text)
         self.index = SourceIndex(self.source)
         self._lowering: Any = None
         self._functions: dict[int, t.Function] = {}
