@@ -56,6 +56,10 @@ class KernelFile:
         return self._functions[key]
 
     def named(self, name: str) -> t.Function | None:
+        owner, _, method = name.rpartition("::")
+        if owner and self.source.language == "rust":  # `Vec3::dot`: a method of `impl Vec3`
+            site = self.index.method_named(owner.rsplit("::", 1)[-1], method)
+            return self.function(site) if site is not None else None
         site = self.index.function_named(name)
         return self.function(site) if site is not None else None
 

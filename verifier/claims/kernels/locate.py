@@ -93,6 +93,17 @@ def function_name(source: ParsedSource, node: Any) -> str | None:
     return None
 
 
+def impl_owner(source: ParsedSource, node: Any) -> str | None:
+    """The type a Rust function item is a method or associated function of (``impl Vec3 { .. }``), or None."""
+    parent = node.parent
+    while parent is not None and parent.type == "declaration_list":
+        parent = parent.parent
+    if parent is None or parent.type != "impl_item":
+        return None
+    owner = parent.child_by_field_name("type")
+    return source.node_text(owner).split("<")[0].strip() if owner is not None else None
+
+
 def _julia_signature_call(node: Any) -> Any:
     """The ``f(args)`` call of a Julia definition (long form, or short form ``f(x) = ...``)."""
     if node.type == "function_definition":
@@ -192,6 +203,13 @@ class SourceIndex:
                         site.line == best.line and site.node.start_byte > best.node.start_byte):
                     best = site
         return best
+
+    def method_named(self, owner: str, name: str) -> FunctionSite | None:
+        """The method ``name`` of an ``impl owner`` block (Rust), or None."""
+        for site in self.functions:
+            if site.name == name and impl_owner(self.source, site.node) == owner:
+                return site
+        return None
 
     def function_named(self, name: str) -> FunctionSite | None:
         wanted = name.lower() if self.source.language == "fortran" else name
