@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import mpmath
 
-from verifier.model.expr import BinOp, Call, Neg, Num, Pow, Var
+from verifier.model.expr import BinOp, Call, Neg, Num, Opaque, Pow, Var
 
 _FUNCTIONS = {
     "sqrt": mpmath.sqrt,
@@ -57,6 +57,8 @@ def mp_eval(expr, env: dict):
         return base ** e.numerator
     if isinstance(expr, Call):
         return _FUNCTIONS[expr.function](*[mp_eval(a, env) for a in expr.args])
+    if isinstance(expr, Opaque) and expr.name == "pi" and not expr.args:
+        return +mpmath.pi
     raise TypeError(type(expr).__name__)
 
 
