@@ -176,3 +176,22 @@ def test_python_math_calls_map_through_the_same_table(cli: Cli, tmp_path: Path) 
     assert verdicts[31][0] == "inconclusive" and "line 33" in verdicts[31][1]
     assert verdicts[36][0] == "refuted"  # fmod keeps the sign of x: x = -1 gives -1, not 359
     assert verdicts[41][0] == "refuted"  # c smaller than a and b
+
+
+KERNEL_C = '''\
+#include <math.h>
+
+// idealcheck: returns x*x
+double square_of_magnitude(double x) { return fabs(x) * fabs(x); }
+
+// idealcheck: returns fabs(a)
+double with_sign_of(double a, double b) { return copysign(a, b); }
+'''
+
+
+def test_kernel_languages_take_abs_and_copysign_from_the_table(cli: Cli, tmp_path: Path) -> None:
+    # |x|*|x| == x*x, and copysign(1, -1) == -1 != |1| (C standard 7.12.11.1, common practice)
+    (tmp_path / "k.c").write_text(KERNEL_C)
+    result = cli("check", "--no-cache", "--format", "json", "k.c", cwd=tmp_path)
+    verdicts = {c["line"]: c["verdict"] for c in json.loads(result.out)["claims"]}
+    assert verdicts == {3: "proved", 6: "refuted"}
