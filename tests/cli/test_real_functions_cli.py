@@ -37,6 +37,11 @@ PROVED = [
     "sqrt(x**2) == abs(x)",
     "abs(x) == x given x >= 0",
     "floor(x) + 7 % 3 == floor(x) + 1",
+    # a condition that decides min, max or copysign gives its value (as the pieces of code do)
+    "max(a, b) == a given a >= b",
+    "min(a, b, c) == c given c < min(a, b)",
+    "copysign(x, b) == abs(x) given b > 0",
+    "copysign(x, b) == -abs(x) given 0 > b",
 ]
 
 REFUTED = [
@@ -58,6 +63,8 @@ REFUTED = [
     "x // y == x/y",
     "asin(x) + acos(x) == pi given x >= -1, x <= 1",
     "floor(x) == 2 given x**2 == 2, x > 0",  # floor(sqrt(2)) = 1
+    "max(a, b) == a given a <= b",
+    "copysign(x, b) == abs(x) given b < 0",
 ]
 
 NOT_REFUTED = [

@@ -5,13 +5,13 @@ from fractions import Fraction
 
 from sympy import factorint
 
-_FACTOR_LIMIT = 10**12  # constant radicands beyond this are not factored
+FACTOR_LIMIT = 10**12  # constants (radicands, log arguments) beyond this are not factored
 
 
 def split_constant_radicand(value: Fraction) -> tuple[Fraction, list[int]] | None:
     """sqrt(value) == outside * prod(sqrt(p) for p in primes), value > 0 rational, primes distinct."""
     numerator = value.numerator * value.denominator  # sqrt(n/d) = sqrt(n*d)/d
-    if value <= 0 or numerator > _FACTOR_LIMIT:
+    if value <= 0 or numerator > FACTOR_LIMIT:
         return None
     outside = Fraction(1, value.denominator)
     primes = []

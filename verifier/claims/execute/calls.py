@@ -5,6 +5,7 @@ from collections.abc import Sequence
 
 from verifier.claims.execute.expressions import Alternatives, Evaluator
 from verifier.claims.execute.functions import opaque_note
+from verifier.claims.execute.piecewise import PIECEWISE, pieces
 from verifier.claims.execute.scope import (
     BuiltinCallee,
     Callee,
@@ -68,6 +69,8 @@ class CallEvaluator(Evaluator):
         line = node.line
         callee = self.resolve(node, state, frame)
         if isinstance(callee, BuiltinCallee):
+            if callee.name in PIECEWISE:
+                return self._piecewise_call(callee.name, node, state, frame, builtin=True)
             return [_noted(after, self.builtin_value(callee.name, args, keywords, line, iterable, frame.ident), line)
                     for after, args, keywords in self.arguments(node, state, frame)]
         if isinstance(callee, MathCallee):
@@ -145,8 +148,35 @@ class CallEvaluator(Evaluator):
             result.append((after.with_note(note), Opaque(full_name, tuple(e for e in exprs if e is not None))))
         return result
 
-    def _math_call(self, name: str, node: ir.Invoke, state: State, frame: Frame) -> Alternatives:
+    def _piecewise_call(self, name: str, node: ir.Invoke, state: State, frame: Frame, builtin: bool
+                        ) -> Alternatives:
+        """``abs``, ``min``, ``max`` ... of numbers: one alternative per piece, its tests as path conditions."""
         line = node.line
+        result: Alternatives = []
+        for after, args, keywords in self.arguments(node, state, frame):
+            if builtin and name in ("min", "max") and len(args) == 1 and isinstance(args[0], Seq):
+                args = list(args[0].items)  # min(sequence)
+            exprs = [as_expr(a) for a in args]
+            split = None if keywords else pieces(name, [e for e in exprs if e is not None])
+            if split is None or None in exprs:
+                if builtin:
+                    result.append(_noted(after, self.builtin_value(name, args, keywords, line, False, frame.ident),
+                                         line))
+                else:
+                    result.extend(self._math_call(name, node, after, frame, split_pieces=False))
+                continue
+            for tests, value in split:
+                states = [after]
+                for left, relation, right in tests:
+                    states = [s2 for s1 in states for s2 in self.relation(left, relation, right, s1, line)]
+                result.extend((s, value) for s in states)
+        return result
+
+    def _math_call(self, name: str, node: ir.Invoke, state: State, frame: Frame, split_pieces: bool = True
+                   ) -> Alternatives:
+        line = node.line
+        if split_pieces and name in PIECEWISE:
+            return self._piecewise_call(name, node, state, frame, builtin=False)
         result: Alternatives = []
         for after, args, keywords in self.arguments(node, state, frame):
             if keywords:

@@ -177,7 +177,8 @@ class _KernelReader:
                   ) -> tuple[list[Obligation], list[str]]:
         form = "`same as`" if parsed.form == "same_as" else "`returns`"
         site = getattr(self, "site", None) or (
-            None if comment.trailing else self.home.index.function_below(comment.end_line))
+            None if comment.trailing else self.home.index.function_below(
+                comment.end_line if comment.subject_line is None else comment.subject_line - 1))
         if site is None:
             raise ClaimProblem("error", f"a {form} claim must be in the comment lines directly above a function "
                                         "definition (comments and attributes may sit in between); none follows")

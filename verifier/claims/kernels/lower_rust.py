@@ -18,7 +18,7 @@ _ASSIGN_OPS: dict[str, t.BinaryOp] = {"+=": "+", "-=": "-", "*=": "*", "/=": "/"
 _ARITHMETIC = {"+", "-", "*", "/"}
 _COMPARISONS = {"==", "!=", "<", "<=", ">", ">="}
 _METHODS = {"sqrt": "sqrt", "sin": "sin", "cos": "cos", "tan": "tan", "exp": "exp", "ln": "log", "abs": "abs",
-            "hypot": "hypot", "mul_add": "fma", "copysign": "copysign"}
+            "hypot": "hypot", "mul_add": "fma", "copysign": "copysign", "min": "min", "max": "max"}
 _STATEMENT_EXPRESSIONS = {"assignment_expression", "compound_assignment_expr", "for_expression",
                           "if_expression", "return_expression", "while_expression", "loop_expression",
                           "macro_invocation", "call_expression", "block"}
@@ -303,7 +303,7 @@ class RustLowering(Lowering):
             if method == "recip" and not args:
                 return t.Binary("/", t.Lit(Fraction(1), "real"), receiver, line)
             if method in _METHODS:
-                return t.MathCall(_METHODS[method], (receiver,) + args, line)
+                return t.as_cases(t.MathCall(_METHODS[method], (receiver,) + args, line))
             return self.unsupported(node, f"the method call `.{method}()`")
         if function.type in ("identifier", "scoped_identifier"):
             return self.math_or_call(self.text(function), args, node)
