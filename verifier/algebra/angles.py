@@ -2,10 +2,13 @@
 from __future__ import annotations
 
 from fractions import Fraction
+from typing import Iterator
 
 from sympy.polys.rings import PolyElement
 
 from verifier.algebra.polytext import parenthesized
+from verifier.model.expr import Call, Expr, preorder
+from verifier.model.functions import FUNCTIONS
 
 # A common multiple at least this large becomes the base angle: sin(10000*x) is one atom, not a
 # degree-10000 multiple-angle expansion; smaller multiples keep the expansion (sin(2*x) in sin(x), cos(x)).
@@ -47,3 +50,16 @@ def multiple_angle(c: PolyElement, s: PolyElement, k: int, one: PolyElement) -> 
         if k:
             base_re, base_im = base_re**2 - base_im**2, 2 * base_re * base_im
     return re, im
+
+
+def scaled_calls(expr: Expr) -> Iterator[Call]:
+    """The calls whose argument is split into base directions with a common scale (sin, cos, tan, exp),
+    outer calls first."""
+    for node in preorder(expr):
+        entry = FUNCTIONS.get(node.function) if isinstance(node, Call) else None
+        if isinstance(node, Call) and entry is not None and entry.family in ("trigonometric", "exponential"):
+            yield node
+
+
+def has_scaled_call(expr: Expr) -> bool:
+    return next(scaled_calls(expr), None) is not None

@@ -22,11 +22,11 @@ from sympy import factorint
 from sympy.polys.rings import PolyElement
 
 from verifier.algebra.polytext import poly_key
+from verifier.algebra.radicands import FACTOR_LIMIT  # noqa: F401  (re-exported: one limit for both)
 
 if TYPE_CHECKING:  # the translator calls these functions with itself: no import at run time
     from verifier.algebra.translator import Translator
 
-FACTOR_LIMIT = 10**12  # constants (radicands, log arguments) beyond this are not factored
 _MAX_DEPTH = 8  # log(1/sqrt(1/x)) nests inverses and radicals; deeper nests stay atoms
 _MAX_FACTORED_TERMS = 40  # log arguments with more terms are not factored
 _MAX_EXPONENT = 4096  # exp(k*log(w)) = w**k only for |k| up to this (as powers)

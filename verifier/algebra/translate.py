@@ -15,6 +15,7 @@ from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
 from verifier.algebra.polytext import format_poly  # noqa: F401  (re-exported: printing of translations)
+from verifier.algebra.cases import resolve_by_cases
 from verifier.algebra.translator import (
     GeneratorKind,
     TranslationError,
@@ -123,6 +124,7 @@ def _two_sided_bounds(signs: list[tuple[PolyElement, bool]], conditions: list[Co
 
 def translate(obligation: Obligation) -> Translation:
     """Translate one obligation; raises TranslationError for what cannot be represented."""
+    obligation = resolve_by_cases(obligation)
     substituted = _substitute_constants(obligation)
     if substituted is not obligation:
         try:

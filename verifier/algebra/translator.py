@@ -6,10 +6,14 @@ Every construct that is not a polynomial gets a fresh variable and the equations
   ``hypot(a, b)`` is ``sqrt(a**2 + b**2)`` and ``fma(a, b, c)`` is ``a*b + c``;
 - ``sin``/``cos`` of integer-linear combinations of angles: one (s, c) pair per base angle with
   ``s**2 + c**2 - 1``; the multiple-angle and addition formulas are expanded exactly; ``tan`` is sin/cos;
-- ``exp`` of linear combinations: one e and its inverse per base quantity with ``e*ei - 1``;
+- ``exp`` of linear combinations: one e and its inverse per base quantity with ``e*ei - 1``; ``expm1``,
+  ``sinh``, ``cosh`` and ``tanh`` are written with them;
 - ``log`` and opaque calls: one variable per distinct argument (nothing else is known about it), except
   where the logarithm laws hold on their domain (``logarithms.py``): log(4) = 2*log(2), log(exp(a)) = a,
-  log(x/y) = log(x) - log(y) given x > 0, y > 0, exp(log(x)) = x given x > 0;
+  log(x/y) = log(x) - log(y) given x > 0, y > 0, exp(log(x)) = x given x > 0; ``log1p(u)`` is
+  ``log(1 + u)``; the functions of the table's ``opaque`` family (atan, floor, min, ...) likewise get one
+  variable per distinct argument (their exact value when the arguments are constants);
+- ``radians(u)`` is ``u*pi/180``, ``degrees(u)`` is ``u*180/pi`` and ``abs(u)`` is ``sqrt(u**2)``;
 - ``pi``: an opaque constant whose sine and cosine at pi/n (n = 1, 2, 3, 4, 6, 12) are known exactly, as
   rational combinations of the radical variables sqrt(2), sqrt(3) (so their signs are known too);
 - a square root of a rational constant: one radical per prime of its square-free part.
@@ -20,19 +24,27 @@ from __future__ import annotations
 
 import math
 from fractions import Fraction
-from typing import Iterator, Literal, Sequence
+from typing import Literal, Sequence
 
-from sympy import QQ, Symbol, factorint
+from sympy import QQ, Symbol
 from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
 from verifier.algebra import logarithms
-from verifier.algebra.angles import MIN_ANGLE_STEP, PI_VALUES, RootSum, multiple_angle, scaled
-from verifier.algebra.logarithms import FACTOR_LIMIT
+from verifier.algebra.angles import (
+    MIN_ANGLE_STEP,
+    PI_VALUES,
+    RootSum,
+    has_scaled_call,
+    multiple_angle,
+    scaled,
+    scaled_calls,
+)
 from verifier.algebra.polytext import format_poly, parenthesized, poly_key
+from verifier.algebra.radicands import split_constant_radicand
 from verifier.model.explanation import AuxKind, AuxVariable
-from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold, preorder
-from verifier.model.functions import FUNCTIONS, rational_sqrt
+from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold
+from verifier.model.functions import FUNCTIONS, DomainError, NotRational, rational_sqrt
 
 GeneratorKind = Literal["equation", "nonzero", "inverse", "radical", "trig", "exp"]
 
@@ -188,7 +200,7 @@ class Translator:
             root = rational_sqrt(value)
             if root is not None:
                 return self.const(root)
-            split = _split_constant_radicand(value)
+            split = split_constant_radicand(value)
             if split is not None:
                 # sqrt(12) = 2*sqrt(3), sqrt(6) = sqrt(2)*sqrt(3): one radical per prime (all >= 0)
                 outside, primes = split
@@ -232,6 +244,8 @@ class Translator:
             return self.sqrt(args[0] ** 2 + args[1] ** 2)
         if function == "fma":
             return args[0] * args[1] + args[2]
+        if function == "abs":  # |u| is the principal square root of u**2
+            return self.sqrt(args[0] ** 2)
         if function in ("sin", "cos", "tan"):
             argument = args[0]
             cos_value, sin_value = self.angle(argument)
@@ -241,11 +255,34 @@ class Translator:
                 return cos_value
             inverse_cos = self.inverse(cos_value, f"cos({self.printed(self.lift(argument))})")
             return self.lift(sin_value) * inverse_cos
-        if function == "exp":
-            return self.exponential(args[0])
+        if function in ("exp", "expm1", "sinh", "cosh", "tanh"):
+            return self.hyperbolic(function, args[0])
         if function == "log":
             return self.logarithm(args[0])
+        if function == "log1p":
+            return self.logarithm(self.ring.one + args[0])
+        if function in ("radians", "degrees"):
+            pi = self.opaque("pi", ())  # the same variable as the constant pi
+            if function == "radians":
+                return self.lift(args[0]) * pi * self.const(Fraction(1, 180))
+            inverse_pi = self.inverse(pi, "pi")
+            return self.lift(args[0]) * self.const(180) * inverse_pi
+        entry = FUNCTIONS.get(function)
+        if entry is not None and entry.family == "opaque":
+            return self.opaque_call(function, args)
         raise TranslationError(f"unsupported function {function}")
+
+    def hyperbolic(self, function: str, u: PolyElement) -> PolyElement:
+        """exp, expm1 = e - 1, sinh = (e - 1/e)/2, cosh = (e + 1/e)/2, tanh = sinh/cosh (e = exp(u))."""
+        e = self.exponential(u)
+        if function in ("exp", "expm1"):
+            return e if function == "exp" else self.lift(e) - 1
+        inverse_e = self.lift(self.exponential(-self.lift(u)))  # exp(-u): the exponential's own inverse
+        e = self.lift(e)
+        if function in ("sinh", "cosh"):
+            return (e - inverse_e if function == "sinh" else e + inverse_e) * self.const(Fraction(1, 2))
+        inverse_cosh = self.inverse(e + inverse_e, f"2*cosh({self.printed(self.lift(u))})")
+        return self.lift(e - inverse_e) * inverse_cosh
 
     def logarithm(self, u: PolyElement) -> PolyElement:
         return logarithms.logarithm(self, u)
@@ -255,6 +292,20 @@ class Translator:
         args = [self.lift(a) for a in args]
         key = ("opaque", name, tuple(poly_key(a) for a in args))
         shown = f"{name}({', '.join(self.printed(a) for a in args)})" if args else name
+        return self.atom(key, "f", shown, "opaque")
+
+    def opaque_call(self, function: str, args: Sequence[PolyElement]) -> PolyElement:
+        """A table function opaque to the algebra (atan, floor, ...): one variable per distinct arguments,
+        or its exact value when they are constants and it is rational (floor(0) = 0, atan(0) = 0)."""
+        args = [self.lift(a) for a in args]
+        if all(a.is_ground for a in args):
+            values = [Fraction(int(a.LC.numerator), int(a.LC.denominator)) if a else Fraction(0) for a in args]
+            try:
+                return self.const(FUNCTIONS[function].exact(values))
+            except (NotRational, DomainError):
+                pass
+        key = ("function", function, tuple(poly_key(a) for a in args))
+        shown = f"{function}({', '.join(self.printed(a) for a in args)})"
         return self.atom(key, "f", shown, "opaque")
 
     # -- angles and exponentials: split an argument into base directions with integer multiples
@@ -388,7 +439,7 @@ class Translator:
     def prescan(self, exprs: Sequence[Expr]) -> None:
         found: dict[tuple, list[Fraction]] = {}  # direction key -> every coefficient of an angle
         for expr in exprs:
-            for call in _scaled_calls(expr):
+            for call in scaled_calls(expr):
                 exponential = FUNCTIONS[call.function].family == "exponential"
                 table = self._exp_scale if exponential else self._angle_scale
                 argument = self.value(call.args[0])
@@ -403,23 +454,7 @@ class Translator:
             self._angle_step[key] = math.gcd(*(int(c * scale) for c in coeffs))
         # the pre-scan created no auxiliary variables for angles (only for the arguments' own
         # divisions and radicals); translation proper starts from a clean memo so that calls are redone
-        self._memo = {k: v for k, v in self._memo.items() if not _has_scaled_call(k)}
-
-
-def _split_constant_radicand(value: Fraction) -> tuple[Fraction, list[int]] | None:
-    """sqrt(value) == outside * prod(sqrt(p) for p in primes), value > 0 rational, primes distinct."""
-    numerator = value.numerator * value.denominator  # sqrt(n/d) = sqrt(n*d)/d
-    if value <= 0 or numerator > FACTOR_LIMIT:
-        return None
-    outside = Fraction(1, value.denominator)
-    primes = []
-    for prime, exponent in sorted(factorint(numerator).items()):
-        outside *= prime ** (exponent // 2)
-        if exponent % 2:
-            primes.append(int(prime))
-    if len(primes) <= 1 and outside == 1:
-        return None  # already a single prime radical: nothing to split
-    return outside, primes
+        self._memo = {k: v for k, v in self._memo.items() if not has_scaled_call(k)}
 
 
 class _Polynomials:
@@ -459,16 +494,3 @@ class _Polynomials:
 
     def opaque(self, node: Opaque, args: Sequence[PolyElement]) -> PolyElement:
         return self.t.opaque(node.name, args)
-
-
-def _scaled_calls(expr: Expr) -> Iterator[Call]:
-    """The calls whose argument is split into base directions with a common scale (sin, cos, tan, exp),
-    outer calls first."""
-    for node in preorder(expr):
-        entry = FUNCTIONS.get(node.function) if isinstance(node, Call) else None
-        if isinstance(node, Call) and entry is not None and entry.family in ("trigonometric", "exponential"):
-            yield node
-
-
-def _has_scaled_call(expr: Expr) -> bool:
-    return next(_scaled_calls(expr), None) is not None

@@ -14,11 +14,13 @@ from typing import Sequence
 from verifier.claims.claim_syntax import ClaimSource, ClaimSyntaxError, check_brackets, one_line
 from verifier.model.expr import PI, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold
 from verifier.model.functions import (
+    BARE_ONLY,
     CALL_SPELLINGS,
     CONSTANT_SPELLINGS,
     MODULE_PREFIXES,
     POWER,
     REFUSED_CONSTANTS,
+    VARIADIC,
     arity,
     known_names,
 )
@@ -270,6 +272,10 @@ class ExprConverter:
             return BinOp(spelling, self._convert(node.left), self._convert(node.right))  # type: ignore[arg-type]
         if op in (ast.Pow, ast.BitXor):
             return self.power(self._convert(node.left), node.right, node)
+        if op in (ast.Mod, ast.FloorDiv):
+            # on reals, as Python computes them: a % b == a - b*floor(a/b), a // b == floor(a/b)
+            name = "mod" if op is ast.Mod else "floordiv"
+            return Call(name, (self._convert(node.left), self._convert(node.right)))
         raise self.error(f"unsupported operator `{_OPERATOR_SPELLING.get(op, '?')}`", node)
 
     def power(self, base: Expr, exponent_node: ast.AST, node: ast.AST) -> Expr:
@@ -294,6 +300,13 @@ class ExprConverter:
                 raise self.error(f"unsupported syntax: a starred argument in a call of `{name}`", arg)
         canonical = CALL_SPELLINGS[name]
         expected = arity(canonical)
+        if canonical in VARIADIC and len(node.args) > expected:
+            # min(a, b, c) == min(min(a, b), c)
+            operands = [self._convert(arg) for arg in node.args]
+            folded = Call(canonical, (operands[0], operands[1]))
+            for operand in operands[2:]:
+                folded = Call(canonical, (folded, operand))
+            return folded
         if len(node.args) != expected:
             plural = "argument" if expected == 1 else "arguments"
             raise self.error(f"`{name}` takes {expected} {plural}, got {len(node.args)}", node)
@@ -309,6 +322,9 @@ class ExprConverter:
         if isinstance(func, ast.Attribute) and isinstance(func.value, ast.Name):
             module, attr = func.value.id, func.attr
             if module in MODULE_PREFIXES:
+                if attr in BARE_ONLY:
+                    raise self.error(f"`{module}.{attr}` is a reduction over an array; write `{attr}(a, b)` "
+                                     f"or `{module}.{attr}imum(a, b)`", func)
                 if attr in CALL_SPELLINGS:
                     return attr
                 raise self.error(f"unknown function `{module}.{attr}` (known: {known_names()})", func)

@@ -4,6 +4,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from verifier.claims.execute.expressions import Alternatives, Evaluator
+from verifier.claims.execute.functions import opaque_note
 from verifier.claims.execute.piecewise import PIECEWISE, pieces
 from verifier.claims.execute.scope import (
     BuiltinCallee,
@@ -41,6 +42,11 @@ def impure(name: str) -> bool:
     return name.startswith(_IMPURE_PREFIXES) or name.rsplit(".", 1)[-1] in _IMPURE_NAMES
 
 
+def _noted(state: State, value: Value, line: int) -> tuple[State, Value]:
+    note = opaque_note(value, line)
+    return (state.with_note(note) if note else state), value
+
+
 class CallEvaluator(Evaluator):
     """Evaluates calls; running an inlined body is left to ``Executor.exec_block``."""
 
@@ -65,7 +71,7 @@ class CallEvaluator(Evaluator):
         if isinstance(callee, BuiltinCallee):
             if callee.name in PIECEWISE:
                 return self._piecewise_call(callee.name, node, state, frame, builtin=True)
-            return [(after, self.builtin_value(callee.name, args, keywords, line, iterable, frame.ident))
+            return [_noted(after, self.builtin_value(callee.name, args, keywords, line, iterable, frame.ident), line)
                     for after, args, keywords in self.arguments(node, state, frame)]
         if isinstance(callee, MathCallee):
             return self._math_call(callee.name, node, state, frame)
@@ -154,7 +160,8 @@ class CallEvaluator(Evaluator):
             split = None if keywords else pieces(name, [e for e in exprs if e is not None])
             if split is None or None in exprs:
                 if builtin:
-                    result.append((after, self.builtin_value(name, args, keywords, line, False, frame.ident)))
+                    result.append(_noted(after, self.builtin_value(name, args, keywords, line, False, frame.ident),
+                                         line))
                 else:
                     result.extend(self._math_call(name, node, after, frame, split_pieces=False))
                 continue
@@ -197,7 +204,7 @@ class CallEvaluator(Evaluator):
                 note = f"opaque call {name}(...) at line {line}"
                 result.append((after.with_note(note), Opaque(name, tuple(operands))))
             else:
-                result.append((after, self.bounded(computed, line)))
+                result.append(_noted(after, self.bounded(computed, line), line))
         return result
 
     # -- inlining

@@ -6,7 +6,7 @@ from fractions import Fraction
 from typing import cast
 
 from verifier.claims.execute.arithmetic import ARITHMETIC
-from verifier.claims.execute.functions import Functions
+from verifier.claims.execute.functions import Functions, opaque_note
 from verifier.claims.execute.scope import Scope
 from verifier.claims.execute.state import Frame, Mark, State, Visit
 from verifier.claims.execute.values import (
@@ -99,7 +99,9 @@ class Evaluator(Functions):
                     if node.op in ARITHMETIC:
                         result.append((s2, self.binary(node.op, left, right, node.line)))
                     else:
-                        result.append((s2, self.other_binary(node.op, left, right, node.line)))
+                        value = self.other_binary(node.op, left, right, node.line)
+                        note = opaque_note(value, node.line)
+                        result.append((s2.with_note(note) if note else s2, value))
             return result
         if isinstance(node, ir.Unary):
             return [(s1, self.bounded(self.unary(node.op, operand, node.line), node.line))

@@ -7,7 +7,7 @@ from fractions import Fraction
 
 import libcst as cst
 
-from verifier.claims.execute.functions import math_constant
+from verifier.claims.execute.functions import TABLE_SPELLINGS, math_constant
 from verifier.claims.execute.scope import (
     BuiltinCallee,
     Callee,
@@ -40,7 +40,7 @@ NEUTRAL_DECORATORS = frozenset(
     {"njit", "jit", "vectorize", "lru_cache", "cache", "staticmethod", "wraps", "profile", "cfunc", "guvectorize"}
 )
 _STAR_MATH = frozenset({"sqrt", "hypot", "fma", "sin", "cos", "tan", "exp", "log", "log10", "log2", "pow",
-                        "square", "fabs", "floor", "ceil", "trunc", "fmod", "copysign"})
+                        "square", "fabs", "floor", "ceil", "trunc", "fmod", "copysign"}) | frozenset(TABLE_SPELLINGS)
 _BUILTINS = frozenset({"pow", "float", "int", "tuple", "list", "len", "sum", "range", "enumerate", "zip",
                        "reversed", "abs", "min", "max", "round", "divmod", "complex", "sorted", "map", "filter",
                        "any", "all", "print", "isinstance", "bool", "str"})
