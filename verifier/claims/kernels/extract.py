@@ -42,6 +42,8 @@ def normalize_claim_text(text: str, language: str) -> str:
     text = re.sub(r"(?<=\w)\s*->\s*(?=[A-Za-z_])", lambda m: ". " + " " * (len(m.group(0)) - 2)
                   if len(m.group(0)) >= 2 else ".", text)
     text = re.sub(r"\b(std|cuda|f64|f32|Base|math)::", lambda m: " " * len(m.group(0)), text)
+    if language in ("cpp", "cuda"):  # `this->x` (now `this. x`) names the member `x`
+        text = re.sub(r"\bthis\.\s*", lambda m: " " * len(m.group(0)), text)
     if language == "fortran":
         text = text.lower()  # Fortran names are case-insensitive; the front end spells them in lower case
         text = re.sub(r"(?<=\w)%(?=[A-Za-z_])", ".", text)

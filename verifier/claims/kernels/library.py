@@ -57,7 +57,7 @@ class KernelFile:
 
     def named(self, name: str) -> t.Function | None:
         owner, _, method = name.rpartition("::")
-        if owner and self.source.language == "rust":  # `Vec3::dot`: a method of `impl Vec3`
+        if owner and self.source.language in ("rust", "cpp", "cuda"):  # `Vec3::dot`: a method of Vec3
             site = self.index.method_named(owner.rsplit("::", 1)[-1], method)
             return self.function(site) if site is not None else None
         site = self.index.function_named(name)

@@ -74,7 +74,9 @@ class Runner:
                 initial = next(inputs, Unknown("missing argument"))
             elif param.size or param.struct or param.mode in ("pointer", "reference", "out", "inout"):
                 fields = function.structs.get(param.struct or "", ())
-                initial = Agg(prefix=param.name, size=param.size, fields=fields, base=function.index_base)
+                # C++ `this`: the members are named as the code spells them inside the class (`x`)
+                prefix = "" if param.name == "this" and function.language in ("cpp", "cuda") else param.name
+                initial = Agg(prefix=prefix, size=param.size, fields=fields, base=function.index_base)
             elif param.kind == "int":
                 initial = SymInt(param.name)
             else:
