@@ -721,13 +721,22 @@ def test_unseen_project_functions_are_different_per_module(tmp_path, monkeypatch
         # idealcheck: returns x
         def starred(x):
             return x * K
+
+
+        # idealcheck: returns x
+        def outside(x):
+            return x * L
         """, files={"pkg/__init__.py": "", "pkg/a.py": decorated, "pkg/b.py": decorated.replace("x\n", "2 * x\n"),
-                    "pkg/c.py": "K = 1\n"})
-    differ, starred = claims
+                    "pkg/c.py": "from somelib import *\nK = 1\n"})
+    differ, starred, outside = claims
     (ob,) = differ.obligations
     # a decorator the tool does not know may replace the function: each module's helper is its own value
     assert ob.left == BinOp("-", Opaque("pkg.a.helper", (Var("x"),)), Opaque("pkg.b.helper", (Var("x"),)))
-    assert starred.problem.verdict == "inconclusive" and "import *" in starred.problem.message
+    # the star import of a project module is read: K is pkg.c's constant 1
+    assert starred.problem is None and [(o.left, o.right) for o in starred.obligations] == [
+        (BinOp("*", Var("x"), Num(Fraction(1))), Var("x"))]
+    # L is bound nowhere in the project: it may come from the outside library's star import
+    assert outside.problem.verdict == "inconclusive" and "from somelib import *" in outside.problem.message
 
 
 def test_module_values_changed_at_top_level_are_not_constants(tmp_path, monkeypatch):
