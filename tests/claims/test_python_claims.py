@@ -835,3 +835,34 @@ def test_random_numbers_are_not_opaque_pure_values(tmp_path, monkeypatch):
         """))
     assert claim.problem is not None and claim.problem.verdict == "inconclusive"
     assert "line 6" in claim.problem.message
+
+
+def test_module_level_alternatives_keep_the_earlier_binding(tmp_path, monkeypatch):
+    # an `if` without `else` may leave the earlier binding; a handler may keep what the try body bound
+    # before it failed: both are candidates, and the claim is followed only when they agree
+    root, grow = claims_in(tmp_path, monkeypatch, """\
+        from math import sqrt
+        from math import exp
+        if FAST:
+            from fastlib import sqrt
+        try:
+            from numpy import exp
+            from numpy import not_in_every_version
+        except ImportError:
+            pass
+
+
+        # idealcheck: returns x
+        def root(x):
+            return sqrt(x) ** 2
+
+
+        # idealcheck: returns exp(x)
+        def grow(x):
+            return exp(x)
+        """)
+    assert root.problem is not None and root.problem.verdict == "inconclusive"
+    assert "`from math import sqrt` (line 1) or `from fastlib import sqrt` (line 4)" in root.problem.message
+    assert "`if` at line 3 of kernel.py" in root.problem.message
+    assert grow.problem is None and [(o.left, o.right) for o in grow.obligations] == [
+        (Call("exp", (Var("x"),)), Call("exp", (Var("x"),)))]

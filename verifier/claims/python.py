@@ -38,6 +38,7 @@ from verifier.claims.obligations import (
     path_label,
     unique,
 )
+from verifier.claims.parameter_functions import with_particular_functions
 from verifier.claims.substitution import ConstantLookup, substitute, substitute_condition
 from verifier.model.claim import (
     Claim,
@@ -310,7 +311,7 @@ class _FileReader:
                         obligations.append(obligation(left, right, parsed.conditions, conditions, label, notes))
                         if len(obligations) > MAX_OBLIGATIONS:
                             raise ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
-        obligations = unique(obligations)
+        obligations = with_particular_functions(unique(obligations))
         if len(obligations) > MAX_OBLIGATIONS:
             raise ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
         claim_notes = list(executor.inlined) + list(dict.fromkeys(n for ob in obligations for n in ob.notes))
@@ -418,7 +419,7 @@ class _FileReader:
                                                visit.state.notes))
             if len(obligations) > MAX_OBLIGATIONS:
                 raise ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
-        obligations = unique(obligations)
+        obligations = with_particular_functions(unique(obligations))
         notes = list(executor.inlined) + list(dict.fromkeys(n for ob in obligations for n in ob.notes))
         return obligations, notes, executor.dependencies
 

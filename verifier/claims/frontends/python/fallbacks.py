@@ -259,7 +259,7 @@ def choose(name: str, block: Alternatives, before: Binding | None, path: str) ->
     meanings = {c.meaning for c in usable}
     if len(meanings) == 1:
         return Choice(usable[0], None, maybe_none)
-    shown = " or ".join(c.text for c in usable[:3])
+    shown = " or ".join(c.text for c in sorted(usable, key=lambda c: c.line)[:3])
     conflict = (f"is bound differently by the alternatives of the `{block.word}` at line {block.line} of {path}: "
                 f"{shown}; the tool cannot tell which one runs")
     return Choice(None, conflict, maybe_none)
