@@ -866,3 +866,32 @@ def test_module_level_alternatives_keep_the_earlier_binding(tmp_path, monkeypatc
     assert "`if` at line 3 of kernel.py" in root.problem.message
     assert grow.problem is None and [(o.left, o.right) for o in grow.obligations] == [
         (Call("exp", (Var("x"),)), Call("exp", (Var("x"),)))]
+
+
+def test_star_imports_of_project_modules_are_read_through_their_own_star_imports(tmp_path, monkeypatch):
+    direct, passed_on, shadowed = claims_in(tmp_path, monkeypatch, """\
+        K = 5
+        from pkg.mid import *
+
+
+        # idealcheck: returns 3*x
+        def direct(x):
+            return J * x
+
+
+        # idealcheck: returns 1
+        def passed_on(t):
+            return sin(t) ** 2 + cos(t) ** 2
+
+
+        # idealcheck: returns 2*x
+        def shadowed(x):
+            return K * x
+        """, files={"pkg/__init__.py": "", "pkg/base.py": "K = 2\nJ = 3\n",
+                    "pkg/mid.py": "from .base import *\nfrom numpy import *\n"})
+    assert [(o.left, o.right) for o in direct.obligations] == [(BinOp("*", Num(Fraction(3)), Var("x")),
+                                                                BinOp("*", Num(Fraction(3)), Var("x")))]
+    assert passed_on.problem is None and passed_on.obligations  # numpy's sin and cos, through pkg.mid
+    # K = 5 comes before the star import, which binds K again (pkg.base's 2): not followed, and said so
+    assert shadowed.problem is not None and "may be bound again by the later `from pkg.mid import *`" in \
+        shadowed.problem.message

@@ -176,8 +176,8 @@ def _index_statement(info: ModuleInfo, stmt: cst.CSTNode, top: bool) -> None:
 
 
 def star_exports(info: ModuleInfo, name: str) -> bool | None:
-    """Whether ``from info import *`` binds ``name`` (None: cannot be told, e.g. a computed ``__all__``).
-    A module with star imports of its own may pass the name on: True, and resolving it there says more."""
+    """Whether ``info`` binds ``name`` for ``from info import *`` itself (None: cannot be told, e.g. a
+    computed ``__all__``); what its own star imports pass on is the caller's to follow."""
     if name.startswith("_"):
         return False
     if "__all__" in info.constants or "__all__" in info.rebound:
@@ -193,7 +193,7 @@ def star_exports(info: ModuleInfo, name: str) -> bool | None:
             names.append(match.group(2))
         return name in names
     return (name in info.bindings or name in info.imports or name in info.functions or name in info.constants
-            or name in info.classes or name in info.conflicts or name in info.rebound or bool(info.star_imports))
+            or name in info.classes or name in info.conflicts or name in info.rebound)
 
 
 def _code(node: cst.CSTNode) -> str:

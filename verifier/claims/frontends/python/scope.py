@@ -319,9 +319,13 @@ class PythonScope:
 
     # -- star imports of project modules (read, never imported)
 
-    def _star_source(self, host: Host, module: ModuleInfo, name: str, line: int) -> ModuleInfo | str | None:
+    def _star_source(self, host: Host, module: ModuleInfo, name: str, line: int, depth: int = 0
+                     ) -> ModuleInfo | str | None:
         """The project module a ``from M import *`` of ``module`` takes ``name`` from (the last such import
-        that binds it), None when none does, or the reason it cannot be told."""
+        that binds it, itself or through its own star imports), None when none does, or the reason it
+        cannot be told."""
+        if depth > MAX_IMPORT_CHAIN:
+            return f"the chain of `import *` statements that may bind {name} (line {line}) is too long to follow"
         for star in reversed(_other_star_imports(module)):
             other = self.loader.find(star, module)
             if other is None:
@@ -331,8 +335,14 @@ class PythonScope:
             if exported is None:
                 return (f"the name {name} at line {line} may come from `from {star} import *`, whose `__all__` "
                         "the tool cannot read")
-            if exported:
+            if exported or (name in _STAR_MATH or name in ("pi", "tau", "e")) and any(
+                    m in MATH_MODULES for m in other.star_imports):
                 return other
+            if "__all__" in other.constants:
+                continue  # a literal __all__ without the name: not passed on
+            passed_on = self._star_source(host, other, name, line, depth + 1)
+            if passed_on is not None:
+                return passed_on if isinstance(passed_on, str) else other
         return None
 
     def _followed_star(self, source: ModuleInfo, name: str, resolve: Callable[[], T], cycle: T) -> T:
@@ -353,6 +363,11 @@ class PythonScope:
                 continue  # `from M import name` then `from M import *`: the same binding again
             other = self.loader.find(star, module)
             exported = star_exports(other, name) if other is not None else None
+            if other is not None and exported is False:
+                passes_math = (name in _STAR_MATH or name in ("pi", "tau", "e")) and any(
+                    m in MATH_MODULES for m in other.star_imports)
+                if passes_math or self._star_source(host, other, name, line) is not None:
+                    exported = None
             if exported is not False:
                 return (f"the module-level name {name} (used at line {line}) may be bound again by the later "
                         f"`from {star} import *` in {module.path}")
