@@ -24,6 +24,7 @@ import warnings
 
 try:
     import numpy as np
+    np.seterr(over="ignore")
     from numpy import cos, sin, sqrt, hypot
 except ImportError:
     warnings.warn("numpy is missing: falling back to math")

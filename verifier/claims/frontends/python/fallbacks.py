@@ -141,6 +141,7 @@ class _Branch:
         self.bound: dict[str, Binding] = {}
         self.raises = False
         self.opaque = False
+        self.touched: list[str] = []  # names whose object a method call may change
 
 
 def _branch(statements: tuple[cst.CSTNode, ...] | list[cst.CSTNode], line_of: LineOf, code_of: CodeOf) -> _Branch:
@@ -175,20 +176,17 @@ def _branch(statements: tuple[cst.CSTNode, ...] | list[cst.CSTNode], line_of: Li
             elif isinstance(small, cst.Pass) or (isinstance(small, cst.Expr) and isinstance(
                     small.value, (cst.SimpleString, cst.ConcatenatedString))):
                 continue
-            elif isinstance(small, cst.Expr) and _is_warning(small.value):
+            elif isinstance(small, cst.Expr) and isinstance(small.value, cst.Call) and _dotted(small.value.func):
+                # a call for its effect (a warning, a message, np.seterr): it binds nothing, but a method
+                # call on a module-level name may change that object
+                head = (_dotted(small.value.func) or "").split(".")
+                if len(head) > 1:
+                    branch.touched.append(head[0])
                 continue
             else:
                 branch.opaque = True
                 return branch
     return branch
-
-
-def _is_warning(node: cst.BaseExpression) -> bool:
-    """``warnings.warn(...)`` / ``warn(...)`` in a fallback branch: it binds nothing."""
-    if not isinstance(node, cst.Call):
-        return False
-    name = _dotted(node.func)
-    return name in ("warnings.warn", "warn")
 
 
 @dataclass(frozen=True)
@@ -200,6 +198,7 @@ class Alternatives:
     partial_first: bool  # a try: the handlers may keep what the try body bound before it failed
     line: int
     word: str  # "try" or "if"
+    touched: tuple[str, ...] = ()  # names a method call in some branch may change
 
 
 def block_alternatives(stmt: cst.CSTNode, line_of: LineOf, code_of: CodeOf) -> Alternatives | None:
@@ -213,7 +212,9 @@ def block_alternatives(stmt: cst.CSTNode, line_of: LineOf, code_of: CodeOf) -> A
         handlers = [_branch(list(h.body.body), line_of, code_of) for h in stmt.handlers]
         if first.opaque or first.raises or any(h.opaque for h in handlers):
             return None
-        return Alternatives(first.bound, tuple(h.bound for h in handlers if not h.raises), True, line, "try")
+        touched = tuple(name for b in [first, *handlers] for name in b.touched)
+        return Alternatives(first.bound, tuple(h.bound for h in handlers if not h.raises), True, line, "try",
+                            touched)
     if isinstance(stmt, cst.If):
         branches: list[_Branch] = []
         node: cst.CSTNode | None = stmt
@@ -229,7 +230,8 @@ def block_alternatives(stmt: cst.CSTNode, line_of: LineOf, code_of: CodeOf) -> A
         kept = [b.bound for b in branches if not b.raises]
         if not kept:
             return None
-        return Alternatives(kept[0], tuple(kept[1:]), False, line, "if")
+        return Alternatives(kept[0], tuple(kept[1:]), False, line, "if",
+                            tuple(name for b in branches for name in b.touched))
     return None
 
 

@@ -235,6 +235,9 @@ def _bind_alternatives(info: ModuleInfo, block: Alternatives) -> None:
             info.functions[name] = bound
         else:
             info.constants[name] = [bound]
+    for touched in block.touched:
+        if not isinstance(info.imports.get(touched), ModuleImport) and touched not in info.conflicts:
+            info.rebound.add(touched)  # `TABLE.update(...)` in a branch: TABLE is no constant
 
 
 def _assigned_names(small: cst.CSTNode) -> Iterable[str]:
