@@ -895,3 +895,32 @@ def test_star_imports_of_project_modules_are_read_through_their_own_star_imports
     # K = 5 comes before the star import, which binds K again (pkg.base's 2): not followed, and said so
     assert shadowed.problem is not None and "may be bound again by the later `from pkg.mid import *`" in \
         shadowed.problem.message
+
+
+def test_star_imports_inside_a_fallback_count_like_any_star_import(tmp_path, monkeypatch):
+    # either branch may have run, so a name the module does not bind may come from either library
+    outside, both_math = claims_in(tmp_path, monkeypatch, """\
+        try:
+            from bigfloats import *
+        except ImportError:
+            from math import *
+
+
+        # idealcheck: returns 1
+        def outside(t):
+            return sin(t) ** 2 + cos(t) ** 2
+        """), claims_in(tmp_path, monkeypatch, """\
+        try:
+            from numpy import *
+        except ImportError:
+            from math import *
+
+
+        # idealcheck: returns 1
+        def both_math(t):
+            return sin(t) ** 2 + cos(t) ** 2
+        """, path="other.py")
+    (outside,), (both_math,) = outside, both_math
+    assert outside.problem is not None and "from bigfloats import *" in outside.problem.message
+    assert both_math.problem is None and both_math.obligations[0].left == BinOp(
+        "+", Pow(Call("sin", (Var("t"),)), Fraction(2)), Pow(Call("cos", (Var("t"),)), Fraction(2)))

@@ -142,6 +142,7 @@ class _Branch:
         self.raises = False
         self.opaque = False
         self.touched: list[str] = []  # names whose object a method call may change
+        self.stars: list[str] = []  # modules imported with `from M import *`
 
 
 def _branch(statements: tuple[cst.CSTNode, ...] | list[cst.CSTNode], line_of: LineOf, code_of: CodeOf) -> _Branch:
@@ -157,6 +158,13 @@ def _branch(statements: tuple[cst.CSTNode, ...] | list[cst.CSTNode], line_of: Li
             return branch
         for small in stmt.body:
             line = line_of(small)
+            if isinstance(small, cst.ImportFrom) and isinstance(small.names, cst.ImportStar):
+                module = _dotted(small.module) if small.module is not None else ""
+                if module is None:
+                    branch.opaque = True
+                    return branch
+                branch.stars.append("." * len(small.relative) + module)
+                continue
             if isinstance(small, (cst.Import, cst.ImportFrom)):
                 bindings = _import_bindings(small, line)
                 if bindings is None:
@@ -199,6 +207,7 @@ class Alternatives:
     line: int
     word: str  # "try" or "if"
     touched: tuple[str, ...] = ()  # names a method call in some branch may change
+    stars: tuple[str, ...] = ()  # `from M import *` of any branch: each may be the one that ran
 
 
 def block_alternatives(stmt: cst.CSTNode, line_of: LineOf, code_of: CodeOf) -> Alternatives | None:
@@ -213,8 +222,9 @@ def block_alternatives(stmt: cst.CSTNode, line_of: LineOf, code_of: CodeOf) -> A
         if first.opaque or first.raises or any(h.opaque for h in handlers):
             return None
         touched = tuple(name for b in [first, *handlers] for name in b.touched)
+        stars = tuple(m for b in [first, *handlers] if not b.raises for m in b.stars)
         return Alternatives(first.bound, tuple(h.bound for h in handlers if not h.raises), True, line, "try",
-                            touched)
+                            touched, stars)
     if isinstance(stmt, cst.If):
         branches: list[_Branch] = []
         node: cst.CSTNode | None = stmt
@@ -231,7 +241,8 @@ def block_alternatives(stmt: cst.CSTNode, line_of: LineOf, code_of: CodeOf) -> A
         if not kept:
             return None
         return Alternatives(kept[0], tuple(kept[1:]), False, line, "if",
-                            tuple(name for b in branches for name in b.touched))
+                            tuple(name for b in branches for name in b.touched),
+                            tuple(m for b in branches if not b.raises for m in b.stars))
     return None
 
 

@@ -134,10 +134,7 @@ def _index_statement(info: ModuleInfo, stmt: cst.CSTNode, top: bool) -> None:
                     continue
                 prefix = "." * dots
                 if isinstance(small.names, cst.ImportStar):
-                    info.star_imports.append(prefix + base)
-                    if (prefix + base).split(".")[0] not in MATH_MODULES:
-                        for name in info.bindings:
-                            info.starred_over.setdefault(name, []).append(prefix + base)
+                    _star_import(info, prefix + base)
                     continue
                 for alias in small.names:
                     if not isinstance(alias.name, cst.Name):
@@ -196,6 +193,13 @@ def star_exports(info: ModuleInfo, name: str) -> bool | None:
             or name in info.classes or name in info.conflicts or name in info.rebound)
 
 
+def _star_import(info: ModuleInfo, module: str) -> None:
+    info.star_imports.append(module)
+    if module.lstrip(".").split(".")[0] not in MATH_MODULES:
+        for name in info.bindings:
+            info.starred_over.setdefault(name, []).append(module)
+
+
 def _code(node: cst.CSTNode) -> str:
     return cst.Module(body=[]).code_for_node(node)
 
@@ -235,6 +239,8 @@ def _bind_alternatives(info: ModuleInfo, block: Alternatives) -> None:
             info.functions[name] = bound
         else:
             info.constants[name] = [bound]
+    for star in block.stars:
+        _star_import(info, star)
     for touched in block.touched:
         if not isinstance(info.imports.get(touched), ModuleImport) and touched not in info.conflicts:
             info.rebound.add(touched)  # `TABLE.update(...)` in a branch: TABLE is no constant
