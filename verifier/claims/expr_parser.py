@@ -9,7 +9,7 @@ from __future__ import annotations
 import ast
 import re
 from fractions import Fraction
-from typing import Sequence
+from typing import Sequence, Union
 
 from verifier.claims.claim_syntax import ClaimSource, ClaimSyntaxError, check_brackets, one_line
 from verifier.model.expr import PI, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold
@@ -354,6 +354,44 @@ def convert_text(text: str, *, allow_tuple: bool = False, what: str = "expressio
         op = COMPARISON_SPELLING.get(type(tree.ops[0]), "?")
         raise converter.error(f"comparison `{op}` inside an expression", tree)
     return (converter.convert(tree),)
+
+
+Nested = Union[Expr, tuple["Nested", ...]]
+
+
+def convert_nested_text(text: str, *, what: str = "expression") -> tuple[Nested, ...]:
+    """The components of a result as written: ``a, b``; ``(a, b), (c, d)`` and ``[[a, b], [c, d]]`` keep
+    their rows (tuples and lists both become tuples: results are compared componentwise)."""
+    source = ClaimSource(one_line(text))
+    tree = parse_ast(source, what)
+    converter = ExprConverter(source)
+    if isinstance(tree, ast.Compare):
+        op = COMPARISON_SPELLING.get(type(tree.ops[0]), "?")
+        raise converter.error(f"comparison `{op}` inside an expression", tree)
+    if isinstance(tree, ast.Tuple):
+        if not tree.elts:
+            raise converter.error(f"empty {what}", tree)
+        return tuple(_nested(converter, item) for item in tree.elts)
+    return (_nested(converter, tree),)
+
+
+def _nested(converter: ExprConverter, node: ast.AST) -> Nested:
+    if isinstance(node, (ast.Tuple, ast.List)):
+        if not node.elts:
+            raise converter.error("an empty tuple or list is not a result", node)
+        return tuple(_nested(converter, item) for item in node.elts)
+    return converter.convert(node)
+
+
+def leaves(items: Sequence[Nested]) -> tuple[Expr, ...]:
+    """The scalar components of nested results, row by row."""
+    out: list[Expr] = []
+    for item in items:
+        if isinstance(item, tuple):
+            out.extend(leaves(item))
+        else:
+            out.append(item)
+    return tuple(out)
 
 
 def parse_expression(text: str) -> Expr:

@@ -37,6 +37,9 @@ _IMPURE_NAMES = frozenset({"random", "rand", "randn", "randint", "uniform", "nor
                            "print", "time", "perf_counter", "monotonic", "next", "id", "hash"})
 
 
+PARAMETER_FUNCTION = "parameter "  # the prefix of the opaque name of a function passed as a parameter
+
+
 def impure(name: str) -> bool:
     """Calls whose value may differ between two calls with the same arguments (by name, conservatively)."""
     return name.startswith(_IMPURE_PREFIXES) or name.rsplit(".", 1)[-1] in _IMPURE_NAMES
@@ -60,6 +63,10 @@ class CallEvaluator(Evaluator):
             bound = state.get(node.callee.name)
             if isinstance(bound, Unknown):
                 return UnknownCallee(bound.reason)
+            if isinstance(bound, Var) and bound.name.isidentifier():
+                # a function passed as a parameter: any pure function, the same arguments give the same value;
+                # named apart from module functions of the same name, which are other functions
+                return OpaqueCallee(f"{PARAMETER_FUNCTION}{bound.name}")
             if bound is not None:
                 return UnknownCallee(f"calling the local value {node.callee.name} at line {line} is not supported")
         return self.scope.callee(self, frame.module, frame.function, node.callee,
