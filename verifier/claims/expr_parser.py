@@ -36,31 +36,12 @@ MAX_LITERAL_EXPONENT = 4000
 MAX_CONSTANT_BITS = 100_000
 
 _OPERATOR_SPELLING = {
-    ast.Add: "+",
-    ast.Sub: "-",
-    ast.Mult: "*",
-    ast.Div: "/",
-    ast.FloorDiv: "//",
-    ast.Mod: "%",
-    ast.MatMult: "@",
-    ast.LShift: "<<",
-    ast.RShift: ">>",
-    ast.BitAnd: "&",
-    ast.BitOr: "|",
-    ast.BitXor: "^",
-    ast.Pow: "**",
+    ast.Add: "+", ast.Sub: "-", ast.Mult: "*", ast.Div: "/", ast.FloorDiv: "//", ast.Mod: "%", ast.MatMult: "@",
+    ast.LShift: "<<", ast.RShift: ">>", ast.BitAnd: "&", ast.BitOr: "|", ast.BitXor: "^", ast.Pow: "**",
 }
 COMPARISON_SPELLING = {
-    ast.Eq: "==",
-    ast.NotEq: "!=",
-    ast.Lt: "<",
-    ast.LtE: "<=",
-    ast.Gt: ">",
-    ast.GtE: ">=",
-    ast.Is: "is",
-    ast.IsNot: "is not",
-    ast.In: "in",
-    ast.NotIn: "not in",
+    ast.Eq: "==", ast.NotEq: "!=", ast.Lt: "<", ast.LtE: "<=", ast.Gt: ">", ast.GtE: ">=", ast.Is: "is",
+    ast.IsNot: "is not", ast.In: "in", ast.NotIn: "not in",
 }
 _UNSUPPORTED_NODES = {
     ast.Lambda: "a lambda",
