@@ -24,7 +24,9 @@ S, C, V, W = sympy.symbols("s c v w")
 PI = sympy.pi
 
 _FUNCTION_CALL = re.compile(r"\b(sqrt|sin|cos|tan|exp|log)\(")
-_SIMPLE_POWER = re.compile(r"\b([a-z]\w*)\*\*(\d+)\b")
+_SIMPLE_POWER = re.compile(r"(?<![\w.\]])([a-z][\w.]*(?:\[\d+\])?)\*\*(\d+)\b")
+# names the claim language reads as plain variables: fields and constant subscripts (witnesses use them too)
+FIELD_NAMES = [sympy.Symbol("q.w"), sympy.Symbol("v[0]"), sympy.Symbol("state.v[1]")]
 
 
 def text(draw: Draw, expr: sympy.Expr) -> str:
@@ -47,11 +49,13 @@ def condition_text(draw: Draw, conditions: Sequence[Condition]) -> str:
 
 
 def claim(draw: Draw, family: str, left: sympy.Expr, right: sympy.Expr, conditions: Sequence[Condition],
-          sampler: Sampler, meant_true: bool, left_text: str | None = None) -> Case:
+          sampler: Sampler, meant_true: bool, left_text: str | None = None,
+          conditions_shown: str | None = None) -> Case:
     if left_text is None and draw(st.booleans()):
         left, right = right, left  # either side may hold the rewritten form
     shown_left = left_text if left_text is not None else text(draw, left)
-    body = f"{shown_left} == {text(draw, right)}{condition_text(draw, conditions)}"
+    shown_conditions = condition_text(draw, conditions) if conditions_shown is None else conditions_shown
+    body = f"{shown_left} == {text(draw, right)}{shown_conditions}"
     return Case(family, body, left, right, tuple(conditions), sampler, meant_true)
 
 
@@ -95,7 +99,7 @@ def seed(draw: Draw) -> int:
 @st.composite
 def poly_expand(draw: Draw, meant_true: bool) -> Case:
     """A product of small factors (or a power of a sum) against its expansion."""
-    names = draw(st.sampled_from([[X], [X, Y], [X, Y, Z]]))
+    names = draw(st.sampled_from([[X], [X, Y], [X, Y, Z], FIELD_NAMES[:2], [X] + FIELD_NAMES[1:]]))
     if draw(st.booleans()):
         factors = [polynomial(draw, names, 1, draw(st.integers(1, 3))) for _ in range(draw(st.integers(2, 3)))]
         factored = sympy.Mul(*factors, evaluate=False)
@@ -205,7 +209,9 @@ def trig_circle(draw: Draw, meant_true: bool) -> Case:
     polynomial in s, c equals its remainder modulo the circle (sympy's reduced)."""
     circle = Condition(S**2 + C**2, "==", sympy.Integer(1))
     definitions = (Condition(S, "==", sympy.sin(T)), Condition(C, "==", sympy.cos(T)))
-    conditions = draw(st.sampled_from([(circle,), definitions]))
+    conditions = draw(st.sampled_from([(circle,), definitions, (circle,)]))
+    # the named set of the batch's pyproject.toml (tests/fuzz_run.py): unit_circle = c**2 + s**2 == 1
+    named = " given unit_circle(c, s)" if conditions == (circle,) and draw(st.booleans()) else None
     if draw(st.booleans()):
         left = (C * X - S * Y) ** 2 + (S * X + C * Y) ** 2
         right = X**2 + Y**2
@@ -214,7 +220,8 @@ def trig_circle(draw: Draw, meant_true: bool) -> Case:
         _, right = sympy.reduced(sympy.expand(left), [S**2 + C**2 - 1], S, C)
     if not meant_true:
         right = perturb(draw, right, [S, C, X])
-    return claim(draw, "trig_circle", left, right, conditions, _circle_sampler, meant_true)
+    return claim(draw, "trig_circle", left, right, conditions, _circle_sampler, meant_true,
+                 conditions_shown=named)
 
 
 @st.composite
@@ -259,12 +266,23 @@ def sqrt_sign(draw: Draw, meant_true: bool) -> Case:
         hypothesis = draw(st.sampled_from([Condition(X, relation, sympy.Rational(c, a)),
                                            Condition(inner, relation, sympy.Integer(0))]))
         right = inner
+        if draw(st.booleans()):  # the mirror image: below the root, sqrt((a*x - c)**2) == c - a*x
+            right = -inner
+            relation = {">=": "<=", ">": "<"}[relation]
+            hypothesis = Condition(hypothesis.left, relation, hypothesis.right)
         if not meant_true:
             if draw(st.booleans()):
-                right = -inner
+                right = -right
             else:
-                hypothesis = Condition(hypothesis.left, "<" if relation == ">" else "<=", hypothesis.right)
+                flipped = {">": "<", ">=": "<=", "<": ">", "<=": ">="}[relation]
+                hypothesis = Condition(hypothesis.left, flipped, hypothesis.right)
         conditions.append(hypothesis)
+        boundary = Fraction(c, a)
+
+        def around(rng: random.Random) -> dict[str, mpmath.mpf]:
+            return as_mpf({"x": boundary + uniform(rng), "y": uniform(rng)})
+
+        return claim(draw, "sqrt_sign", left, right, conditions, around, meant_true)
     elif kind == "scale":
         k = draw(st.integers(2, 5))
         left = sympy.sqrt(k**2 * X, evaluate=False)
@@ -290,7 +308,7 @@ def sqrt_sign(draw: Draw, meant_true: bool) -> Case:
 @st.composite
 def exp_log(draw: Draw, meant_true: bool) -> Case:
     """exp of a sum as a product of powers; log of a product of positive variables as a sum."""
-    kind = draw(st.sampled_from(["exp_sum", "exp_inverse", "log_product", "exp_constant"]))
+    kind = draw(st.sampled_from(["exp_sum", "exp_inverse", "log_product", "log_power", "exp_constant"]))
     conditions: list[Condition] = []
     positive: list[str] = []
     if kind == "exp_sum":
@@ -306,11 +324,23 @@ def exp_log(draw: Draw, meant_true: bool) -> Case:
     elif kind == "exp_inverse":
         left = sympy.Add(sympy.Mul(sympy.exp(X), sympy.exp(-X), evaluate=False), X, evaluate=False)
         right = 1 + X if meant_true else 2 * X
+    elif kind == "log_power":
+        k = draw(st.integers(2, 4))
+        conditions = [Condition(X, ">", sympy.Integer(0))]
+        positive = ["x"]
+        left = sympy.log(sympy.Pow(X, k, evaluate=False), evaluate=False)
+        right = k * sympy.log(X) if meant_true else draw(st.sampled_from([(k + 1) * sympy.log(X),
+                                                                          sympy.log(X) ** k]))
     elif kind == "log_product":
         conditions = [Condition(X, ">", sympy.Integer(0)), Condition(Y, ">", sympy.Integer(0))]
         positive = ["x", "y"]
         left = sympy.log(X * Y, evaluate=False)
-        right = sympy.log(X) + sympy.log(Y) if meant_true else sympy.log(X) - sympy.log(Y)
+        right = sympy.log(X) + sympy.log(Y)
+        if not meant_true:
+            if draw(st.booleans()):
+                right = sympy.log(X) - sympy.log(Y)
+            else:
+                left = sympy.log(X + Y)
     else:
         k = small_int(draw, -3, 3)
         conditions = [Condition(Y, "==", sympy.Integer(k))]
@@ -353,7 +383,7 @@ def pi_values(draw: Draw, meant_true: bool) -> Case:
             with mpmath.workdps(50):
                 return {**free_sampler(["y"])(rng), "x": value(angle, {})}
     if not meant_true:
-        right = draw(st.sampled_from([right + sympy.Rational(1, 2), -right + 1, right * 2 + 1]))
+        right = draw(st.sampled_from([right + sympy.Rational(1, 2), right - 1, -right + 3]))
     return claim(draw, "pi_values", left, right, conditions, sample, meant_true)
 
 
@@ -401,6 +431,81 @@ def real_sos(draw: Draw, meant_true: bool) -> Case:
     return claim(draw, "real_sos", a * X + b * Y, sympy.Integer(a * p + b * q), conditions, sample, meant_true)
 
 
+@st.composite
+def powers(draw: Draw, meant_true: bool) -> Case:
+    """Integer, negative and half-integer powers, zeroth powers (0**0 is 1, as in Python), and powers the
+    algebra keeps opaque (a non-integer or symbolic exponent)."""
+    kind = draw(st.sampled_from(["integer", "zeroth", "half", "opaque"]))
+    conditions: list[Condition] = []
+    sample = free_sampler(["x", "y"], positive=["x"])
+    if kind == "integer":
+        j, k = small_int(draw, -3, 4), small_int(draw, -3, 4)
+        left = sympy.Mul(sympy.Pow(X, j, evaluate=False), sympy.Pow(X, k, evaluate=False), evaluate=False)
+        right = X ** (j + k) if meant_true else X ** (j + k + draw(st.sampled_from([-1, 1])))
+    elif kind == "zeroth":
+        base = draw(st.sampled_from([X, X - Y, sympy.Add(X, -X, evaluate=False)]))
+        left = sympy.Add(sympy.Pow(base, 0, evaluate=False), Y, evaluate=False)
+        right = 1 + Y if meant_true else Y
+        if draw(st.booleans()):
+            conditions = [Condition(X, "==", sympy.Integer(0))]
+            free = free_sampler(["y"])
+
+            def sample(rng: random.Random) -> dict[str, mpmath.mpf]:
+                return {**free(rng), "x": mpmath.mpf(0)}
+    elif kind == "half":
+        k = draw(st.sampled_from([1, 3, 5]))
+        left = sympy.Pow(sympy.sqrt(X), k, evaluate=False)
+        right = X ** ((k - 1) // 2) * sympy.sqrt(X)
+        if not meant_true:
+            right = -right if draw(st.booleans()) else X ** ((k + 1) // 2)
+    else:
+        base, k = draw(st.sampled_from([(8, 3), (27, 3), (4, 2), (16, 4), (32, 5)]))
+        root = round(base ** (1 / k))
+        left = sympy.Pow(sympy.Integer(base), sympy.Rational(1, k), evaluate=False)
+        right = sympy.Integer(root) * X if meant_true else sympy.Integer(root + 1) * X
+        shown = f"{base}**(1/{k})*x"
+        return claim(draw, "powers", left * X, right, conditions, sample, meant_true, left_text=shown)
+    return claim(draw, "powers", left, right, conditions, sample, meant_true)
+
+
+@st.composite
+def radical_subst(draw: Draw, meant_true: bool) -> Case:
+    """Square roots of a variable defined equal to another (``u == x``): powers and sums of the roots."""
+    k = draw(st.integers(1, 4))
+    a = small_int(draw, -3, 3)
+    rx, ru = sympy.sqrt(X), sympy.sqrt(U)
+    left = sympy.Add(sympy.Pow(rx, k, evaluate=False), a * rx, evaluate=False)
+    right = sympy.Add(sympy.Pow(ru, k, evaluate=False), a * ru, evaluate=False)
+    if not meant_true:
+        right = sympy.Add(sympy.Pow(ru, k, evaluate=False), (a + draw(st.sampled_from([-1, 1]))) * ru,
+                          evaluate=False)
+    positive = free_sampler(["x"], positive=["x"])
+
+    def sample(rng: random.Random) -> dict[str, mpmath.mpf]:
+        point = positive(rng)
+        return {**point, "u": point["x"]}
+
+    return claim(draw, "radical_subst", left, right, [Condition(U, "==", X)], sample, meant_true)
+
+
+@st.composite
+def large_angle(draw: Draw, meant_true: bool) -> Case:
+    """Large multiples of one angle (the angle tables must not expand sin(10000*x) into a huge polynomial)."""
+    k = draw(st.sampled_from([100, 360, 1000, 4096, 10000]))
+    kind = draw(st.sampled_from(["same", "double", "pythagoras"]))
+    if kind == "same":
+        left, right = sympy.sin(k * X) + Y, sympy.sin(k * X) + Y
+        if not meant_true:
+            right = sympy.sin((k + 1) * X) + Y
+    elif kind == "double":
+        left = sympy.sin(2 * k * X)
+        right = 2 * sympy.sin(k * X) * sympy.cos(k * X) if meant_true else 2 * sympy.sin(k * X)
+    else:
+        left = sympy.Add(sympy.sin(k * X) ** 2, sympy.cos(k * X) ** 2, evaluate=False)
+        right = sympy.Integer(1) if meant_true else sympy.cos(k * X) ** 2
+    return claim(draw, "large_angle", left, right, (), free_sampler(["x", "y"]), meant_true)
+
+
 FAMILIES: dict[str, Callable[[bool], st.SearchStrategy[Case]]] = {
     "poly_expand": poly_expand,
     "horner": horner,
@@ -413,4 +518,7 @@ FAMILIES: dict[str, Callable[[bool], st.SearchStrategy[Case]]] = {
     "pi_values": pi_values,
     "nonzero": nonzero,
     "real_sos": real_sos,
+    "powers": powers,
+    "radical_subst": radical_subst,
+    "large_angle": large_angle,
 }

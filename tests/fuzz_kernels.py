@@ -8,6 +8,7 @@ coefficient changed in the code, a branch changed).
 from __future__ import annotations
 
 import random
+import re
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from fractions import Fraction
@@ -20,8 +21,9 @@ from fuzz_expressions import Draw, X, Y, decimal_text, perturb, polynomial, smal
 from fuzz_oracle import Case, Condition, as_mpf, free_sampler, uniform
 
 A, B = sympy.symbols("a b")
-LANGUAGE_SUFFIX = {"python": ".py", "c": ".c", "rust": ".rs", "julia": ".jl"}
-COMMENT = {"python": "#", "c": "//", "rust": "///", "julia": "#"}
+LANGUAGE_SUFFIX = {"python": ".py", "c": ".c", "rust": ".rs", "julia": ".jl", "fortran": ".f90"}
+COMMENT = {"python": "#", "c": "//", "rust": "///", "julia": "#", "fortran": "!"}
+LANGUAGES = ["python", "c", "rust", "julia", "fortran"]
 
 
 @dataclass(frozen=True)
@@ -40,6 +42,8 @@ def _poly_text(expr: sympy.Expr, language: str) -> str:
     out = sympy.sstr(sympy.expand(expr))
     if language == "julia":
         return out.replace("**", "^")
+    if language == "fortran":
+        return re.sub(r"(?<![\w.*])(\d+)(?![\w.])", r"\1.0d0", out)  # exponents stay integers
     if language in ("c", "rust"):
         # integer literals would be integer arithmetic in C and a type error in Rust: write them as floats
         out = _float_literals(out)
@@ -50,14 +54,10 @@ def _poly_text(expr: sympy.Expr, language: str) -> str:
 
 
 def _float_literals(text: str) -> str:
-    import re
-
     return re.sub(r"(?<![\w.])(\d+)(?![\w.])", r"\1.0", text)
 
 
 def _power_calls(text: str, spell: Callable[[str, str], str]) -> str:
-    import re
-
     return re.sub(r"\b([a-z]\w*)\*\*(\d+)\.0", lambda m: spell(m.group(1), m.group(2)), text)
 
 
@@ -87,15 +87,16 @@ def _bug(draw: Draw, coefficients: list[Fraction]) -> list[Fraction]:
     return changed
 
 
-def _float_text(q: Fraction) -> str:
+def _float_text(q: Fraction, language: str = "c") -> str:
     shown = decimal_text(q)
-    return shown if "." in shown else shown + ".0"
+    shown = shown if "." in shown else shown + ".0"
+    return shown + "d0" if language == "fortran" else shown
 
 
 @st.composite
 def horner_loop(draw: Draw, meant_true: bool) -> KernelCase:
     """Horner's rule over a constant coefficient array in a counted loop, with a ``returns`` claim."""
-    language = draw(st.sampled_from(["python", "c", "rust", "julia"]))
+    language = draw(st.sampled_from(LANGUAGES))
     coefficients = _coefficients(draw, draw(st.integers(2, 5)))
     in_code = coefficients
     claimed = _horner_value(coefficients, X)
@@ -119,6 +120,11 @@ def horner_loop(draw: Draw, meant_true: bool) -> KernelCase:
         snippet = (f"{claim}\npub fn NAME(x: f64) -> f64 {{\n    let c: [f64; {n}] = [{floats}];\n"
                    f"    let mut r = c[0];\n    for i in 1..{n} {{\n        r = r.mul_add(x, c[i]);\n    }}\n"
                    f"    r\n}}\n")
+    elif language == "fortran":
+        assignments = "".join(f"    c({i + 1}) = {_float_text(q, language)}\n" for i, q in enumerate(in_code))
+        snippet = (f"{claim}\npure function NAME(x) result(r)\n    real(8), intent(in) :: x\n"
+                   f"    real(8) :: r, c({n})\n    integer :: i\n{assignments}    r = c(1)\n    do i = 2, {n}\n"
+                   f"        r = r*x + c(i)\n    end do\nend function NAME\n")
     else:
         snippet = (f"{claim}\nfunction NAME(x)\n    c = ({floats})\n    r = c[1]\n    for i in 2:{n}\n"
                    f"        r = r * x + c[i]\n    end\n    r\nend\n")
@@ -129,7 +135,7 @@ def horner_loop(draw: Draw, meant_true: bool) -> KernelCase:
 @st.composite
 def statement(draw: Draw, meant_true: bool) -> KernelCase:
     """A local computed from earlier locals, with a trailing ``== EXPR`` claim in the parameters."""
-    language = draw(st.sampled_from(["python", "c", "rust", "julia"]))
+    language = draw(st.sampled_from(LANGUAGES))
     first = polynomial(draw, [A, B], 1, 2)
     second = polynomial(draw, [A, B], 1, 2)
     product = sympy.expand(first * second)
@@ -144,6 +150,11 @@ def statement(draw: Draw, meant_true: bool) -> KernelCase:
     elif language == "rust":
         snippet = f"pub fn NAME(a: f64, b: f64) -> f64 {{\n    let t = {t1};\n    let y = t * ({t2}); {claim}\n" \
                   f"    y\n}}\n"
+    elif language == "fortran":
+        snippet = (f"pure function NAME(a, b) result(y)\n    real(8), intent(in) :: a, b\n    real(8) :: t, y\n"
+                   f"    t = {t1}\n    y = t*({t2})  {claim}\nend function NAME\n")
+        case = Case("kernel_statement_fortran", claim, product, claimed, (), free_sampler(["a", "b"]), meant_true)
+        return KernelCase(case, language, snippet, 4)
     else:
         snippet = f"function NAME(a, b)\n    t = {t1}\n    y = t * ({t2})  {claim}\n    y\nend\n"
     case = Case(f"kernel_statement_{language}", claim, product, claimed, (), free_sampler(["a", "b"]), meant_true)
@@ -175,7 +186,10 @@ def branches(draw: Draw, meant_true: bool) -> KernelCase:
         snippet = (f"{claim}\ndouble NAME(double x, double y) {{\n    double r;\n    if (x > {threshold}) {{\n"
                    f"        r = {factored_text};\n    }} else {{\n        r = {_poly_text(other, language)};\n"
                    f"    }}\n    return r;\n}}\n")
-    case = Case(f"kernel_branches_{language}", claim, product, claimed, (), free_sampler(["x", "y"]), meant_true,
+    def either_side(rng: random.Random) -> dict[str, mpmath.mpf]:
+        return as_mpf({"x": threshold + uniform(rng), "y": uniform(rng)})  # both paths equally often
+
+    case = Case(f"kernel_branches_{language}", claim, product, claimed, (), either_side, meant_true,
                 branches=(((guard,), product), ((otherwise,), other)))
     return KernelCase(case, language, snippet, 0)
 

@@ -64,6 +64,12 @@ def value(expr: sympy.Expr, point: Mapping[str, mpmath.mpf]) -> mpmath.mpf:
     if missing:
         raise ValueError(f"no value for {', '.join(missing)}")
     with mpmath.workdps(DIGITS):
+        # the claim language's domain: every square root of a non-negative radicand (principal branch), every
+        # logarithm of a positive argument; sqrt(x)*sqrt(y) at x, y < 0 is real in mpmath but outside it
+        for inner, positive in _domain_arguments(expr):
+            at = value(inner, point)
+            if at < 0 or (positive and at == 0):
+                raise ValueError(f"{inner} = {mpmath.nstr(at, 8)} is outside the domain")
         try:
             result = _compiled(expr, names)(*(point[n] for n in names))
         except (ZeroDivisionError, ValueError, OverflowError) as problem:
@@ -76,6 +82,18 @@ def value(expr: sympy.Expr, point: Mapping[str, mpmath.mpf]) -> mpmath.mpf:
         if not mpmath.isfinite(result):
             raise ValueError("not finite")
         return result
+
+
+@lru_cache(maxsize=4096)
+def _domain_arguments(expr: sympy.Expr) -> tuple[tuple[sympy.Expr, bool], ...]:
+    """(radicand, False) for each root (a power to a non-integer rational), (argument, True) for each log."""
+    out: list[tuple[sympy.Expr, bool]] = []
+    for power in expr.atoms(sympy.Pow):
+        if power.exp.is_Rational and not power.exp.is_Integer and power.base.free_symbols:
+            out.append((power.base, False))
+    for log in expr.atoms(sympy.log):
+        out.append((log.args[0], True))
+    return tuple(out)
 
 
 def _scale(a: mpmath.mpf, b: mpmath.mpf) -> mpmath.mpf:
@@ -124,9 +142,10 @@ def as_mpf(point: Mapping[str, Fraction]) -> dict[str, mpmath.mpf]:
         return {k: mpmath.mpf(v.numerator) / v.denominator for k, v in point.items()}
 
 
-def sampled_truth(case: Case, rng: random.Random, tries: int = 12) -> bool | None:
-    """True when the sides agree at every sampled valid point, False when they differ at one, None when no
-    sampled point was usable (every point undefined).  Points come from the case's own sampler."""
+def sampled_truth(case: Case, rng: random.Random, tries: int = 24, enough: int = 4) -> bool | None:
+    """True when the sides agree at every sampled valid point, False when they differ at one, None when fewer
+    than ``enough`` sampled points were usable (undefined, or off the conditions).  Points come from the
+    case's own sampler."""
     usable = 0
     for _ in range(tries):
         point = case.sampler(rng)
@@ -138,7 +157,7 @@ def sampled_truth(case: Case, rng: random.Random, tries: int = 12) -> bool | Non
         except ValueError:
             continue
         usable += 1
-    return True if usable else None
+    return True if usable >= enough else None
 
 
 def parse_witness_value(text: str) -> mpmath.mpf:
@@ -157,8 +176,10 @@ def witness_problem(case: Case, values: Mapping[str, str]) -> str | None:
     symbols = set(case.left.free_symbols | case.right.free_symbols)
     for c in case.conditions:
         symbols |= c.left.free_symbols | c.right.free_symbols
-    for _, v in case.branches:
+    for guards, v in case.branches:
         symbols |= v.free_symbols
+        for g in guards:
+            symbols |= g.left.free_symbols | g.right.free_symbols
     for symbol in symbols:
         name = by_report_name.get(str(symbol), str(symbol))
         if name not in values:

@@ -24,8 +24,16 @@ from fuzz_oracle import Case, sampled_truth, witness_problem
 # runs ``idealcheck ARGS`` in a folder and returns (exit status, stdout, stderr)
 Runner = Callable[[Sequence[str], Path], tuple[int, str, str]]
 
-CONFIG = "[tool.idealcheck]\n"
-KERNEL_HEADER = {"python": "", "c": "#include <math.h>\n\n", "rust": "", "julia": ""}
+CONFIG = """[tool.idealcheck]
+
+[tool.idealcheck.conditions]
+unit_circle = { vars = ["c", "s"], given = ["c**2 + s**2 == 1"] }
+"""
+EXPRESSION_FILES = {"claims.py": "# idealcheck: {}\n", "notes.md": "<!-- idealcheck: {} -->\n",
+                    "formulas.h": "/* idealcheck: {} */\n"}
+KERNEL_HEADER = {"python": "", "c": "#include <math.h>\n\n", "rust": "", "julia": "",
+                 "fortran": "module fuzz_kernels\n    implicit none\ncontains\n\n"}
+KERNEL_FOOTER = {"fortran": "end module fuzz_kernels\n"}
 
 
 @dataclass(frozen=True)
@@ -37,6 +45,7 @@ class Outcome:
     verdict: str
     problem: str | None
     where: str  # file:line and the claim, for the failure message
+    reason: str = ""  # the tool's reason (what keeps an inconclusive claim undecided)
 
 
 @dataclass(frozen=True)
@@ -61,21 +70,29 @@ def write_batch(folder: Path, cases: Batch) -> dict[tuple[str, int], Case]:
     folder.mkdir(parents=True, exist_ok=True)
     (folder / "pyproject.toml").write_text(CONFIG)
     where: dict[tuple[str, int], Case] = {}
-    lines = []
-    for number, case in enumerate(cases.expressions, start=1):
-        lines.append(f"# idealcheck: {case.text}\n")
-        where[("claims.py", number)] = case
-    (folder / "claims.py").write_text("".join(lines))
+    # hypothesis often draws the same case twice in a batch; each distinct claim is written once.  The
+    # expression claims go round three kinds of file: Python comments, Markdown HTML comments, C header
+    # comments (formulas there, not code-tied claims)
+    distinct = list({case.text: case for case in cases.expressions}.values())
+    files: dict[str, list[str]] = {name: [] for name in EXPRESSION_FILES}
+    for index, case in enumerate(distinct):
+        name = list(EXPRESSION_FILES)[index % len(EXPRESSION_FILES)]
+        files[name].append(EXPRESSION_FILES[name].format(case.text))
+        where[(name, len(files[name]))] = case
+    for name, lines in files.items():
+        if lines:
+            (folder / name).write_text("".join(lines))
     for language, suffix in LANGUAGE_SUFFIX.items():
         chunks = [KERNEL_HEADER[language]]
         line = chunks[0].count("\n") + 1
-        for index, kernel in enumerate(k for k in cases.kernels if k.language == language):
+        snippets = {k.snippet: k for k in cases.kernels if k.language == language}
+        for index, kernel in enumerate(snippets.values()):
             snippet = kernel.snippet.replace("NAME", f"kernel_{index}") + "\n\n"
             where[(f"kernels{suffix}", line + kernel.claim_line)] = kernel.case
             chunks.append(snippet)
             line += snippet.count("\n")
         if len(chunks) > 1:
-            (folder / f"kernels{suffix}").write_text("".join(chunks))
+            (folder / f"kernels{suffix}").write_text("".join(chunks) + KERNEL_FOOTER.get(language, ""))
     return where
 
 
@@ -120,9 +137,13 @@ def check_batch(run: Runner, folder: Path, cases: Batch, extra: Sequence[str] = 
         truth = sampled_truth(case, rng)
         if case.meant_true and truth is False:
             raise AssertionError(f"generator: a case meant true differs at a sampled point: {place}")
+        if not case.meant_true and truth is True:
+            # the perturbation may have changed nothing, or changed the claim only where sampling missed:
+            # judged by its witness alone (a true claim has no witness the oracle accepts)
+            truth = None
         problem = judge(case, truth, claim)
         label = {True: "true", False: "false", None: "unknown"}[truth]
-        outcomes.append(Outcome(case.family, label, str(claim["verdict"]), problem, place))
+        outcomes.append(Outcome(case.family, label, str(claim["verdict"]), problem, place, str(claim["reason"])))
     for key, case in where.items():
         if key not in seen:
             outcomes.append(Outcome(case.family, "unknown", "missing", "no verdict for this claim",
@@ -135,18 +156,22 @@ def failures(outcomes: Sequence[Outcome]) -> list[str]:
 
 
 def tally(outcomes: Sequence[Outcome]) -> Counter[tuple[str, str, str]]:
-    """Counts by (family, truth, verdict)."""
-    return Counter((o.family, o.truth, o.verdict) for o in outcomes)
+    """Counts by (family, truth, verdict); an inconclusive verdict whose reason is an internal failure (a
+    certificate that failed its re-check, say) is counted again as verdict "internal"."""
+    counts = Counter((o.family, o.truth, o.verdict) for o in outcomes)
+    counts.update((o.family, o.truth, "internal") for o in outcomes
+                  if o.verdict == "inconclusive" and o.reason.startswith("internal"))
+    return counts
 
 
 def table(counts: Counter[tuple[str, str, str]]) -> str:
     """Counts per family and verdict class: true claims proved / inconclusive / refuted (false alarm), false
-    claims refuted / inconclusive / proved (unsound), errors."""
+    claims refuted / inconclusive / proved (unsound), errors, claims of unknown truth (judged by their
+    witness only), and inconclusive verdicts from an internal failure."""
     families = sorted({f for f, _, _ in counts})
     header = (f"{'family':<28}{'true':>6}{'proved':>8}{'incon':>7}{'refut!':>7}"
-              f"{'false':>7}{'refuted':>8}{'incon':>7}{'proved!':>8}{'error':>6}{'unknown':>8}")
+              f"{'false':>7}{'refuted':>8}{'incon':>7}{'proved!':>8}{'error':>6}{'unknown':>8}{'internal':>9}")
     rows = [header]
-    total: Counter[str] = Counter()
     for family in families + ["ALL"]:
         def n(truth: str, verdict: str) -> int:
             return sum(v for (f, t, d), v in counts.items()
@@ -157,6 +182,6 @@ def table(counts: Counter[tuple[str, str, str]]) -> str:
         unknown = sum(n("unknown", d) for d in ("proved", "inconclusive", "refuted", "error", "missing"))
         rows.append(f"{family:<28}{true_n:>6}{n('true', 'proved'):>8}{n('true', 'inconclusive'):>7}"
                     f"{n('true', 'refuted'):>7}{false_n:>7}{n('false', 'refuted'):>8}"
-                    f"{n('false', 'inconclusive'):>7}{n('false', 'proved'):>8}{n('*', 'error'):>6}{unknown:>8}")
-        total[family] = true_n + false_n + unknown
+                    f"{n('false', 'inconclusive'):>7}{n('false', 'proved'):>8}{n('*', 'error'):>6}{unknown:>8}"
+                    f"{n('*', 'internal'):>9}")
     return "\n".join(rows)
