@@ -255,7 +255,7 @@ def substitution(draw: Draw, meant_true: bool) -> Case:
 def sqrt_sign(draw: Draw, meant_true: bool) -> Case:
     """Principal square roots: sqrt of a square under a sign hypothesis, scaling out a square factor,
     products of roots, hypot of a Pythagorean triple."""
-    kind = draw(st.sampled_from(["square", "scale", "product", "hypot", "reciprocal"]))
+    kind = draw(st.sampled_from(["square", "scale", "product", "hypot", "reciprocal", "even_power"]))
     conditions: list[Condition] = []
     if kind == "square":
         a, c = draw(st.integers(1, 3)), small_int(draw, -3, 3, nonzero=False)
@@ -283,6 +283,21 @@ def sqrt_sign(draw: Draw, meant_true: bool) -> Case:
             return as_mpf({"x": boundary + uniform(rng), "y": uniform(rng)})
 
         return claim(draw, "sqrt_sign", left, right, conditions, around, meant_true)
+    elif kind == "even_power":
+        # sqrt(x**4) == x**2 everywhere; sqrt(x**6) == x**3 and sqrt(x**2*y**2) == x*y need signs
+        shape = draw(st.sampled_from(["fourth", "sixth", "product"]))
+        if shape == "fourth":
+            left, right = sympy.sqrt(X**4, evaluate=False), X**2 if meant_true else X**2 + 1
+        elif shape == "sixth":
+            left, right = sympy.sqrt(X**6, evaluate=False), X**3
+            conditions.append(Condition(X, ">=", sympy.Integer(0)) if meant_true else
+                              Condition(X, "<=", sympy.Integer(0)))
+        else:
+            left, right = sympy.sqrt(X**2 * Y**2, evaluate=False), X * Y
+            if meant_true or draw(st.booleans()):
+                conditions += [Condition(X, ">=", sympy.Integer(0)), Condition(Y, ">=", sympy.Integer(0))]
+            if not meant_true:
+                conditions = conditions[:1]  # only x's sign: y < 0 gives a counterexample
     elif kind == "scale":
         k = draw(st.integers(2, 5))
         left = sympy.sqrt(k**2 * X, evaluate=False)
@@ -506,6 +521,39 @@ def large_angle(draw: Draw, meant_true: bool) -> Case:
     return claim(draw, "large_angle", left, right, (), free_sampler(["x", "y"]), meant_true)
 
 
+@st.composite
+def conic(draw: Draw, meant_true: bool) -> Case:
+    """Points of a circle x**2 + y**2 == r2 (r2 not a square, so witnesses are irrational) or a hyperbola
+    x*y == k: identities on the curve, and false claims whose witness must lie on it."""
+    kind = draw(st.sampled_from(["circle", "hyperbola"]))
+    if kind == "circle":
+        r2 = draw(st.sampled_from([2, 3, 5, 7, 10]))
+        curve = Condition(X**2 + Y**2, "==", sympy.Integer(r2))
+        a = small_int(draw)
+        left = polynomial(draw, [X, Y], 2, 2) + a * X**2
+        right = sympy.expand(left.subs(X**2, r2 - Y**2))
+        conditions = [curve]
+        if not meant_true:
+            right = perturb(draw, right, [X, Y])
+
+        def sample(rng: random.Random) -> dict[str, mpmath.mpf]:
+            t = as_mpf({"t": uniform(rng)})["t"]
+            with mpmath.workdps(50):
+                return {"x": mpmath.sqrt(r2) * mpmath.cos(t), "y": mpmath.sqrt(r2) * mpmath.sin(t)}
+    else:
+        k = small_int(draw)
+        conditions = [Condition(X * Y, "==", sympy.Integer(k))]
+        j = draw(st.integers(1, 3))
+        left = (X * Y) ** j + X
+        right = sympy.Integer(k) ** j + X if meant_true else sympy.Integer(k) ** j + Y
+
+        def sample(rng: random.Random) -> dict[str, mpmath.mpf]:
+            x = as_mpf({"x": uniform(rng)})["x"]
+            with mpmath.workdps(50):
+                return {"x": x, "y": k / x} if x != 0 else {"x": mpmath.mpf(1), "y": mpmath.mpf(k)}
+    return claim(draw, "conic", left, right, conditions, sample, meant_true)
+
+
 FAMILIES: dict[str, Callable[[bool], st.SearchStrategy[Case]]] = {
     "poly_expand": poly_expand,
     "horner": horner,
@@ -521,4 +569,5 @@ FAMILIES: dict[str, Callable[[bool], st.SearchStrategy[Case]]] = {
     "powers": powers,
     "radical_subst": radical_subst,
     "large_angle": large_angle,
+    "conic": conic,
 }

@@ -233,10 +233,31 @@ def rotation(draw: Draw, meant_true: bool) -> KernelCase:
     return KernelCase(case, "c", snippet, 0)
 
 
+@st.composite
+def lengths(draw: Draw, meant_true: bool) -> KernelCase:
+    """A scaled length through a root: C writes it through an out-pointer with hypot or sqrt, Rust with
+    ``.sqrt()`` and ``.powi(2)``; the claim is the root of the sum of squares."""
+    language = draw(st.sampled_from(["c", "rust"]))
+    k = draw(st.integers(1, 4))
+    computed = k * sympy.sqrt(X**2 + Y**2)
+    claimed = sympy.sqrt(k**2 * X**2 + k**2 * Y**2) if meant_true else \
+        draw(st.sampled_from([sympy.sqrt(k * X**2 + k**2 * Y**2 + 1), k * (X + Y), -computed]))
+    claim = f"{COMMENT[language]} idealcheck: returns {_claim_text(claimed)}"
+    if language == "c":
+        root = draw(st.sampled_from(["hypot(x, y)", "sqrt(x * x + y * y)", "sqrt(pow(x, 2) + pow(y, 2))"]))
+        snippet = f"{claim}\nvoid NAME(double x, double y, double *out) {{\n    *out = {k}.0 * {root};\n}}\n"
+    else:
+        snippet = (f"{claim}\npub fn NAME(x: f64, y: f64) -> f64 {{\n    let r = (x.powi(2) + y.powi(2)).sqrt();\n"
+                   f"    {k}.0 * r\n}}\n")
+    case = Case(f"kernel_lengths_{language}", claim, computed, claimed, (), free_sampler(["x", "y"]), meant_true)
+    return KernelCase(case, language, snippet, 0)
+
+
 FAMILIES: dict[str, Callable[[bool], st.SearchStrategy[KernelCase]]] = {
     "kernel_horner": horner_loop,
     "kernel_statement": statement,
     "kernel_branches": branches,
     "kernel_same_as": same_as,
     "kernel_rotation": rotation,
+    "kernel_lengths": lengths,
 }
