@@ -46,6 +46,7 @@ def main() -> int:
     parser.add_argument("--keep", type=Path, help="copy each batch folder with a violation under this folder")
     options = parser.parse_args()
     outcomes: list[Outcome] = []
+    batches: list[int] = []
     started = time.perf_counter()
 
     @settings(max_examples=options.batches, deadline=None, database=None, phases=[Phase.generate],
@@ -55,9 +56,10 @@ def main() -> int:
         with tempfile.TemporaryDirectory() as folder:
             found = check_batch(run, Path(folder), cases, ["--timeout", str(options.timeout)])
             if options.keep and failures(found):
-                shutil.copytree(folder, options.keep / f"batch{len(outcomes) // len(found) + 1}")
+                shutil.copytree(folder, options.keep / f"batch{len(batches) + 1}")
         outcomes.extend(found)
-        print(f"batch {len(outcomes) // max(1, len(found))}: {len(found)} claims, "
+        batches.append(len(found))
+        print(f"batch {len(batches)}: {len(found)} claims, "
               f"{len(failures(found))} violations, {time.perf_counter() - started:.0f} s", file=sys.stderr)
 
     seed(options.seed)(one_batch)()
@@ -66,7 +68,9 @@ def main() -> int:
     verdicts = Counter(o.verdict for o in outcomes)
     true_claims = [o for o in outcomes if o.truth == "true"]
     undecided = sum(o.verdict == "inconclusive" for o in true_claims)
-    print(f"\n{len(outcomes)} claims in {time.perf_counter() - started:.0f} s; verdicts {dict(verdicts)}; "
+    distinct = len({(o.family, o.where.split(": ", 1)[-1]) for o in outcomes})
+    print(f"\n{len(outcomes)} claims ({distinct} distinct) in {len(batches)} batches, "
+          f"{time.perf_counter() - started:.0f} s; verdicts {dict(verdicts)}; "
           f"true claims inconclusive {undecided}/{len(true_claims)}"
           f" ({100 * undecided / max(1, len(true_claims)):.1f}%)")
     shown: Counter[str] = Counter()

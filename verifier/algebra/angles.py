@@ -8,6 +8,9 @@ from verifier.algebra.polytext import parenthesized
 # A common multiple at least this large becomes the base angle: sin(10000*x) is one atom, not a
 # degree-10000 multiple-angle expansion; smaller multiples keep the expansion (sin(2*x) in sin(x), cos(x)).
 MIN_ANGLE_STEP = 8
+# A multiple left above this after the common step becomes a base angle of its own: sin(1001*x) beside
+# sin(1000*x) (step 1) would be a degree-1001 expansion (15 s); as two atoms the claim is refuted at once.
+MAX_ANGLE_MULTIPLE = 100
 
 PI_FRACTIONS = {
     1: ((lambda c, s: c + 1, "cos(X) == -1"), (lambda c, s: s, "sin(X) == 0")),

@@ -24,7 +24,7 @@ from sympy import QQ, Symbol, factorint
 from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
-from verifier.algebra.angles import MIN_ANGLE_STEP, PI_FRACTIONS, multiple_angle, scaled
+from verifier.algebra.angles import MAX_ANGLE_MULTIPLE, MIN_ANGLE_STEP, PI_FRACTIONS, multiple_angle, scaled
 from verifier.algebra.polytext import format_poly, parenthesized, poly_key
 from verifier.model.explanation import AuxKind, AuxVariable
 from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold, preorder
@@ -332,6 +332,8 @@ class Translator:
             if step < MIN_ANGLE_STEP or multiple % step or self._is_pi(key):
                 step = 1  # multiples of pi keep pi/scale as their base: its exact values are known
             multiple //= step
+            if abs(multiple) > MAX_ANGLE_MULTIPLE and not self._is_pi(key):
+                step, multiple = step * abs(multiple), (1 if multiple > 0 else -1)
             c, s = self._angle_pair(key, direction, scale, step)
             ck, sk = multiple_angle(self.lift(c), self.lift(s), abs(multiple), self.const(1))
             if multiple < 0:
