@@ -24,3 +24,25 @@ def test_large_multiples_of_an_angle_are_decided_end_to_end(cli, tmp_path: Path)
     x = mpmath.mpf("0.001")
     assert abs(mpmath.sin(2000 * x) - 2 * mpmath.sin(1000 * x)) > 0.1
     assert cli.verdicts(tmp_path, "waves.py", CLAIMS, "--timeout", "60") == CLAIMS
+
+
+# Found by the fuzzer (tests/fuzz_expressions.py, family large_angle): multiples with no large common step
+# (10001 and 10000 have gcd 1) still expanded to degree 10001, so sin(1001*x) == sin(1000*x) took 15 s and
+# the 10000 pair ran out of time.  Past 100 a multiple is a base angle of its own.
+COPRIME_CLAIMS = {
+    "y + sin(10001*x) == y + sin(10000*x)": "refuted",
+    "sin(1001*x) == sin(1000*x)": "refuted",
+    "sin(10001*x)**2 + cos(10001*x)**2 == 1": "proved",
+    "sin(2*x)*cos(1001*x)**2 == sin(2*x) - sin(2*x)*sin(1001*x)**2": "proved",
+    "sin(1001*x) == sin(1001*x + 2*pi)": "proved",
+    "sin(33*x) == sin(32*x)": "refuted",  # below the cap: the expansion still runs
+}
+
+
+def test_large_coprime_multiples_are_atoms_of_their_own(cli, tmp_path: Path) -> None:
+    x = mpmath.mpf(1)
+    assert abs(mpmath.sin(10001 * x) - mpmath.sin(10000 * x)) > 0.1
+    assert abs(mpmath.sin(1001 * x) - mpmath.sin(1000 * x)) > 0.05
+    assert abs(mpmath.sin(33 * x) - mpmath.sin(32 * x)) > 0.1
+    # the default time limit (10 s): a decision, not a timeout
+    assert cli.verdicts(tmp_path, "waves.py", COPRIME_CLAIMS) == COPRIME_CLAIMS

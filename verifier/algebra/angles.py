@@ -13,6 +13,9 @@ from verifier.model.functions import FUNCTIONS
 # A common multiple at least this large becomes the base angle: sin(10000*x) is one atom, not a
 # degree-10000 multiple-angle expansion; smaller multiples keep the expansion (sin(2*x) in sin(x), cos(x)).
 MIN_ANGLE_STEP = 8
+# A multiple left above this after the common step becomes a base angle of its own: sin(1001*x) beside
+# sin(1000*x) (step 1) would be a degree-1001 expansion (15 s); as two atoms the claim is refuted at once.
+MAX_ANGLE_MULTIPLE = 100
 
 # A real number written as a rational combination of square roots of primes: ((coefficient, primes), ...)
 # stands for sum(coefficient * prod(sqrt(p) for p in primes)); () is 0.

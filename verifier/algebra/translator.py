@@ -32,6 +32,7 @@ from sympy.polys.rings import PolyElement, PolyRing
 
 from verifier.algebra import logarithms
 from verifier.algebra.angles import (
+    MAX_ANGLE_MULTIPLE,
     MIN_ANGLE_STEP,
     PI_VALUES,
     RootSum,
@@ -355,6 +356,8 @@ class Translator:
             if step < MIN_ANGLE_STEP or multiple % step or self._is_pi(key):
                 step = 1  # multiples of pi keep pi/scale as their base: its exact values are known
             multiple //= step
+            if abs(multiple) > MAX_ANGLE_MULTIPLE and not self._is_pi(key):
+                step, multiple = step * abs(multiple), (1 if multiple > 0 else -1)
             c, s = self._angle_pair(key, direction, scale, step)
             ck, sk = multiple_angle(self.lift(c), self.lift(s), abs(multiple), self.const(1))
             if multiple < 0:
