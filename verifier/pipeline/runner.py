@@ -343,7 +343,7 @@ def gather_claims(request: CheckRequest) -> tuple[list[Claim], dict[str, str], t
     roots = tuple(dict.fromkeys(directories + [root] if files or not directories else directories))
     context = ExtractionContext(named_conditions=config.conditions, roots=roots)
     texts = {normalize_path(str(f.path)): f.text for f in discovery.files}
-    claims = collect_claims(discovery, context, options=request.options)
+    claims = with_file_notes(collect_claims(discovery, context, options=request.options), dict(discovery.notes))
     unique: dict[str, Claim] = {}
     for claim in claims:
         unique.setdefault(claim.id, claim)
@@ -361,6 +361,14 @@ def gather_claims(request: CheckRequest) -> tuple[list[Claim], dict[str, str], t
         claims = [c for c in claims if depends_on(c, changed)]
     claims = select_shard(claims, request.shard)
     return claims, texts, discovery.skipped
+
+
+def with_file_notes(claims: list[Claim], notes: dict[str, str]) -> list[Claim]:
+    """The claims with the note of their file (how a file that is not UTF-8 was read) added."""
+    if not notes:
+        return claims
+    return [dataclasses.replace(c, notes=c.notes + (notes[c.location.path],)) if c.location.path in notes else c
+            for c in claims]
 
 
 def max_file_bytes(config: Config) -> int:
