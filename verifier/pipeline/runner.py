@@ -25,6 +25,7 @@ from verifier.model.paths import relative_path
 from verifier.model.run import RunResult
 from verifier.model.skipped import Skipped
 from verifier.model.verdict import Limit, Verdict
+from verifier.pipeline.baseline import Baseline, StaleEntry, apply_baseline
 from verifier.pipeline.jobs import (  # re-exported: the runner's public names
     DEFAULT_DECIDER,
     cached_or_decided,
@@ -303,6 +304,7 @@ class CheckRequest:
     cache_dir: str | None = None  # None: no cache
     options: RunOptions = RunOptions()
     on_inconclusive: str = "fail"  # cached inconclusive results are reused only when they fail the run
+    baseline: Baseline | None = None  # accepted known results (``pipeline.baseline``)
 
 
 def _relative(path: str, cwd: str) -> str:
@@ -313,9 +315,11 @@ def _under(path: str, directory: str) -> bool:
     return directory == "." or path == directory or path.startswith(directory.rstrip("/") + "/")
 
 
-def gather_claims(request: CheckRequest) -> tuple[list[Claim], dict[str, str], tuple[Skipped, ...]]:
+def gather_claims(request: CheckRequest, *, stale_out: list[StaleEntry] | None = None,
+                  ) -> tuple[list[Claim], dict[str, str], tuple[Skipped, ...]]:
     """The selected claims of a request (changed-only filters and shard applied), the texts read and
-    what was left out unread.
+    what was left out unread.  With a baseline, its accepted verdicts are attached before any selection,
+    and its entries that match no claim found go to ``stale_out``.
 
     File arguments (as a hook passes them) select the claims whose dependencies include one of those
     files, so the project root is scanned too: a claim elsewhere that inlines a function of a changed
@@ -348,6 +352,10 @@ def gather_claims(request: CheckRequest) -> tuple[list[Claim], dict[str, str], t
     for claim in claims:
         unique.setdefault(claim.id, claim)
     claims = list(unique.values())
+    if request.baseline is not None:
+        claims, stale = apply_baseline(claims, request.baseline, cwd, scan)
+        if stale_out is not None:
+            stale_out.extend(stale)
     if files:
         claims = [
             c for c in claims
@@ -428,14 +436,15 @@ def with_cache(request: CheckRequest, texts: dict[str, str]) -> tuple[RunOptions
     return dataclasses.replace(options, cache=cache), ()
 
 
-def check_run(request: CheckRequest, *, texts_out: dict[str, str] | None = None) -> RunResult:
+def check_run(request: CheckRequest, *, texts_out: dict[str, str] | None = None,
+              stale_out: list[StaleEntry] | None = None) -> RunResult:
     """Run a whole check: the verdicts (in the order the claims were found) and what was not read.
 
     ``texts_out``, when given, receives the texts of the files read (the command line warns about
-    misspelt claim markers in them)."""
+    misspelt claim markers in them); ``stale_out`` the baseline's stale entries."""
     allow_long_integers()
     warm_up_workers(request.options)
-    claims, texts, skipped = gather_claims(request)
+    claims, texts, skipped = gather_claims(request, stale_out=stale_out)
     if texts_out is not None:
         texts_out.update(texts)
     options, refused = with_cache(request, texts)
