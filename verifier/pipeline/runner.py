@@ -403,31 +403,19 @@ def check(request: CheckRequest) -> list[Verdict]:
     return list(check_run(request).verdicts)
 
 
-def with_cache(request: CheckRequest, texts: dict[str, str]) -> tuple[RunOptions, tuple[Skipped, ...]]:
+def with_cache(request: CheckRequest) -> tuple[RunOptions, tuple[Skipped, ...]]:
     """The request's run options with the result cache of ``request.cache_dir`` (unchanged without one),
-    and the cache folder as a skipped entry when it is refused; ``texts`` are the files already read
-    (``gather_claims``), other dependencies are read from disk."""
+    and the cache folder as a skipped entry when it is refused."""
     options = request.options
     if request.cache_dir is None:
         return options, ()
     from verifier import __version__
     from verifier.pipeline.cache import ResultCache
-    from verifier.pipeline.reading import read_regular_file
-
-    limit = max_file_bytes(request.config)
-
-    def dependency_text(path: str) -> str | None:
-        key = normalize_path(path)
-        if key in texts:
-            return texts[key]
-        text, _problem, _skipped = read_regular_file(os.path.join(request.cwd, key), key, limit)
-        return text
 
     cache = ResultCache(
         os.path.join(request.cwd, request.cache_dir),
         version=__version__,
         conditions=request.config.conditions,
-        dependency_text=dependency_text,
         limits=(options.timeout, options.memory_mb),
         reuse_inconclusive=request.on_inconclusive == "fail",
     )
@@ -447,5 +435,5 @@ def check_run(request: CheckRequest, *, texts_out: dict[str, str] | None = None,
     claims, texts, skipped = gather_claims(request, stale_out=stale_out)
     if texts_out is not None:
         texts_out.update(texts)
-    options, refused = with_cache(request, texts)
+    options, refused = with_cache(request)
     return RunResult(tuple(run(claims, options)), skipped + refused)
