@@ -111,6 +111,7 @@ def test_only_a_claim_line_that_is_not_utf8_is_an_error(cli: Cli, tmp_path: Path
     assert found == [(2, "proved"), (3, "error"), (5, "error")]
     errors = [c for c in report["claims"] if c["verdict"] == "error"]
     assert all("claim line is not UTF-8 (byte 0xe9" in c["reason"] for c in errors)
+    assert {c["text"] for c in errors} == {"(claim could not be read)"}
     assert errors[0]["column"] == len("! idealcheck: x*") + 1
 
 

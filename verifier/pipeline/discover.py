@@ -79,6 +79,7 @@ class Discovery:
     problems: tuple[FileProblem, ...]
     skipped: tuple[Skipped, ...] = ()
     notes: tuple[tuple[str, str], ...] = ()  # (path, note): how a file that is not UTF-8 was read
+    claim_line_problems: tuple[FileProblem, ...] = ()  # claim lines of files read that cannot be decoded
 
 
 def skipped_dir_reason(directory: Path, name: str, *, walking: bool = False) -> str | None:
@@ -159,10 +160,10 @@ class _Collector:
     def discovery(self) -> Discovery:
         files = tuple(self.files[key] for key in sorted(self.files))
         problems = tuple(self.problems[key] for key in sorted(self.problems))
-        problems += tuple(self.problem_lines[key] for key in sorted(self.problem_lines) if key[0] in self.files)
+        lines = tuple(self.problem_lines[key] for key in sorted(self.problem_lines) if key[0] in self.files)
         skipped = tuple(self.skipped[key] for key in sorted(self.skipped))
         notes = tuple((path, self.notes[path]) for path in sorted(self.notes) if path in self.files)
-        return Discovery(files, problems, skipped, notes)
+        return Discovery(files, problems, skipped, notes, lines)
 
 
 def _inside(real: str, roots: Sequence[str]) -> bool:

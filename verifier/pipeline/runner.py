@@ -104,6 +104,7 @@ def collect_claims(discovery: Any, context: Any, *, extract: Callable[..., list[
     other files are still read.  ``extract`` (in this process) is for tests.
     """
     claims: list[Claim] = [file_problem_claim(p) for p in discovery.problems]
+    claims += [file_problem_claim(p, text="(claim could not be read)") for p in discovery.claim_line_problems]
     files = list(discovery.files)
     if extract is not None or options is None or options.in_process:
         for source in files:
