@@ -7,7 +7,7 @@ from __future__ import annotations
 
 import mpmath
 
-from verifier.model.expr import BinOp, Call, Neg, Num, Pow, Var
+from verifier.model.expr import BinOp, Call, Neg, Num, Opaque, Pow, Var
 
 _FUNCTIONS = {
     "sqrt": mpmath.sqrt,
@@ -18,6 +18,17 @@ _FUNCTIONS = {
     "log": mpmath.log,
     "hypot": lambda a, b: mpmath.sqrt(a * a + b * b),
     "fma": lambda a, b, c: a * b + c,
+    # the further real functions (Python's math module semantics, common practice), written with mpmath
+    "atan": mpmath.atan, "atan2": mpmath.atan2, "asin": mpmath.asin, "acos": mpmath.acos,
+    "sinh": mpmath.sinh, "cosh": mpmath.cosh, "tanh": mpmath.tanh,
+    "asinh": mpmath.asinh, "acosh": mpmath.acosh, "atanh": mpmath.atanh,
+    "erf": mpmath.erf, "erfc": mpmath.erfc, "log1p": mpmath.log1p, "expm1": mpmath.expm1,
+    "radians": lambda a: a * mpmath.pi / 180, "degrees": lambda a: a * 180 / mpmath.pi,
+    "abs": abs, "min": min, "max": max,
+    "floor": mpmath.floor, "ceil": mpmath.ceil, "trunc": lambda a: mpmath.floor(a) if a >= 0 else mpmath.ceil(a),
+    "mod": lambda a, b: a - b * mpmath.floor(a / b), "floordiv": lambda a, b: mpmath.floor(a / b),
+    # C's fmod takes the sign of a (mpmath.fmod does not: fmod(-7, 2) is 1 there, -1 in C)
+    "fmod": lambda a, b: a - b * (mpmath.floor(a / b) if a / b >= 0 else mpmath.ceil(a / b)), "copysign": lambda a, b: abs(a) if b > 0 else -abs(a),
 }
 
 
@@ -46,6 +57,8 @@ def mp_eval(expr, env: dict):
         return base ** e.numerator
     if isinstance(expr, Call):
         return _FUNCTIONS[expr.function](*[mp_eval(a, env) for a in expr.args])
+    if isinstance(expr, Opaque) and expr.name == "pi" and not expr.args:
+        return +mpmath.pi
     raise TypeError(type(expr).__name__)
 
 

@@ -61,6 +61,48 @@ ROWS = [
 ]
 
 
+def _floor_mod(a: mpf, b: mpf) -> mpf:
+    """Python's a % b on floats: a - b*floor(a/b) (the Python language reference, common practice)."""
+    return a - b * mpmath.floor(a / b)
+
+
+def _c_fmod(a: mpf, b: mpf) -> mpf:
+    """C's fmod: a - b*trunc(a/b), the sign of a (C standard 7.12.10.1, common practice; mpmath.fmod differs)."""
+    q = a / b
+    return a - b * (mpmath.floor(q) if q >= 0 else mpmath.ceil(q))
+
+
+# the further real functions of the table (issue 10): the same four back ends, mpmath the reference
+ROWS += [
+    Row("atan(x)", {"x": F(1, 2)}, lambda v: mpmath.atan(v["x"]), False, False),
+    Row("atan(x) + asin(x) + atanh(x) + erf(x)", {"x": F(0)}, lambda v: mpf(0), True, False),
+    Row("atan2(y, x) + 1", {"y": F(-3, 4), "x": F(-1, 2)}, lambda v: mpmath.atan2(v["y"], v["x"]) + 1, False, False),
+    Row("asin(x) + acos(x)", {"x": F(1, 4)}, lambda v: mpmath.asin(v["x"]) + mpmath.acos(v["x"]), False, False),
+    Row("acos(x) + acosh(x) + 1", {"x": F(1)}, lambda v: mpf(1), True, False),
+    Row("sinh(x)*cosh(x) - tanh(x)", {"x": F(3, 8)},
+        lambda v: mpmath.sinh(v["x"]) * mpmath.cosh(v["x"]) - mpmath.tanh(v["x"]), False, False),
+    Row("asinh(x) + acosh(y) + atanh(z)", {"x": F(1, 2), "y": F(5, 4), "z": F(-1, 4)},
+        lambda v: mpmath.asinh(v["x"]) + mpmath.acosh(v["y"]) + mpmath.atanh(v["z"]), False, False),
+    Row("erf(x) - erfc(x)", {"x": F(3, 4)}, lambda v: mpmath.erf(v["x"]) - mpmath.erfc(v["x"]), False, False),
+    Row("log1p(x) - expm1(y)", {"x": F(1, 1024), "y": F(-1, 2048)},
+        lambda v: mpmath.log(1 + v["x"]) - (mpmath.exp(v["y"]) - 1), False, False),
+    Row("radians(x)", {"x": F(90)}, lambda v: mpmath.pi / 2, False, False),
+    Row("np.deg2rad(x) - math.degrees(y)", {"x": F(45)/2, "y": F(1, 2)},
+        lambda v: v["x"] * mpmath.pi / 180 - v["y"] * 180 / mpmath.pi, False, False),
+    Row("abs(x) + fabs(y)", {"x": F(-5, 2), "y": F(3, 4)}, lambda v: abs(v["x"]) + abs(v["y"]), True, False),
+    Row("min(a, b, c) - max(a, b)", {"a": F(3, 4), "b": F(-1, 2), "c": F(1, 8)},
+        lambda v: min(v["a"], v["b"], v["c"]) - max(v["a"], v["b"]), True, False),
+    Row("floor(x) + ceil(y) + trunc(z)", {"x": F(-5, 2), "y": F(7, 4), "z": F(-7, 4)},
+        lambda v: mpmath.floor(v["x"]) + mpmath.ceil(v["y"]) + mpmath.ceil(v["z"]), True, False),
+    Row("x % y + 10*(x // y)", {"x": F(-7, 2), "y": F(3, 4)},
+        lambda v: _floor_mod(v["x"], v["y"]) + 10 * mpmath.floor(v["x"] / v["y"]), True, False),
+    Row("fmod(x, y) + 10*copysign(x, y)", {"x": F(-7, 2), "y": F(3, 4)},
+        lambda v: _c_fmod(v["x"], v["y"]) + 10 * abs(v["x"]), True, False),
+    Row("fmod(y, x) + copysign(y, x)", {"x": F(-7, 2), "y": F(3, 4)},
+        lambda v: _c_fmod(v["y"], v["x"]) - abs(v["y"]), True, False),
+]
+
+
 def _ids(row: Row) -> str:
     return f"{row.text} at {dict(row.point)}"
 

@@ -309,3 +309,59 @@ def test_non_strict_inequalities_are_sign_hypotheses_only():
     tr = translated("x", "y", "x <= y")
     assert tr.generators == ()
     assert (poly(tr, y - x), False) in tr.signs
+
+
+# ---------------------------------------------------------------- the further real functions (issue 10)
+
+
+def test_radians_and_degrees_are_multiples_of_pi():
+    # radians(u) = u*pi/180, degrees(u) = u*180/pi (Python's math module reference, common practice)
+    tr = translated("sin(radians(90))", "1")
+    assert in_ideal(tr, tr.difference.as_expr())  # sin(pi/2) = 1
+    tr = translated("degrees(radians(x))", "x")
+    p = aux(tr, "pi")
+    assert means(tr, tr.left.as_expr(), {"pi": sympy.pi, "1/pi": 1 / sympy.pi}, x)
+    assert in_ideal(tr, tr.difference.as_expr())
+    assert (poly(tr, p * aux(tr, "1/pi")) - 1).as_expr() in generators(tr)
+
+
+def test_hyperbolic_functions_are_written_with_exp():
+    tr = translated("cosh(x)**2 - sinh(x)**2", "1")
+    e, ei = aux(tr, "exp(x)"), aux(tr, "exp(-x)")
+    assert same_ideal(tr, [e * ei - 1])
+    assert means(tr, tr.left.as_expr(), {"exp(x)": sympy.exp(x), "exp(-x)": sympy.exp(-x)},
+                 sympy.cosh(x) ** 2 - sympy.sinh(x) ** 2)
+    assert in_ideal(tr, tr.difference.as_expr())
+    tr = translated("tanh(x) + expm1(x)", "sinh(x)/cosh(x) + exp(x) - 1")
+    assert in_ideal(tr, tr.difference.as_expr())
+
+
+def test_log1p_is_the_logarithm_of_one_plus_its_argument():
+    tr = translated("log1p(x)", "log(1 + x)")
+    assert tr.difference == 0
+    assert (poly(tr, x + 1), True) in tr.signs  # the argument of the logarithm is > 0
+
+
+def test_abs_is_the_principal_root_of_the_square():
+    tr = translated("abs(x)*fabs(x)", "x**2")
+    r = aux(tr, "sqrt(x**2)")
+    assert same_ideal(tr, [r**2 - x**2])
+    assert means(tr, tr.left.as_expr(), {"sqrt(x**2)": sympy.Abs(x)}, sympy.Abs(x) ** 2)
+    assert in_ideal(tr, tr.difference.as_expr())
+
+
+@pytest.mark.parametrize("text", ["atan(x)", "atan2(y, x)", "erf(x)", "floor(x)", "x % y", "min(x, y)",
+                                  "copysign(x, y)", "fmod(x, y)", "asin(x)"])
+def test_opaque_functions_get_one_variable_per_argument_and_cancel(text):
+    tr = translated(f"{text} + 1", f"1 + {text}")
+    assert kinds(tr) == ["opaque"] and tr.difference == 0
+    other = translated(text, text.replace("x", "(x + 1)"))
+    assert kinds(other) == ["opaque", "opaque"] and other.difference != 0
+
+
+def test_opaque_functions_of_constants_take_their_exact_value():
+    # floor(-1/2) = -1, |-3| = 3, atan(0) = 0, 7 % 3 = 1, min(2, -1) = -1 (common practice)
+    tr = translated("floor(-1/2) + abs(-3) + atan(0) + 7 % 3 + min(2, -1)", "2")
+    assert tr.aux == () and tr.difference == 0
+    kept = translated("atan(1) + floor(x)")  # atan(1) = pi/4 is irrational: it stays a variable
+    assert kinds(kept) == ["opaque", "opaque"]

@@ -160,8 +160,8 @@ def _error(text: str) -> ClaimSyntaxError:
         ("os.system(x)", "unsupported call `os.system(...)`", "os.system"),
         ("x.conjugate()", "unsupported call `x.conjugate(...)`", "x.conjugate"),
         ("sqrt(x=1)", "keyword arguments", "sqrt"),
-        ("x // y", "unsupported operator `//`", "x //"),
-        ("x % y", "unsupported operator `%`", "x %"),
+        ("x << y", "unsupported operator `<<`", "x <<"),
+        ("x & y", "unsupported operator `&`", "x &"),
         ("x @ y", "unsupported operator `@`", "x @"),
         ("2j", "complex literals", "2j"),
         ("True + x", "unsupported constant `True`", "True"),
@@ -264,6 +264,22 @@ def test_same_as_returns_and_statement_forms() -> None:
     assert parse_claim_text("returns 4*x**3").sides == (BinOp("*", num(4), Pow(x, Fraction(3))),)
     statement = parse_claim_text("== a*b/2 given b > 0")
     assert statement.form == "statement" and statement.sides == (BinOp("/", BinOp("*", a, b), num(2)),)
+
+
+def test_nested_results_keep_their_rows() -> None:
+    # a 2x2 matrix written as rows (tuples or lists): sides lists its four entries, nested keeps the rows
+    for text in ("returns (a, b), (x, a)", "returns ((a, b), (x, a))"):
+        parsed = parse_claim_text(text)
+        assert parsed.sides == (a, b, x, a), text
+        assert parsed.nested == ((a, b), (x, a)), text
+    listed = parse_claim_text("returns [[a, b], [x, a]]")  # one result, a list of two rows
+    assert listed.sides == (a, b, x, a) and listed.nested == (((a, b), (x, a)),)
+    assert parse_claim_text("returns [a, b]").nested == ((a, b),)
+    assert parse_claim_text("== (a, (b, x))").nested == (a, (b, x))
+    assert parse_claim_text("returns a, b").nested == (a, b)
+    with pytest.raises(ClaimSyntaxError) as info:
+        parse_claim_text("returns (a, []), b")
+    assert "empty tuple or list" in info.value.message and info.value.offset == 12
 
 
 def test_a_variable_named_returns_still_makes_an_equation() -> None:

@@ -1,20 +1,36 @@
 """Angles for the translator: exact values at pi/n, the multiple-angle expansion, how a base angle prints."""
 from __future__ import annotations
 
+from fractions import Fraction
+from typing import Iterator
+
 from sympy.polys.rings import PolyElement
 
 from verifier.algebra.polytext import parenthesized
+from verifier.model.expr import Call, Expr, preorder
+from verifier.model.functions import FUNCTIONS
 
 # A common multiple at least this large becomes the base angle: sin(10000*x) is one atom, not a
 # degree-10000 multiple-angle expansion; smaller multiples keep the expansion (sin(2*x) in sin(x), cos(x)).
 MIN_ANGLE_STEP = 8
 
-PI_FRACTIONS = {
-    1: ((lambda c, s: c + 1, "cos(X) == -1"), (lambda c, s: s, "sin(X) == 0")),
-    2: ((lambda c, s: c, "cos(X) == 0"), (lambda c, s: s - 1, "sin(X) == 1")),
-    3: ((lambda c, s: 2 * c - 1, "cos(X) == 1/2"), (lambda c, s: 4 * s**2 - 3, "sin(X)**2 == 3/4")),
-    4: ((lambda c, s: 2 * c**2 - 1, "cos(X)**2 == 1/2"), (lambda c, s: s - c, "sin(X) == cos(X)")),
-    6: ((lambda c, s: 4 * c**2 - 3, "cos(X)**2 == 3/4"), (lambda c, s: 2 * s - 1, "sin(X) == 1/2")),
+# A real number written as a rational combination of square roots of primes: ((coefficient, primes), ...)
+# stands for sum(coefficient * prod(sqrt(p) for p in primes)); () is 0.
+RootSum = tuple[tuple[Fraction, tuple[int, ...]], ...]
+
+_HALF, _QUARTER = Fraction(1, 2), Fraction(1, 4)
+
+# (cos(pi/n), sin(pi/n)) with their texts (common practice; A&S table 4.3.46, from memory; the tests
+# check every entry against mpmath).  Giving the value itself, not only its square, pins the sign:
+# sin(pi/4) is +sqrt(2)/2 with sqrt(2) the principal root, so sin(pi/4) == -sqrt(2)/2 does not follow.
+PI_VALUES: dict[int, tuple[tuple[RootSum, str], tuple[RootSum, str]]] = {
+    1: ((((Fraction(-1), ()),), "-1"), ((), "0")),
+    2: (((), "0"), (((Fraction(1), ()),), "1")),
+    3: ((((_HALF, ()),), "1/2"), (((_HALF, (3,)),), "sqrt(3)/2")),
+    4: ((((_HALF, (2,)),), "sqrt(2)/2"), (((_HALF, (2,)),), "sqrt(2)/2")),
+    6: ((((_HALF, (3,)),), "sqrt(3)/2"), (((_HALF, ()),), "1/2")),
+    12: ((((_QUARTER, (2, 3)), (_QUARTER, (2,))), "(sqrt(6) + sqrt(2))/4"),
+         (((_QUARTER, (2, 3)), (-_QUARTER, (2,))), "(sqrt(6) - sqrt(2))/4")),
 }
 
 
@@ -34,3 +50,16 @@ def multiple_angle(c: PolyElement, s: PolyElement, k: int, one: PolyElement) -> 
         if k:
             base_re, base_im = base_re**2 - base_im**2, 2 * base_re * base_im
     return re, im
+
+
+def scaled_calls(expr: Expr) -> Iterator[Call]:
+    """The calls whose argument is split into base directions with a common scale (sin, cos, tan, exp),
+    outer calls first."""
+    for node in preorder(expr):
+        entry = FUNCTIONS.get(node.function) if isinstance(node, Call) else None
+        if isinstance(node, Call) and entry is not None and entry.family in ("trigonometric", "exponential"):
+            yield node
+
+
+def has_scaled_call(expr: Expr) -> bool:
+    return next(scaled_calls(expr), None) is not None

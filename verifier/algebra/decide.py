@@ -40,6 +40,7 @@ from verifier.algebra.translate import Translation, TranslationError, translate
 from verifier.algebra.witness import differs_mod_p, find_witness
 from verifier.model.certificate import Certificate, IdealCertificate
 from verifier.model.claim import Claim, Obligation
+from verifier.model.expr import has_opaque
 from verifier.model.verdict import Method, ObligationResult, Verdict
 
 _RANK = {"proved": 0, "inconclusive": 1, "refuted": 2, "error": 3}
@@ -136,6 +137,11 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
         return _proved(tr, label, method, 1, cleared, _proved_reason(method, tr))
     basis_result = groebner_basis(generators, deadline=deadline) if generators else None
     if basis_result is not None and _is_unit_ideal(basis_result.basis):
+        if not ob.conditions:
+            # nothing was given, so a denominator the claim divides by is 0 everywhere (tan(pi/2))
+            return ObligationResult(label, "inconclusive", None,
+                                    "division by zero: a denominator of the claim is 0 wherever it is defined",
+                                    None, None, tr.assumed)
         # the conditions have no common (complex, hence real) point: the claim holds vacuously
         assert basis_result.cofactors is not None
         one_cofactors = basis_result.cofactors[0]
@@ -184,7 +190,12 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
     reason = ("the counter-normal-form is not zero, but no real point where every condition holds and the "
               "sides differ was found")
     if _has_opaque(tr):
-        reason += "; the difference involves calls the tool cannot see into"
+        if any(has_opaque(e) for e in (ob.left, ob.right, *(x for c in ob.conditions for x in (c.left, c.right)))):
+            reason += "; the difference involves calls the tool cannot see into"
+        else:
+            # only functions of the table: the search knew their values, the algebra did not
+            reason += ("; the difference involves functions the algebra keeps opaque (the witness search "
+                       "used their exact values)")
         if notes:
             reason += " (" + "; ".join(notes) + ")"
     elif tr.sign_conditions or any(a.kind == "radical" for a in tr.aux):

@@ -3,7 +3,8 @@
 Ideal membership works over the complex numbers and cannot tell ``sqrt(u)`` from ``-sqrt(u)``, so claims
 such as ``sqrt(x**2) == x given x >= 0`` or ``sqrt(x)*sqrt(y) == sqrt(x*y)`` are out of its reach.  The
 conjugate argument: write the difference as ``f = A*r + B`` with r a principal square root (r >= 0) and
-A, B free of r.  If
+A, B free of r (modulo r**2 - radicand when f has higher powers of r; the certificate then states this
+linear form and the cofactors of f minus it).  If
   (1) ``f * (A*r - B)`` lies in the ideal of the conditions, then ``(A*r)**2 == B**2`` wherever they hold;
   (2) ``-A*B`` is congruent modulo the ideal to a polynomial P whose terms all have positive coefficients
       and whose odd powers are of quantities known to be >= 0 (principal roots, exponentials, variables
@@ -34,19 +35,29 @@ from verifier.model.certificate import (
 )
 
 
-def _split_linear(f: PolyElement, index: int, radicand: PolyElement) -> tuple[PolyElement, PolyElement]:
-    """f == A*r + B modulo r**2 - radicand, with A and B free of r (r is generator ``index``)."""
+def _split_linear(f: PolyElement, index: int,
+                  radicand: PolyElement) -> tuple[PolyElement, PolyElement, PolyElement]:
+    """(A, B, Q) with f == A*r + B + Q*(r**2 - radicand) and A, B free of r (r is generator ``index``).
+
+    Each term rest*r**e becomes rest*r**(e % 2)*radicand**k (k = e // 2); what it leaves is
+    rest*r**(e % 2)*(r**(2k) - radicand**k) = rest*r**(e % 2)*(r**2 - radicand)*sum(r**(2j)*radicand**(k-1-j)).
+    """
     ring = f.ring
-    a, b = ring.zero, ring.zero
+    r = ring.gens[index]
+    a, b, q = ring.zero, ring.zero, ring.zero
     for monom, coeff in f.terms():
         e = monom[index]
         rest = ring({monom[:index] + (0,) + monom[index + 1:]: coeff})
-        part = rest * radicand ** (e // 2)
+        k = e // 2
+        odd = r if e % 2 else ring.one
+        part = rest * radicand**k
         if e % 2:
             a += part
         else:
             b += part
-    return a, b
+        if k:
+            q += rest * odd * sum((r ** (2 * j) * radicand ** (k - 1 - j) for j in range(k)), ring.zero)
+    return a, b, q
 
 
 def _split_plain(f: PolyElement, index: int) -> tuple[PolyElement, PolyElement] | None:
@@ -64,27 +75,33 @@ def _split_plain(f: PolyElement, index: int) -> tuple[PolyElement, PolyElement] 
     return a, b
 
 
-def _root_candidates(tr: Translation, positive: Sequence[str]) -> Iterator[tuple[int, PolyElement, PolyElement]]:
-    """(index, A, B) for every nonnegative symbol v with f == A*v + B (radicals after v**2 -> radicand)."""
+def _root_candidates(tr: Translation, positive: Sequence[str]
+                     ) -> Iterator[tuple[int, PolyElement, PolyElement, tuple[PolyElement, ...]]]:
+    """(index, A, B, C) for every nonnegative symbol v with f == A*v + B + sum(C_i*g_i): for a radical v
+    the powers v**k (k >= 2) are reduced by its generator v**2 - radicand, and C (the cofactors of
+    f - (A*v + B)) is that quotient at the generator's place; for another symbol f is linear in v, C zero."""
     f = tr.difference
     symbols = [str(x) for x in tr.ring.symbols]
-    radicands: dict[int, PolyElement] = {}
-    for gen in tr.generators:
+    zero = tuple(tr.ring.zero for _ in tr.generators)
+    radicands: dict[int, tuple[int, PolyElement]] = {}
+    for position, gen in enumerate(tr.generators):
         if gen.kind == "radical" and gen.variable in symbols:
             index = symbols.index(gen.variable)
             radicand = tr.ring.gens[index] ** 2 - gen.poly
             if radicand.degree(index) <= 0:
-                radicands[index] = radicand
+                radicands[index] = (position, radicand)
     for name in positive:
         index = symbols.index(name)
         if f.degree(index) <= 0:
             continue
         if index in radicands:
-            yield (index, *_split_linear(f, index, radicands[index]))
+            position, radicand = radicands[index]
+            a, b, quotient = _split_linear(f, index, radicand)
+            yield index, a, b, zero[:position] + (quotient,) + zero[position + 1:]
         else:
             split = _split_plain(f, index)
             if split is not None:
-                yield (index, *split)
+                yield index, split[0], split[1], zero
 
 
 def _nonnegative_form(value: PolyElement, tr: Translation, basis: GroebnerResult, positive_index: set[int],
@@ -125,18 +142,21 @@ def find_sign_proof(tr: Translation, basis: GroebnerResult, *,
     symbols = [str(s) for s in ring.symbols]
     positive = nonnegative_symbols(tr)
     positive_index = {symbols.index(n) for n in positive}
-    for index, a, b in _root_candidates(tr, positive):
+    for index, a, b, form_cofactors in _root_candidates(tr, positive):
         if not a or not b:
             continue
         r = ring.gens[index]
+        # the certificate states the form linear in r besides f: its checker reads A and B off
+        # form +- multiplier, which for f itself fails when f has r**2, r**3 ... (fuzzing defect D2)
+        form = a * r + b
         multiplier = a * r - b
         cofactors = membership_cofactors(f * multiplier, basis, deadline=deadline)
         if cofactors is None:
             continue
-        form = _nonnegative_form(-a * b, tr, basis, positive_index, deadline)
-        if form is None:
+        nonnegative = _nonnegative_form(-a * b, tr, basis, positive_index, deadline)
+        if nonnegative is None:
             continue
-        p, hypotheses = form
+        p, hypotheses = nonnegative
         combination = -a * b - p - sum((h * lam for h, lam in hypotheses), ring.zero)
         p_cofactors = membership_cofactors(combination, basis, deadline=deadline) if combination else \
             tuple(ring.zero for _ in tr.generators)
@@ -150,6 +170,8 @@ def find_sign_proof(tr: Translation, basis: GroebnerResult, *,
             nonnegative=poly_to_data(p),
             nonnegative_cofactors=tuple(poly_to_data(c) for c in p_cofactors),
             nonnegative_symbols=positive,
+            form=poly_to_data(form),
+            form_cofactors=tuple(poly_to_data(c) for c in form_cofactors),
             hypotheses=tuple((poly_to_data(h), fraction_text(_fraction(lam))) for h, lam in hypotheses),
         )
     return None

@@ -15,6 +15,7 @@ from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
 from verifier.algebra.polytext import format_poly  # noqa: F401  (re-exported: printing of translations)
+from verifier.algebra.cases import resolve_by_cases
 from verifier.algebra.translator import (
     GeneratorKind,
     TranslationError,
@@ -102,8 +103,28 @@ def _positive_variables(conditions: Sequence[Condition]) -> set[str]:
     return out
 
 
+def _two_sided_bounds(signs: list[tuple[PolyElement, bool]], conditions: list[Condition]
+                      ) -> list[tuple[PolyElement, str]]:
+    """``S >= 0`` and ``-c*S >= 0`` (c > 0) mean ``S == 0`` over the reals: the equation joins the ideal
+    (``x == 1`` given ``x >= 1, x <= 1``; a branch ``x >= 0`` on a path that also has ``x <= 0``)."""
+    found: list[tuple[PolyElement, str]] = []
+    seen: set = set()
+    for i, (first, first_strict) in enumerate(signs):
+        for j in range(i + 1, len(signs)):
+            second, second_strict = signs[j]
+            if first_strict or second_strict or not first or not second:
+                continue  # a strict bound against the other side is a contradiction, found elsewhere
+            if first.LC * second.LC < 0 and first.monic() == second.monic():
+                key = tuple(sorted(first.monic().terms()))
+                if key not in seen:
+                    seen.add(key)
+                    found.append((first, f"{conditions[i].text} and {conditions[j].text}"))
+    return found
+
+
 def translate(obligation: Obligation) -> Translation:
     """Translate one obligation; raises TranslationError for what cannot be represented."""
+    obligation = resolve_by_cases(obligation)
     substituted = _substitute_constants(obligation)
     if substituted is not obligation:
         try:
@@ -150,6 +171,8 @@ def _translate(obligation: Obligation) -> Translation:
                     t.inverse(diff)
         else:
             raise TranslationError(f"unknown relation {cond.relation!r}")
+    for poly, meaning in _two_sided_bounds(signs, sign_conditions):
+        t.add_generator(poly, "equation", meaning)
     left = t.value(obligation.left)
     right = t.value(obligation.right)
     # the final ring: auxiliary variables first (larger in the order), then the original variables

@@ -6,10 +6,16 @@ Every construct that is not a polynomial gets a fresh variable and the equations
   ``hypot(a, b)`` is ``sqrt(a**2 + b**2)`` and ``fma(a, b, c)`` is ``a*b + c``;
 - ``sin``/``cos`` of integer-linear combinations of angles: one (s, c) pair per base angle with
   ``s**2 + c**2 - 1``; the multiple-angle and addition formulas are expanded exactly; ``tan`` is sin/cos;
-- ``exp`` of linear combinations: one e and its inverse per base quantity with ``e*ei - 1``;
+- ``exp`` of linear combinations: one e and its inverse per base quantity with ``e*ei - 1``; ``expm1``,
+  ``sinh``, ``cosh`` and ``tanh`` are written with them;
 - ``log`` and opaque calls: one variable per distinct argument (nothing else is known about it), except
-  that the logarithm of a product of variables with positive hypotheses splits into a sum;
-- ``pi``: an opaque constant whose sine and cosine at pi/n (n = 1, 2, 3, 4, 6) are known exactly;
+  where the logarithm laws hold on their domain (``logarithms.py``): log(4) = 2*log(2), log(exp(a)) = a,
+  log(x/y) = log(x) - log(y) given x > 0, y > 0, exp(log(x)) = x given x > 0; ``log1p(u)`` is
+  ``log(1 + u)``; the functions of the table's ``opaque`` family (atan, floor, min, ...) likewise get one
+  variable per distinct argument (their exact value when the arguments are constants);
+- ``radians(u)`` is ``u*pi/180``, ``degrees(u)`` is ``u*180/pi`` and ``abs(u)`` is ``sqrt(u**2)``;
+- ``pi``: an opaque constant whose sine and cosine at pi/n (n = 1, 2, 3, 4, 6, 12) are known exactly, as
+  rational combinations of the radical variables sqrt(2), sqrt(3) (so their signs are known too);
 - a square root of a rational constant: one radical per prime of its square-free part.
 Radicands (>= 0) and log arguments (> 0) join the sign hypotheses.  Each auxiliary variable is shown in
 the original variables when a polynomial is printed.  The driver is verifier/algebra/translate.py.
@@ -18,17 +24,27 @@ from __future__ import annotations
 
 import math
 from fractions import Fraction
-from typing import Iterator, Literal, Sequence
+from typing import Literal, Sequence
 
-from sympy import QQ, Symbol, factorint
+from sympy import QQ, Symbol
 from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
-from verifier.algebra.angles import MIN_ANGLE_STEP, PI_FRACTIONS, multiple_angle, scaled
+from verifier.algebra import logarithms
+from verifier.algebra.angles import (
+    MIN_ANGLE_STEP,
+    PI_VALUES,
+    RootSum,
+    has_scaled_call,
+    multiple_angle,
+    scaled,
+    scaled_calls,
+)
 from verifier.algebra.polytext import format_poly, parenthesized, poly_key
+from verifier.algebra.radicands import split_constant_radicand
 from verifier.model.explanation import AuxKind, AuxVariable
-from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold, preorder
-from verifier.model.functions import FUNCTIONS, rational_sqrt
+from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold
+from verifier.model.functions import FUNCTIONS, DomainError, NotRational, rational_sqrt
 
 GeneratorKind = Literal["equation", "nonzero", "inverse", "radical", "trig", "exp"]
 
@@ -52,7 +68,7 @@ class Translator:
         self.generators: list[tuple[PolyElement, GeneratorKind, str, str]] = []
         self.assumed: list[str] = []
         self._atoms: dict[tuple, str] = {}  # canonical key -> aux variable name
-        self._inverse_of: dict[str, PolyElement] = {}  # inverse variable -> the factor it inverts
+        self.inverse_of: dict[str, PolyElement] = {}  # inverse variable -> the factor it inverts
         self._memo: dict[Expr, PolyElement] = {}
         self._counter = 0
         self._angle_scale: dict[tuple, int] = {}  # direction key -> lcm of coefficient denominators
@@ -60,6 +76,9 @@ class Translator:
         self.domain_signs: list[tuple[PolyElement, bool]] = []  # radicands >= 0, log arguments > 0
         self.positive_variables: set[str] = set()  # variables with a hypothesis v > 0 (or v >= c > 0)
         self._exp_scale: dict[tuple, int] = {}
+        self.exp_exponent: dict[str, PolyElement] = {}  # exp variable -> its exponent (log(e) for e > 0)
+        self.radicand_of: dict[str, PolyElement] = {}  # radical variable -> its radicand
+        self.log_argument: dict[str, PolyElement] = {}  # log variable -> its argument
 
     # -- ring management
 
@@ -94,6 +113,9 @@ class Translator:
         return self.lift(fold(expr, _Polynomials(self), self._memo))
 
     # -- expressions
+
+    def atom_name(self, key: tuple) -> str | None:
+        return self._atoms.get(key)
 
     def atom(self, key: tuple, stem: str, meaning: str, kind: AuxKind) -> PolyElement:
         name = self._atoms.get(key)
@@ -151,8 +173,8 @@ class Translator:
             monom = factor.LM
             if sum(monom) == 1:
                 name = str(self.ring.symbols[monom.index(1)])
-                if name in self._inverse_of:
-                    return self.lift(self._inverse_of[name])
+                if name in self.inverse_of:
+                    return self.lift(self.inverse_of[name])
                 partner = self._exp_partner(name)
                 if partner is not None:
                     return self.gen(partner)
@@ -163,7 +185,7 @@ class Translator:
             shown = self.printed(factor)
         name = self._new_symbol("d", f"1/{parenthesized(shown)}", "inverse")
         self._atoms[key] = name
-        self._inverse_of[name] = factor
+        self.inverse_of[name] = factor
         d = self.gen(name)
         self.add_generator(d * self.lift(factor) - 1, "inverse", f"{shown} != 0", name)
         self.assumed.append(f"{shown} != 0")
@@ -178,7 +200,7 @@ class Translator:
             root = rational_sqrt(value)
             if root is not None:
                 return self.const(root)
-            split = _split_constant_radicand(value)
+            split = split_constant_radicand(value)
             if split is not None:
                 # sqrt(12) = 2*sqrt(3), sqrt(6) = sqrt(2)*sqrt(3): one radical per prime (all >= 0)
                 outside, primes = split
@@ -205,6 +227,7 @@ class Translator:
         shown = self.printed(u)
         name = self._new_symbol("r", f"sqrt({shown})", "radical")
         self._atoms[key] = name
+        self.radicand_of[name] = u
         r = self.gen(name)
         self.add_generator(r**2 - self.lift(u), "radical", f"sqrt({shown})**2 == {shown}", name)
         if not u.is_ground:
@@ -221,6 +244,8 @@ class Translator:
             return self.sqrt(args[0] ** 2 + args[1] ** 2)
         if function == "fma":
             return args[0] * args[1] + args[2]
+        if function == "abs":  # |u| is the principal square root of u**2
+            return self.sqrt(args[0] ** 2)
         if function in ("sin", "cos", "tan"):
             argument = args[0]
             cos_value, sin_value = self.angle(argument)
@@ -230,26 +255,37 @@ class Translator:
                 return cos_value
             inverse_cos = self.inverse(cos_value, f"cos({self.printed(self.lift(argument))})")
             return self.lift(sin_value) * inverse_cos
-        if function == "exp":
-            return self.exponential(args[0])
+        if function in ("exp", "expm1", "sinh", "cosh", "tanh"):
+            return self.hyperbolic(function, args[0])
         if function == "log":
             return self.logarithm(args[0])
+        if function == "log1p":
+            return self.logarithm(self.ring.one + args[0])
+        if function in ("radians", "degrees"):
+            pi = self.opaque("pi", ())  # the same variable as the constant pi
+            if function == "radians":
+                return self.lift(args[0]) * pi * self.const(Fraction(1, 180))
+            inverse_pi = self.inverse(pi, "pi")
+            return self.lift(args[0]) * self.const(180) * inverse_pi
+        entry = FUNCTIONS.get(function)
+        if entry is not None and entry.family == "opaque":
+            return self.opaque_call(function, args)
         raise TranslationError(f"unsupported function {function}")
 
+    def hyperbolic(self, function: str, u: PolyElement) -> PolyElement:
+        """exp, expm1 = e - 1, sinh = (e - 1/e)/2, cosh = (e + 1/e)/2, tanh = sinh/cosh (e = exp(u))."""
+        e = self.exponential(u)
+        if function in ("exp", "expm1"):
+            return e if function == "exp" else self.lift(e) - 1
+        inverse_e = self.lift(self.exponential(-self.lift(u)))  # exp(-u): the exponential's own inverse
+        e = self.lift(e)
+        if function in ("sinh", "cosh"):
+            return (e - inverse_e if function == "sinh" else e + inverse_e) * self.const(Fraction(1, 2))
+        inverse_cosh = self.inverse(e + inverse_e, f"2*cosh({self.printed(self.lift(u))})")
+        return self.lift(e - inverse_e) * inverse_cosh
+
     def logarithm(self, u: PolyElement) -> PolyElement:
-        u = self.lift(u)
-        if u.is_ground and u == 1:
-            return self.const(0)
-        split = self._positive_factors(u)
-        if split is not None:
-            # log(c*x**2*y) = log(c) + 2*log(x) + log(y) when x, y > 0 are hypotheses of the claim
-            constant, factors = split
-            result = self._log_atom(self.const(constant)) if constant != 1 else self.const(0)
-            for factor, multiplicity in factors:
-                logarithm = self._log_atom(factor)  # may extend the ring: compute before lifting
-                result = self.lift(result) + multiplicity * self.lift(logarithm)
-            return self.lift(result)
-        return self._log_atom(u)
+        return logarithms.logarithm(self, u)
 
     def opaque(self, name: str, args: Sequence[PolyElement]) -> PolyElement:
         """One variable per opaque name and distinct translated arguments (pi is ``pi``)."""
@@ -258,32 +294,19 @@ class Translator:
         shown = f"{name}({', '.join(self.printed(a) for a in args)})" if args else name
         return self.atom(key, "f", shown, "opaque")
 
-    def _log_atom(self, u: PolyElement) -> PolyElement:
-        u = self.lift(u)
-        shown = self.printed(u)
-        key = ("log", poly_key(u))
-        if key not in self._atoms:
-            self.assumed.append(f"{shown} > 0 (logarithm)")
-            if not u.is_ground:
-                self.domain_signs.append((u, True))
-        return self.atom(key, "l", f"log({shown})", "log")
-
-    def _positive_factors(self, u: PolyElement) -> tuple[Fraction, list[tuple[PolyElement, int]]] | None:
-        """u == c * prod(v**k) with c > 0 and every v a variable with a hypothesis v > 0 (or v >= c > 0)."""
-        if u.is_ground or len(u.terms()) != 1:
-            return None
-        monom, coeff = u.terms()[0]
-        constant = Fraction(int(coeff.numerator), int(coeff.denominator))
-        if constant <= 0:
-            return None
-        symbols = [str(x) for x in self.ring.symbols]
-        factors = []
-        for index, exponent in enumerate(monom):
-            if exponent:
-                if symbols[index] not in self.positive_variables:
-                    return None
-                factors.append((self.ring.gens[index], exponent))
-        return constant, factors
+    def opaque_call(self, function: str, args: Sequence[PolyElement]) -> PolyElement:
+        """A table function opaque to the algebra (atan, floor, ...): one variable per distinct arguments,
+        or its exact value when they are constants and it is rational (floor(0) = 0, atan(0) = 0)."""
+        args = [self.lift(a) for a in args]
+        if all(a.is_ground for a in args):
+            values = [Fraction(int(a.LC.numerator), int(a.LC.denominator)) if a else Fraction(0) for a in args]
+            try:
+                return self.const(FUNCTIONS[function].exact(values))
+            except (NotRational, DomainError):
+                pass
+        key = ("function", function, tuple(poly_key(a) for a in args))
+        shown = f"{function}({', '.join(self.printed(a) for a in args)})"
+        return self.atom(key, "f", shown, "opaque")
 
     # -- angles and exponentials: split an argument into base directions with integer multiples
 
@@ -356,15 +379,34 @@ class Translator:
             self._atoms[pair_key] = ""
             c, s = self.lift(c), self.lift(s)
             self.add_generator(s**2 + c**2 - 1, "trig", f"sin({base_text})**2 + cos({base_text})**2 == 1")
-            if step == 1 and scale in PI_FRACTIONS and self._is_pi(key):
-                # exact values at pi/scale (common practice): sin(pi) = 0, cos(pi/3) = 1/2, ...
-                for relation, text in PI_FRACTIONS[scale]:
-                    self.add_generator(relation(self.lift(c), self.lift(s)), "trig",
-                                       text.replace("X", base_text))
+            if step == 1 and scale in PI_VALUES and self._is_pi(key):
+                # exact values at pi/scale: sin(pi) = 0, cos(pi/3) = 1/2, sin(pi/4) = sqrt(2)/2 (with the
+                # principal root, so that the sign is known), ...
+                for function, (value, text) in zip(("cos", "sin"), PI_VALUES[scale]):
+                    atom = c if function == "cos" else s
+                    self.add_generator(self._pinned(atom, value), "trig", f"{function}({base_text}) == {text}")
         return self.lift(c), self.lift(s)
 
+    def _pinned(self, atom: PolyElement, value: RootSum) -> PolyElement:
+        """m*(atom - value) with m the common denominator of value; its square roots of primes are the
+        radical variables sqrt(p) that the claim's own sqrt(p) shares."""
+        denominator = math.lcm(1, *(coefficient.denominator for coefficient, _ in value))
+        total = self.lift(atom) * denominator
+        for coefficient, primes in value:
+            term = self.const(coefficient * denominator)
+            for prime in primes:
+                radical = self.sqrt(self.const(prime))  # may extend the ring: compute before lifting
+                term = self.lift(term) * self.lift(radical)
+            total = self.lift(total) - self.lift(term)
+        return self.lift(total)
+
     def exponential(self, arg: PolyElement) -> PolyElement:
+        arg, logs = logarithms.without_logs(self, arg)
         result = self.const(1)
+        for argument, exponent in logs:
+            # exp(k*log(w)) = w**k for w > 0 (k an integer or a half-integer)
+            factor = self.power(self.lift(argument), exponent)  # may extend the ring: before lifting
+            result = self.lift(result) * self.lift(factor)
         for key, direction, coeff in self._directions(arg):
             scale = self._exp_scale.get(key, coeff.denominator)
             if scale % coeff.denominator:
@@ -378,6 +420,9 @@ class Translator:
                 self._atoms[pair_key] = ""
                 e, ei = self.lift(e), self.lift(ei)
                 self.add_generator(e * ei - 1, "exp", f"exp({base_text})*exp(-{parenthesized(base_text)}) == 1")
+                exponent = self.lift(direction) * self.const(Fraction(1, scale))
+                self.exp_exponent[self._atoms[("exp", key, scale)]] = exponent
+                self.exp_exponent[self._atoms[("exp_inv", key, scale)]] = -exponent
             factor = self.lift(e) ** multiple if multiple >= 0 else self.lift(ei) ** (-multiple)
             result = self.lift(result) * factor
         return self.lift(result)
@@ -394,10 +439,13 @@ class Translator:
     def prescan(self, exprs: Sequence[Expr]) -> None:
         found: dict[tuple, list[Fraction]] = {}  # direction key -> every coefficient of an angle
         for expr in exprs:
-            for call in _scaled_calls(expr):
+            for call in scaled_calls(expr):
                 exponential = FUNCTIONS[call.function].family == "exponential"
                 table = self._exp_scale if exponential else self._angle_scale
-                for key, _direction, coeff in self._directions(self.value(call.args[0])):
+                argument = self.value(call.args[0])
+                if exponential:
+                    argument = logarithms.without_logs(self, argument)[0]
+                for key, _direction, coeff in self._directions(argument):
                     table[key] = math.lcm(table.get(key, 1), coeff.denominator)
                     if not exponential:
                         found.setdefault(key, []).append(coeff)
@@ -406,26 +454,7 @@ class Translator:
             self._angle_step[key] = math.gcd(*(int(c * scale) for c in coeffs))
         # the pre-scan created no auxiliary variables for angles (only for the arguments' own
         # divisions and radicals); translation proper starts from a clean memo so that calls are redone
-        self._memo = {k: v for k, v in self._memo.items() if not _has_scaled_call(k)}
-
-
-_FACTOR_LIMIT = 10**12  # constant radicands beyond this are not factored
-
-
-def _split_constant_radicand(value: Fraction) -> tuple[Fraction, list[int]] | None:
-    """sqrt(value) == outside * prod(sqrt(p) for p in primes), value > 0 rational, primes distinct."""
-    numerator = value.numerator * value.denominator  # sqrt(n/d) = sqrt(n*d)/d
-    if value <= 0 or numerator > _FACTOR_LIMIT:
-        return None
-    outside = Fraction(1, value.denominator)
-    primes = []
-    for prime, exponent in sorted(factorint(numerator).items()):
-        outside *= prime ** (exponent // 2)
-        if exponent % 2:
-            primes.append(int(prime))
-    if len(primes) <= 1 and outside == 1:
-        return None  # already a single prime radical: nothing to split
-    return outside, primes
+        self._memo = {k: v for k, v in self._memo.items() if not has_scaled_call(k)}
 
 
 class _Polynomials:
@@ -465,16 +494,3 @@ class _Polynomials:
 
     def opaque(self, node: Opaque, args: Sequence[PolyElement]) -> PolyElement:
         return self.t.opaque(node.name, args)
-
-
-def _scaled_calls(expr: Expr) -> Iterator[Call]:
-    """The calls whose argument is split into base directions with a common scale (sin, cos, tan, exp),
-    outer calls first."""
-    for node in preorder(expr):
-        entry = FUNCTIONS.get(node.function) if isinstance(node, Call) else None
-        if isinstance(node, Call) and entry is not None and entry.family in ("trigonometric", "exponential"):
-            yield node
-
-
-def _has_scaled_call(expr: Expr) -> bool:
-    return next(_scaled_calls(expr), None) is not None

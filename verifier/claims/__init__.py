@@ -6,6 +6,7 @@ from collections.abc import Callable
 from verifier.claims.comments import MARKER, CommentClaim, find_comments
 from verifier.claims.expectation import attach_expectations, strip_expectations
 from verifier.claims.expression import PYTHON_EXTENSIONS, expression_claims
+from verifier.claims.julia_docstrings import julia_docstring_claims
 from verifier.claims.unknown_names import flag_unknown_names
 from verifier.model.claim import Claim, ExtractionContext
 
@@ -84,6 +85,8 @@ def extract(path: str, text: str, context: ExtractionContext | None = None) -> l
         found = python_comments(text)  # comments and function docstrings
     else:
         found = find_comments(path, text) if prose is None else prose
+        if path.lower().endswith(".jl") and prose is None:
+            found = sorted(found + julia_docstring_claims(text), key=lambda c: (c.line, c.column))
     # An inline `expect VERDICT: REASON` is split off before the claim is read, then put on its claims.
     comments, expectations, problems = strip_expectations(found)
     claims: list[Claim] = []

@@ -9,16 +9,18 @@ from __future__ import annotations
 import ast
 import re
 from fractions import Fraction
-from typing import Sequence
+from typing import Sequence, Union
 
 from verifier.claims.claim_syntax import ClaimSource, ClaimSyntaxError, check_brackets, one_line
 from verifier.model.expr import PI, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold
 from verifier.model.functions import (
+    BARE_ONLY,
     CALL_SPELLINGS,
     CONSTANT_SPELLINGS,
     MODULE_PREFIXES,
     POWER,
     REFUSED_CONSTANTS,
+    VARIADIC,
     arity,
     known_names,
 )
@@ -34,31 +36,12 @@ MAX_LITERAL_EXPONENT = 4000
 MAX_CONSTANT_BITS = 100_000
 
 _OPERATOR_SPELLING = {
-    ast.Add: "+",
-    ast.Sub: "-",
-    ast.Mult: "*",
-    ast.Div: "/",
-    ast.FloorDiv: "//",
-    ast.Mod: "%",
-    ast.MatMult: "@",
-    ast.LShift: "<<",
-    ast.RShift: ">>",
-    ast.BitAnd: "&",
-    ast.BitOr: "|",
-    ast.BitXor: "^",
-    ast.Pow: "**",
+    ast.Add: "+", ast.Sub: "-", ast.Mult: "*", ast.Div: "/", ast.FloorDiv: "//", ast.Mod: "%", ast.MatMult: "@",
+    ast.LShift: "<<", ast.RShift: ">>", ast.BitAnd: "&", ast.BitOr: "|", ast.BitXor: "^", ast.Pow: "**",
 }
 COMPARISON_SPELLING = {
-    ast.Eq: "==",
-    ast.NotEq: "!=",
-    ast.Lt: "<",
-    ast.LtE: "<=",
-    ast.Gt: ">",
-    ast.GtE: ">=",
-    ast.Is: "is",
-    ast.IsNot: "is not",
-    ast.In: "in",
-    ast.NotIn: "not in",
+    ast.Eq: "==", ast.NotEq: "!=", ast.Lt: "<", ast.LtE: "<=", ast.Gt: ">", ast.GtE: ">=", ast.Is: "is",
+    ast.IsNot: "is not", ast.In: "in", ast.NotIn: "not in",
 }
 _UNSUPPORTED_NODES = {
     ast.Lambda: "a lambda",
@@ -270,6 +253,10 @@ class ExprConverter:
             return BinOp(spelling, self._convert(node.left), self._convert(node.right))  # type: ignore[arg-type]
         if op in (ast.Pow, ast.BitXor):
             return self.power(self._convert(node.left), node.right, node)
+        if op in (ast.Mod, ast.FloorDiv):
+            # on reals, as Python computes them: a % b == a - b*floor(a/b), a // b == floor(a/b)
+            name = "mod" if op is ast.Mod else "floordiv"
+            return Call(name, (self._convert(node.left), self._convert(node.right)))
         raise self.error(f"unsupported operator `{_OPERATOR_SPELLING.get(op, '?')}`", node)
 
     def power(self, base: Expr, exponent_node: ast.AST, node: ast.AST) -> Expr:
@@ -294,6 +281,13 @@ class ExprConverter:
                 raise self.error(f"unsupported syntax: a starred argument in a call of `{name}`", arg)
         canonical = CALL_SPELLINGS[name]
         expected = arity(canonical)
+        if canonical in VARIADIC and len(node.args) > expected:
+            # min(a, b, c) == min(min(a, b), c)
+            operands = [self._convert(arg) for arg in node.args]
+            folded = Call(canonical, (operands[0], operands[1]))
+            for operand in operands[2:]:
+                folded = Call(canonical, (folded, operand))
+            return folded
         if len(node.args) != expected:
             plural = "argument" if expected == 1 else "arguments"
             raise self.error(f"`{name}` takes {expected} {plural}, got {len(node.args)}", node)
@@ -309,6 +303,9 @@ class ExprConverter:
         if isinstance(func, ast.Attribute) and isinstance(func.value, ast.Name):
             module, attr = func.value.id, func.attr
             if module in MODULE_PREFIXES:
+                if attr in BARE_ONLY:
+                    raise self.error(f"`{module}.{attr}` is a reduction over an array; write `{attr}(a, b)` "
+                                     f"or `{module}.{attr}imum(a, b)`", func)
                 if attr in CALL_SPELLINGS:
                     return attr
                 raise self.error(f"unknown function `{module}.{attr}` (known: {known_names()})", func)
@@ -338,6 +335,44 @@ def convert_text(text: str, *, allow_tuple: bool = False, what: str = "expressio
         op = COMPARISON_SPELLING.get(type(tree.ops[0]), "?")
         raise converter.error(f"comparison `{op}` inside an expression", tree)
     return (converter.convert(tree),)
+
+
+Nested = Union[Expr, tuple["Nested", ...]]
+
+
+def convert_nested_text(text: str, *, what: str = "expression") -> tuple[Nested, ...]:
+    """The components of a result as written: ``a, b``; ``(a, b), (c, d)`` and ``[[a, b], [c, d]]`` keep
+    their rows (tuples and lists both become tuples: results are compared componentwise)."""
+    source = ClaimSource(one_line(text))
+    tree = parse_ast(source, what)
+    converter = ExprConverter(source)
+    if isinstance(tree, ast.Compare):
+        op = COMPARISON_SPELLING.get(type(tree.ops[0]), "?")
+        raise converter.error(f"comparison `{op}` inside an expression", tree)
+    if isinstance(tree, ast.Tuple):
+        if not tree.elts:
+            raise converter.error(f"empty {what}", tree)
+        return tuple(_nested(converter, item) for item in tree.elts)
+    return (_nested(converter, tree),)
+
+
+def _nested(converter: ExprConverter, node: ast.AST) -> Nested:
+    if isinstance(node, (ast.Tuple, ast.List)):
+        if not node.elts:
+            raise converter.error("an empty tuple or list is not a result", node)
+        return tuple(_nested(converter, item) for item in node.elts)
+    return converter.convert(node)
+
+
+def leaves(items: Sequence[Nested]) -> tuple[Expr, ...]:
+    """The scalar components of nested results, row by row."""
+    out: list[Expr] = []
+    for item in items:
+        if isinstance(item, tuple):
+            out.extend(leaves(item))
+        else:
+            out.append(item)
+    return tuple(out)
 
 
 def parse_expression(text: str) -> Expr:

@@ -29,7 +29,10 @@ from verifier.claims.claim_syntax import (
 from verifier.claims.expr_parser import (
     COMPARISON_SPELLING,
     ExprConverter,
+    Nested,
+    convert_nested_text,
     convert_text,
+    leaves,
     expression_text,
     parse_ast,
     parse_expression,
@@ -56,7 +59,8 @@ class ParsedClaim:
     """A parsed claim text.
 
     ``equation``: ``sides`` holds two or more expressions (a chain ``a == b == c``).
-    ``returns`` / ``statement``: ``sides`` holds the target components (``returns a, b`` gives two).
+    ``returns`` / ``statement``: ``sides`` holds the target's scalar components (``returns a, b`` gives two,
+    ``returns (a, b), (c, d)`` four) and ``nested`` the components as written (two rows of two).
     ``same_as``: ``other`` is the dotted name of the other function and ``sides`` is empty.
     """
 
@@ -64,6 +68,7 @@ class ParsedClaim:
     sides: tuple[Expr, ...]
     other: str | None
     conditions: tuple[Condition, ...]
+    nested: tuple[Nested, ...] = ()
 
 
 NamedSets = Union[Mapping[str, NamedConditionSet], ExtractionContext, None]
@@ -257,20 +262,22 @@ def parse_claim_text(text: str, named: NamedSets = None) -> ParsedClaim:
 
     returns = re.match(r"returns(?![\w.\[])", body)
     if returns and not body[returns.end():].lstrip().startswith(("==", "=")):
-        return ParsedClaim("returns", _target(body, returns.end(), lead, "`returns`"), None, conditions)
+        nested = _target(body, returns.end(), lead, "`returns`")
+        return ParsedClaim("returns", leaves(nested), None, conditions, nested)
 
     if body.startswith("==") and not body.startswith("==="):
-        return ParsedClaim("statement", _target(body, 2, lead, "`==`"), None, conditions)
+        nested = _target(body, 2, lead, "`==`")
+        return ParsedClaim("statement", leaves(nested), None, conditions, nested)
 
     return ParsedClaim("equation", _equation_sides(body, lead), None, conditions)
 
 
-def _target(body: str, start: int, lead: int, after: str) -> tuple[Expr, ...]:
+def _target(body: str, start: int, lead: int, after: str) -> tuple[Nested, ...]:
     rest = body[start:]
     if not rest.strip():
         raise ClaimSyntaxError(f"empty expression after {after}", lead + start)
     try:
-        return convert_text(rest, allow_tuple=True)
+        return convert_nested_text(rest)
     except ClaimSyntaxError as exc:
         raise exc.shifted(lead + start) from None
 

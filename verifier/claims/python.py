@@ -10,13 +10,14 @@ from __future__ import annotations
 
 import ast
 import re
-from collections.abc import Sequence
+from collections.abc import Callable, Sequence
 from dataclasses import dataclass, replace
 
 import libcst as cst
 
 from verifier.claims.comments import CommentClaim
 from verifier.claims.expression import error_claim, expression_claims
+from verifier.claims.expr_parser import Nested
 from verifier.claims.language import ClaimSyntaxError, ParsedClaim, parse_claim_text
 from verifier.claims.execute import NONE, Executor, Outcome, Seq, State, Status, Value, first_unknown
 from verifier.claims.frontends.python.modules import (
@@ -31,12 +32,13 @@ from verifier.claims.frontends.python.scope import PythonScope
 from verifier.claims.obligations import (
     MAX_OBLIGATIONS,
     ClaimProblem,
-    components,
+    path_components,
     contains_none,
     obligation,
     path_label,
     unique,
 )
+from verifier.claims.parameter_functions import with_particular_functions
 from verifier.claims.substitution import ConstantLookup, substitute, substitute_condition
 from verifier.model.claim import (
     Claim,
@@ -78,6 +80,7 @@ def _pi_as_variable(parsed: ParsedClaim) -> ParsedClaim:
     return replace(
         parsed,
         sides=tuple(_replace_pi(side) for side in parsed.sides),
+        nested=tuple(_map_nested(item, _replace_pi) for item in parsed.nested),
         conditions=tuple(replace(c, left=_replace_pi(c.left), right=_replace_pi(c.right))
                          for c in parsed.conditions),
     )
@@ -278,14 +281,13 @@ class _FileReader:
             # EXPR is in the parameters; a module-level constant it names means that constant's value
             params = State(tuple((p, Var(p)) for p in ref.positional_names()))
             constant = _constant_lookup(executor, scope, ref.module)
-            sides = [substitute(side, params, constant) for side in parsed.sides]
-            unknown = next((first_unknown(side) for side in sides if first_unknown(side) is not None), None)
+            target = _target_value(parsed, lambda side: substitute(side, params, constant))
+            unknown = first_unknown(target)
             if unknown is not None:
                 raise ClaimProblem("inconclusive", f"the claim's expression cannot be followed: {unknown.reason}")
             given = tuple(substitute_condition(c, params, constant) for c in parsed.conditions)
-            target: Value = sides[0] if len(sides) == 1 else Seq(tuple(sides))
             for state, value in paths:
-                for left, right, label in components(value, target, name, "the claim"):
+                for left, right, label in path_components(value, target, name, "the claim", state.conditions):
                     obligations.append(obligation(left, right, given, state.conditions, label, state.notes))
         else:
             other_name = parsed.other or ""
@@ -305,11 +307,11 @@ class _FileReader:
                     conditions = state.conditions + tuple(c for c in other_state.conditions
                                                           if c not in state.conditions)
                     notes = state.notes + tuple(n for n in other_state.notes if n not in state.notes)
-                    for left, right, label in components(value, other_value, name, other_name):
+                    for left, right, label in path_components(value, other_value, name, other_name, conditions):
                         obligations.append(obligation(left, right, parsed.conditions, conditions, label, notes))
                         if len(obligations) > MAX_OBLIGATIONS:
                             raise ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
-        obligations = unique(obligations)
+        obligations = with_particular_functions(unique(obligations))
         if len(obligations) > MAX_OBLIGATIONS:
             raise ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
         claim_notes = list(executor.inlined) + list(dict.fromkeys(n for ob in obligations for n in ob.notes))
@@ -334,9 +336,8 @@ class _FileReader:
             if unknown is not None:
                 raise ClaimProblem("inconclusive", f"{name} returns a value the tool cannot follow: "
                                                     f"{unknown.reason}")
-            if contains_none(value):
-                where = path_label(state.conditions) or "a path"
-                raise ClaimProblem("inconclusive", f"{name} returns None on {where} (no return statement "
+            if contains_none(value) and not state.conditions:  # on a branch: that branch must be impossible
+                raise ClaimProblem("inconclusive", f"{name} returns None on a path (no return statement "
                                                     "or `return None`), which is not a number")
         return paths
 
@@ -395,7 +396,6 @@ class _FileReader:
                                                 f"line {site.line}")
         if any(visit.state.get("pi") is not None for visit in visits):
             parsed = _pi_as_variable(parsed)  # a local or parameter named pi: the claim's pi is that name
-        target = parsed.sides[0] if len(parsed.sides) == 1 else None
         obligations: list[Obligation] = []
         what = "the statement"
         for number, visit in enumerate(visits, start=1):
@@ -405,23 +405,21 @@ class _FileReader:
                                                     f"{unknown.reason}")
             if contains_none(visit.value):
                 raise ClaimProblem("inconclusive", f"the value at line {site.line} is None, not a number")
-            substituted: Value
-            if target is not None:
-                substituted = substitute(target, visit.state, constant)
-            else:
-                substituted = Seq(tuple(substitute(side, visit.state, constant) for side in parsed.sides))
+            state = visit.state
+            substituted = _target_value(parsed, lambda side: substitute(side, state, constant))
             unknown = first_unknown(substituted)
             if unknown is not None:
                 raise ClaimProblem("inconclusive", f"the claim's expression cannot be followed: {unknown.reason}")
             conditions = tuple(substitute_condition(c, visit.state, constant) for c in parsed.conditions)
-            for left, right, label in components(visit.value, substituted, what, "the claim"):
+            for left, right, label in path_components(visit.value, substituted, what, "the claim",
+                                                      visit.state.conditions):
                 if len(visits) > 1 and not visit.state.conditions:
                     label = ", ".join(p for p in (f"visit {number}", label) if p)
                 obligations.append(obligation(left, right, conditions, visit.state.conditions, label,
                                                visit.state.notes))
             if len(obligations) > MAX_OBLIGATIONS:
                 raise ClaimProblem("inconclusive", f"more than {MAX_OBLIGATIONS} path obligations")
-        obligations = unique(obligations)
+        obligations = with_particular_functions(unique(obligations))
         notes = list(executor.inlined) + list(dict.fromkeys(n for ob in obligations for n in ob.notes))
         return obligations, notes, executor.dependencies
 
@@ -436,6 +434,19 @@ class _FileReader:
 
 
 # ---------------------------------------------------------------- helpers
+
+
+def _map_nested(item: Nested, change: Callable[[Expr], Expr]) -> Nested:
+    return tuple(_map_nested(i, change) for i in item) if isinstance(item, tuple) else change(item)
+
+
+def _target_value(parsed: ParsedClaim, convert: Callable[[Expr], Value]) -> Value:
+    """The claim's result as a value: one component, or a tuple of them (rows of a matrix nest)."""
+    def value(item: Nested) -> Value:
+        return Seq(tuple(value(i) for i in item)) if isinstance(item, tuple) else convert(item)
+
+    items = parsed.nested or parsed.sides
+    return value(items[0]) if len(items) == 1 else Seq(tuple(value(i) for i in items))
 
 
 def _lowered(scope: PythonScope, ref: FunctionRef) -> ir.Function:

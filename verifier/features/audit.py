@@ -152,7 +152,7 @@ def plan_audit(
 def _plan_kernel_pair(key, a_source, b_source, context, given, functions, only_a, only_b, unreadable) -> None:
     """A kernel file (C, C++, CUDA, Fortran, Julia, Rust) on either side: the kernel front ends decide."""
     # Loaded only for audits that involve kernel files (tree-sitter).
-    from verifier.claims.kernels.audit import functions_of, is_kernel_file, pair_claim
+    from verifier.claims.kernels.audit import functions_of, is_kernel_file, pair_claim, python_pair_claim
 
     a_sites, b_sites = functions_of(a_source.path, a_source.text), functions_of(b_source.path, b_source.text)
     for source, sites in ((a_source, a_sites), (b_source, b_sites)):
@@ -164,12 +164,8 @@ def _plan_kernel_pair(key, a_source, b_source, context, given, functions, only_a
         if name not in b_sites:
             only_a.append(OneSided(key, name, a_source.path, a_sites[name]))
         elif not is_kernel_file(a_source.path):
-            location = Location(a_source.path, a_sites[name], 1)
-            functions.append(AuditedFunction(key, name, Claim(
-                f"{location}", location, "function", f"same as {name} in {b_source.path}", (),
-                Problem("inconclusive", "auditing a Python module against a kernel file is not supported; "
-                                        "audit the kernel file against the Python module"),
-                dependencies=(a_source.path, b_source.path))))
+            functions.append(AuditedFunction(key, name, python_pair_claim(
+                a_source.path, a_sites[name], b_source.path, b_source.text, name, context, given)))
         else:
             functions.append(AuditedFunction(key, name, pair_claim(a_source.path, a_source.text, b_source.path,
                                                                    name, context, given)))

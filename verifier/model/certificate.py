@@ -34,10 +34,12 @@ class IdealCertificate:
 class ConjugateCertificate:
     """The conjugate argument for a principal root ``root`` (``algebra/sign_search.py``).
 
-    With A, B defined by ``target == A*root + B`` and ``multiplier == A*root - B``: ``cofactors`` show
-    ``target * multiplier`` in the ideal, and ``nonnegative_cofactors`` show
-    ``-A*B - nonnegative - sum(lam*S)`` in it, where ``nonnegative`` has positive coefficients and odd
-    powers only of ``nonnegative_symbols`` (principal roots, exponentials, variables with a sign
+    ``form`` is the target with every power root**k (k >= 2) reduced by root**2 == radicand, so linear
+    in the root, and ``form_cofactors`` show ``target - form`` in the ideal (all zero when the target is
+    linear in the root already).  With A, B defined by ``form == A*root + B`` and ``multiplier ==
+    A*root - B``: ``cofactors`` show ``target * multiplier`` in the ideal, and ``nonnegative_cofactors``
+    show ``-A*B - nonnegative - sum(lam*S)`` in it, where ``nonnegative`` has positive coefficients and
+    odd powers only of ``nonnegative_symbols`` (principal roots, exponentials, variables with a sign
     hypothesis, inverses of such) and each S is a sign hypothesis S >= 0 with weight lam >= 0.
     """
 
@@ -51,6 +53,8 @@ class ConjugateCertificate:
     nonnegative: PolyData
     nonnegative_cofactors: tuple[PolyData, ...]
     nonnegative_symbols: tuple[str, ...]
+    form: PolyData
+    form_cofactors: tuple[PolyData, ...]
     # sign hypotheses S >= 0 used with weights lam >= 0 (as fraction text)
     hypotheses: tuple[tuple[PolyData, str], ...] = ()
 

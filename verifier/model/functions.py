@@ -7,57 +7,29 @@ For each function: its canonical name, its number of arguments, how a claim may 
 - IEEE double: with Python's math module (the operation a program performs);
 - modular: modulo a prime, where the function is a polynomial (else ``None``: not evaluable mod p).
 Every back end raises ``DomainError`` where the function is undefined: radicands are >= 0 (principal
-square root), logarithm arguments > 0, and tan needs cos != 0.  The polynomial translation of each
+square root), logarithm arguments > 0, and tan needs cos != 0; the domains and jumps of the further real
+functions (atan, asin, floor, ``%`` ...) are described in verifier/model/real_functions.py.  The polynomial translation of each
 function is in verifier/algebra/translator.py; ``family`` tells it which rule applies.
 """
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from fractions import Fraction
 from types import MappingProxyType
-from typing import Callable, Literal, Mapping, Sequence
+from typing import Callable, Mapping, Sequence
 
 import mpmath
 from mpmath import mpf
 
-
-class DomainError(ArithmeticError):
-    """The expression is undefined at the point (division by zero, negative radicand, ...)."""
-
-
-class NotEvaluable(ValueError):
-    """The expression contains a node that has no value (an opaque call)."""
-
-
-class NotRational(Exception):
-    """The exact value is irrational (or too large to compute): the exact back end gives up."""
-
-
-@dataclass(frozen=True)
-class HighPrecision:
-    """What the mpmath back end needs besides the arguments."""
-
-    eps: mpf  # what counts as zero at the working precision
-    radicand_eps: mpf  # how far below 0 a radicand may be and still count as 0 (rounding noise)
-    magnitude_limit: int  # a value beyond 2**this is an overflow
-
-
-Family = Literal["algebraic", "trigonometric", "exponential", "logarithm", "constant"]
-
-
-@dataclass(frozen=True)
-class Function:
-    """One entry of the table; ``arity`` 0 is a named constant."""
-
-    name: str
-    arity: int
-    family: Family
-    meaning: str
-    exact: Callable[[Sequence[Fraction]], Fraction]
-    high_precision: Callable[[Sequence[mpf], HighPrecision], mpf]
-    ieee: Callable[[Sequence[float]], float]
-    modular: Callable[[Sequence[int], int], int] | None = None
+from verifier.model.function_types import (  # noqa: F401  (re-exported: the table's types)
+    DomainError,
+    Family,
+    Function,
+    HighPrecision,
+    NotEvaluable,
+    NotRational,
+)
+from verifier.model.real_functions import BARE_ONLY, REAL_ENTRIES, VARIADIC  # noqa: F401  (re-exported)
 
 
 # ---------------------------------------------------------------- shared pieces of the semantics
@@ -176,7 +148,7 @@ _ENTRIES = (
              exact=_exact_log,
              high_precision=_numeric_log,
              ieee=lambda a: math.log(a[0])),
-)
+) + REAL_ENTRIES  # atan ... copysign: verifier/model/real_functions.py
 
 # canonical name -> entry, for the functions a claim may call
 FUNCTIONS: Mapping[str, Function] = MappingProxyType({entry.name: entry for entry in _ENTRIES})
@@ -198,7 +170,9 @@ POWER = "pow"
 POWER_ARITY = 2
 # spelling after an optional prefix -> canonical name (a function of FUNCTIONS, or POWER)
 CALL_SPELLINGS: Mapping[str, str] = MappingProxyType(
-    {name: name for name in FUNCTIONS} | {"pow": POWER, "power": POWER}
+    {name: name for name in FUNCTIONS}
+    | {spelling: entry.name for entry in FUNCTIONS.values() for spelling in entry.spellings}
+    | {"pow": POWER, "power": POWER}
 )
 # constant spellings -> whether the bare name is accepted (``e`` only as ``math.e``, ``np.e``, ...):
 # ``pi``; ``tau`` is 2*pi and ``e`` is exp(1)

@@ -53,6 +53,7 @@ TAMPERINGS = [
     ("ideal", "power", lambda p: p + 1),
     ("conjugate", "cofactors", bump_first_nonempty),
     ("conjugate", "multiplier", bump),
+    ("conjugate", "form", bump),
     ("conjugate", "nonnegative", lambda p: tuple((("-" + c).replace("--", ""), e) for c, e in p)),
     ("conjugate", "nonnegative_symbols", lambda names: ()),
     ("real_square", "cofactors", bump_first_nonempty),

@@ -3,6 +3,7 @@ unsupported construct inconclusive with its line, a syntax error an error with f
 from __future__ import annotations
 
 import json
+from fractions import Fraction
 import subprocess
 import sys
 from pathlib import Path
@@ -130,3 +131,22 @@ def test_audit_of_a_c_file_against_a_python_module(tmp_path, k2, verdict):
                           env={"PYTHONPATH": str(ROOT), "PATH": "/usr/bin:/bin"})
     row = next(line for line in done.stdout.splitlines() if line.startswith("cmul "))
     assert row.split()[1] == verdict, done.stdout
+
+
+@pytest.mark.parametrize("python_body, verdict", [
+    ("return 1 + 2*x + 3*x**2", "proved"),
+    ("return 1 + 2*x + 3*x**3", "refuted"),  # one-line bug in the Python version
+])
+def test_audit_of_a_python_module_against_a_c_file(cli, tmp_path, python_body, verdict):
+    # Horner's rule (common practice): 1 + x*(2 + x*3) == 1 + 2x + 3x**2
+    (tmp_path / "fast.c").write_text("double poly(double x) { return 1.0 + x * (2.0 + x * 3.0); }\n")
+    (tmp_path / "port.py").write_text(f"def poly(x):\n    {python_body}\n")
+    result = cli("audit", "port.py", "--against", "fast.c", "--format", "json", cwd=tmp_path)
+    claims = json.loads(result.out)["claims"]
+    assert [(c["path"], c["verdict"]) for c in claims] == [("port.py", verdict)], result.out
+    if verdict == "refuted":
+        witness = claims[0]["witness"]
+        x = Fraction(witness["values"]["x"])
+        # the left side is the Python function, the right side the C kernel
+        assert Fraction(witness["left"]) == 1 + 2 * x + 3 * x**3
+        assert Fraction(witness["right"]) == 1 + 2 * x + 3 * x**2

@@ -78,22 +78,26 @@ def _without(p: PolyElement, index: int) -> PolyElement:
 
 
 def check_conjugate(cert: ConjugateCertificate) -> Premises:
-    """(1) target*multiplier is in the ideal; (2) target + multiplier == 2*A*root and target - multiplier
-    == 2*B with A, B free of root; (3) -A*B - P - sum(lam*S) is in the ideal, lam >= 0, and P has a
-    nonnegative sign pattern.  Then -A*B >= 0, which with (A*root)**2 == B**2 and root >= 0 leaves only
-    A*root == -B, i.e. target == 0."""
+    """(0) target - form is in the ideal; (1) target*multiplier is in the ideal, hence form*multiplier
+    too; (2) form + multiplier == 2*A*root and form - multiplier == 2*B with A, B free of root; (3)
+    -A*B - P - sum(lam*S) is in the ideal, lam >= 0, and P has a nonnegative sign pattern.  Then
+    -A*B >= 0, which with (A*root)**2 == B**2 and root >= 0 leaves only A*root == -B, i.e. form == 0,
+    and so target == 0."""
     symbols = cert.symbols
     ring = certificate_ring(symbols)
     positive = symbol_indices(cert.nonnegative_symbols, symbols)
     _require(isinstance(cert.root, str) and cert.root in cert.nonnegative_symbols, "the root is not >= 0")
     index = list(symbols).index(cert.root)
     target = data_to_poly(cert.target, ring)
+    form = data_to_poly(cert.form, ring)
     multiplier = data_to_poly(cert.multiplier, ring)
     generators = polys(cert.generators, ring)
+    _require(target - form == combination(polys(cert.form_cofactors, ring), generators, ring),
+             "target - form is not in the ideal")
     _require(target * multiplier == combination(polys(cert.cofactors, ring), generators, ring),
              "target * multiplier is not in the ideal")
-    twice_b = target - multiplier
-    twice_ar = target + multiplier
+    twice_b = form - multiplier
+    twice_ar = form + multiplier
     _require(twice_b.degree(index) <= 0, "B depends on the root")
     _require(all(monom[index] == 1 for monom, _ in twice_ar.terms()), "A*root is not linear in the root")
     a = _without(twice_ar, index) * rational(Fraction(1, 2))

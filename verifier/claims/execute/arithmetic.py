@@ -177,6 +177,10 @@ class Arithmetic:
         if symbol in ("//", "%") and isinstance(left, Num) and isinstance(right, Num) and right.value != 0:
             quotient = left.value // right.value
             return Num(Fraction(quotient) if symbol == "//" else left.value - quotient * right.value)
+        operands = (as_expr(left), as_expr(right))
+        if symbol in ("//", "%") and operands[0] is not None and operands[1] is not None:
+            # on real values, as Python computes them on floats (verifier/model/real_functions.py)
+            return Call("floordiv" if symbol == "//" else "mod", (operands[0], operands[1]))
         kind = "the bit operation" if symbol in BIT_OPERATORS else "the operator"
         return Unknown(f"{kind} `{symbol}` at line {line} is not supported")
 

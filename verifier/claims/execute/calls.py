@@ -4,6 +4,8 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from verifier.claims.execute.expressions import Alternatives, Evaluator
+from verifier.claims.execute.functions import opaque_note
+from verifier.claims.execute.piecewise import PIECEWISE, pieces
 from verifier.claims.execute.scope import (
     BuiltinCallee,
     Callee,
@@ -35,9 +37,17 @@ _IMPURE_NAMES = frozenset({"random", "rand", "randn", "randint", "uniform", "nor
                            "print", "time", "perf_counter", "monotonic", "next", "id", "hash"})
 
 
+PARAMETER_FUNCTION = "parameter "  # the prefix of the opaque name of a function passed as a parameter
+
+
 def impure(name: str) -> bool:
     """Calls whose value may differ between two calls with the same arguments (by name, conservatively)."""
     return name.startswith(_IMPURE_PREFIXES) or name.rsplit(".", 1)[-1] in _IMPURE_NAMES
+
+
+def _noted(state: State, value: Value, line: int) -> tuple[State, Value]:
+    note = opaque_note(value, line)
+    return (state.with_note(note) if note else state), value
 
 
 class CallEvaluator(Evaluator):
@@ -53,6 +63,10 @@ class CallEvaluator(Evaluator):
             bound = state.get(node.callee.name)
             if isinstance(bound, Unknown):
                 return UnknownCallee(bound.reason)
+            if isinstance(bound, Var) and bound.name.isidentifier():
+                # a function passed as a parameter: any pure function, the same arguments give the same value;
+                # named apart from module functions of the same name, which are other functions
+                return OpaqueCallee(f"{PARAMETER_FUNCTION}{bound.name}")
             if bound is not None:
                 return UnknownCallee(f"calling the local value {node.callee.name} at line {line} is not supported")
         return self.scope.callee(self, frame.module, frame.function, node.callee,
@@ -62,7 +76,9 @@ class CallEvaluator(Evaluator):
         line = node.line
         callee = self.resolve(node, state, frame)
         if isinstance(callee, BuiltinCallee):
-            return [(after, self.builtin_value(callee.name, args, keywords, line, iterable, frame.ident))
+            if callee.name in PIECEWISE:
+                return self._piecewise_call(callee.name, node, state, frame, builtin=True)
+            return [_noted(after, self.builtin_value(callee.name, args, keywords, line, iterable, frame.ident), line)
                     for after, args, keywords in self.arguments(node, state, frame)]
         if isinstance(callee, MathCallee):
             return self._math_call(callee.name, node, state, frame)
@@ -139,8 +155,35 @@ class CallEvaluator(Evaluator):
             result.append((after.with_note(note), Opaque(full_name, tuple(e for e in exprs if e is not None))))
         return result
 
-    def _math_call(self, name: str, node: ir.Invoke, state: State, frame: Frame) -> Alternatives:
+    def _piecewise_call(self, name: str, node: ir.Invoke, state: State, frame: Frame, builtin: bool
+                        ) -> Alternatives:
+        """``abs``, ``min``, ``max`` ... of numbers: one alternative per piece, its tests as path conditions."""
         line = node.line
+        result: Alternatives = []
+        for after, args, keywords in self.arguments(node, state, frame):
+            if builtin and name in ("min", "max") and len(args) == 1 and isinstance(args[0], Seq):
+                args = list(args[0].items)  # min(sequence)
+            exprs = [as_expr(a) for a in args]
+            split = None if keywords else pieces(name, [e for e in exprs if e is not None])
+            if split is None or None in exprs:
+                if builtin:
+                    result.append(_noted(after, self.builtin_value(name, args, keywords, line, False, frame.ident),
+                                         line))
+                else:
+                    result.extend(self._math_call(name, node, after, frame, split_pieces=False))
+                continue
+            for tests, value in split:
+                states = [after]
+                for left, relation, right in tests:
+                    states = [s2 for s1 in states for s2 in self.relation(left, relation, right, s1, line)]
+                result.extend((s, value) for s in states)
+        return result
+
+    def _math_call(self, name: str, node: ir.Invoke, state: State, frame: Frame, split_pieces: bool = True
+                   ) -> Alternatives:
+        line = node.line
+        if split_pieces and name in PIECEWISE:
+            return self._piecewise_call(name, node, state, frame, builtin=False)
         result: Alternatives = []
         for after, args, keywords in self.arguments(node, state, frame):
             if keywords:
@@ -168,7 +211,7 @@ class CallEvaluator(Evaluator):
                 note = f"opaque call {name}(...) at line {line}"
                 result.append((after.with_note(note), Opaque(name, tuple(operands))))
             else:
-                result.append((after, self.bounded(computed, line)))
+                result.append(_noted(after, self.bounded(computed, line), line))
         return result
 
     # -- inlining

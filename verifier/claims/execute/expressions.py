@@ -6,7 +6,7 @@ from fractions import Fraction
 from typing import cast
 
 from verifier.claims.execute.arithmetic import ARITHMETIC
-from verifier.claims.execute.functions import Functions
+from verifier.claims.execute.functions import Functions, opaque_note
 from verifier.claims.execute.scope import Scope
 from verifier.claims.execute.state import Frame, Mark, State, Visit
 from verifier.claims.execute.values import (
@@ -99,7 +99,9 @@ class Evaluator(Functions):
                     if node.op in ARITHMETIC:
                         result.append((s2, self.binary(node.op, left, right, node.line)))
                     else:
-                        result.append((s2, self.other_binary(node.op, left, right, node.line)))
+                        value = self.other_binary(node.op, left, right, node.line)
+                        note = opaque_note(value, node.line)
+                        result.append((s2.with_note(note) if note else s2, value))
             return result
         if isinstance(node, ir.Unary):
             return [(s1, self.bounded(self.unary(node.op, operand, node.line), node.line))
@@ -115,8 +117,14 @@ class Evaluator(Functions):
             return self._sequence(node, state, frame)
         if isinstance(node, ir.Invoke):
             return self.call(node, state, frame, iterable)
-        if isinstance(node, ir.Compare):
-            return [(state, Unknown(f"a comparison used as a value at line {node.line} is not supported"))]
+        if isinstance(node, ir.Compare):  # a value: 1 where it holds, 0 where not (Python's True/False)
+            try:
+                one: Value = Num(Fraction(1))
+                zero: Value = Num(Fraction(0))
+                return ([(s, one) for s in self.truth(node, state, frame, True)]
+                        + [(s, zero) for s in self.truth(node, state, frame, False)])
+            except Stuck as stuck:
+                return [(state, Unknown(f"the comparison used as a value at line {node.line}: {stuck.reason}"))]
         if isinstance(node, ir.Logical):
             return [(state, Unknown(f"`{node.op}` used as a value at line {node.line} is not supported"))]
         return [(state, Unknown(unsupported_reason(node)))]
@@ -260,7 +268,7 @@ class Evaluator(Functions):
             return [state] if not want else []
         if isinstance(value, Seq):
             return [state] if bool(value.items) == want else []
-        return self._relation(value, "!=" if want else "==", Num(Fraction(0)), state, line)
+        return self.relation(value, "!=" if want else "==", Num(Fraction(0)), state, line)
 
     def _compare_chain(self, node: ir.Compare, state: State, frame: Frame, want: bool) -> list[State]:
         # a < b < c is (a < b) and (b < c); evaluate each operand once per path
@@ -311,9 +319,10 @@ class Evaluator(Functions):
             raise Stuck(f"comparison of sequences at line {line} is not supported")
         if not want:
             relation = NEGATION[relation]
-        return self._relation(a, relation, b, state, line)
+        return self.relation(a, relation, b, state, line)
 
-    def _relation(self, left: Expr, relation: str, right: Expr, state: State, line: int) -> list[State]:
+    def relation(self, left: Expr, relation: str, right: Expr, state: State, line: int) -> list[State]:
+        """``state`` with the test ``left relation right`` added (none when the path already decides it false)."""
         if isinstance(left, Num) and isinstance(right, Num):
             return [state] if holds(left.value, relation, right.value) else []
         if left == right and relation in ("==", "<=", ">="):

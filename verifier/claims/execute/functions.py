@@ -7,11 +7,35 @@ from typing import Mapping
 from verifier.claims.execute.arithmetic import MAX_REPEAT, Arithmetic, as_array
 from verifier.claims.execute.values import ARRAY, LIST, TUPLE, Seq, Stuck, Unknown, Value, as_expr, int_of
 from verifier.model.expr import PI, BinOp, Call, Expr, Num, Pow
+from verifier.model.functions import BARE_ONLY, CALL_SPELLINGS, FUNCTIONS, POWER, VARIADIC
 from verifier.model.ir import SequenceKind
 
-ELEMENTWISE = ("sqrt", "sin", "cos", "tan", "exp", "log", "square")
-NOT_FOLLOWED = frozenset({"fabs", "abs", "absolute", "floor", "ceil", "trunc", "fmod", "copysign", "minimum",
-                          "maximum", "sign", "round", "remainder", "modf", "frexp", "ldexp", "isqrt"})
+# math/numpy names of the function table (``math.atan2``, ``np.fabs``, ``np.minimum``); ``np.min`` and
+# ``np.max`` are reductions over an array, not the two-argument min and max
+TABLE_SPELLINGS = {spelling: name for spelling, name in CALL_SPELLINGS.items()
+                   if name != POWER and spelling not in BARE_ONLY}
+ELEMENTWISE = ("square",) + tuple(s for s, name in TABLE_SPELLINGS.items() if FUNCTIONS[name].arity == 1)
+NOT_FOLLOWED = frozenset({"sign", "round", "remainder", "modf", "frexp", "ldexp", "isqrt"})
+
+
+def opaque_note(value: Value, line: int) -> str | None:
+    """The report's note for a call of a function that the algebra keeps opaque (atan, abs, ``%`` ...):
+    the witness search knows its value, a proof cannot see into it."""
+    if isinstance(value, Call) and FUNCTIONS[value.function].family == "opaque":
+        return f"{value.function}(...) at line {line} is opaque to the algebra"
+    return None
+
+
+def table_call(name: str, args: list[Expr]) -> Expr | None:
+    """A call of the function table (``name`` canonical), nested for min/max of more arguments; None when
+    the number of arguments does not fit."""
+    arity = FUNCTIONS[name].arity
+    if name in VARIADIC and len(args) > arity:
+        folded = Call(name, (args[0], args[1]))
+        for arg in args[2:]:
+            folded = Call(name, (folded, arg))
+        return folded
+    return Call(name, tuple(args)) if len(args) == arity else None
 
 
 def math_constant(module: str, name: str, line: int) -> Value:
@@ -32,8 +56,6 @@ class Functions(Arithmetic):
 
     def math_value(self, name: str, args: list[Expr], line: int) -> Value | None:
         n = len(args)
-        if name in ("sqrt", "sin", "cos", "tan", "exp", "log") and n == 1:
-            return Call(name, (args[0],))
         if name == "log" and n == 2:
             return BinOp("/", Call("log", (args[0],)), Call("log", (args[1],)))
         if name in ("log10", "log2") and n == 1:
@@ -54,6 +76,10 @@ class Functions(Arithmetic):
             return Pow(args[0], Fraction(2))
         if name in ("float64", "float32", "double", "float_") and n == 1:
             return args[0]
+        if name in TABLE_SPELLINGS:
+            call = table_call(TABLE_SPELLINGS[name], args)
+            if call is not None:
+                return call
         if name in NOT_FOLLOWED:
             return Unknown(f"{name}(...) at line {line} is not supported")
         return None
@@ -152,6 +178,14 @@ class Functions(Arithmetic):
                     return Num(min(values))
                 if name == "max":
                     return Num(max(values))
+            exprs = [as_expr(a) for a in args]
+            if name in ("min", "max") and len(args) == 1 and isinstance(first, Seq):
+                exprs = [as_expr(item) for item in first.items]  # min([a, b, c]), min of a tuple
+            operands = [e for e in exprs if e is not None]
+            if name != "round" and operands and len(operands) == len(exprs):
+                call = table_call(name, operands)
+                if call is not None:
+                    return call
         return Unknown(f"`{name}` at line {line} is not supported")
 
     def _range(self, args: list[Value], line: int, iterable: bool) -> Value:

@@ -4,11 +4,12 @@ one ``same as`` claim, decided like a ``same as OLD::NAME`` comment above it wou
 from __future__ import annotations
 
 from collections.abc import Sequence
+from dataclasses import replace
 
 from verifier.claims.kernels.extract import kernel_same_as_claim
 from verifier.claims.kernels.library import KernelFile
 from verifier.claims.kernels.parse import language_of
-from verifier.model.claim import Claim, Condition, ExtractionContext
+from verifier.model.claim import Claim, Condition, ExtractionContext, Location
 
 
 def is_kernel_file(path: str) -> bool:
@@ -44,3 +45,13 @@ def functions_of(path: str, text: str) -> dict[str, int] | str:
 def pair_claim(new_path: str, new_text: str, old_path: str, name: str, context: ExtractionContext,
                given: Sequence[Condition] = ()) -> Claim:
     return kernel_same_as_claim(new_path, new_text, old_path, name, context, tuple(given))
+
+
+def python_pair_claim(python_path: str, line: int, kernel_path: str, kernel_text: str, name: str,
+                      context: ExtractionContext, given: Sequence[Condition] = ()) -> Claim:
+    """A Python function audited against a kernel function: the kernel's claim against the Python module
+    (the kernel front end reads both), turned around so that the Python function is the left side."""
+    claim = kernel_same_as_claim(kernel_path, kernel_text, python_path, name, context, tuple(given))
+    location = Location(python_path, line, 1)
+    return replace(claim, id=f"{location}", location=location, text=f"same as {name} in {kernel_path}",
+                   obligations=tuple(replace(o, left=o.right, right=o.left) for o in claim.obligations))

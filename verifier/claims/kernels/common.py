@@ -22,6 +22,8 @@ for _canonical, _spellings in (
     ("pow", "pow powf powl"),
     ("abs", "abs fabs fabsf fabsl dabs"),
     ("copysign", "copysign copysignf copysignl"),
+    ("min", "min fmin fminf fminl amin1 dmin1 min0"),
+    ("max", "max fmax fmaxf fmaxl amax1 dmax1 max0"),
 ):
     for _spelling in _spellings.split():
         MATH_SPELLINGS[_spelling] = _canonical
@@ -144,5 +146,5 @@ class Lowering:
                                                                        "::", "cuda::"))):
             if canonical == "fma" and len(args) == 3:
                 return t.MathCall("fma", args, self.line(node))
-            return t.MathCall(canonical, args, self.line(node))
+            return t.as_cases(t.MathCall(canonical, args, self.line(node)))
         return t.UserCall(name, args, self.line(node))

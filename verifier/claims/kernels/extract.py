@@ -42,6 +42,8 @@ def normalize_claim_text(text: str, language: str) -> str:
     text = re.sub(r"(?<=\w)\s*->\s*(?=[A-Za-z_])", lambda m: ". " + " " * (len(m.group(0)) - 2)
                   if len(m.group(0)) >= 2 else ".", text)
     text = re.sub(r"\b(std|cuda|f64|f32|Base|math)::", lambda m: " " * len(m.group(0)), text)
+    if language in ("cpp", "cuda"):  # `this->x` (now `this. x`) names the member `x`
+        text = re.sub(r"\bthis\.\s*", lambda m: " " * len(m.group(0)), text)
     if language == "fortran":
         text = text.lower()  # Fortran names are case-insensitive; the front end spells them in lower case
         text = re.sub(r"(?<=\w)%(?=[A-Za-z_])", ".", text)
@@ -177,7 +179,8 @@ class _KernelReader:
                   ) -> tuple[list[Obligation], list[str]]:
         form = "`same as`" if parsed.form == "same_as" else "`returns`"
         site = getattr(self, "site", None) or (
-            None if comment.trailing else self.home.index.function_below(comment.end_line))
+            None if comment.trailing else self.home.index.function_below(
+                comment.end_line if comment.subject_line is None else comment.subject_line - 1))
         if site is None:
             raise ClaimProblem("error", f"a {form} claim must be in the comment lines directly above a function "
                                         "definition (comments and attributes may sit in between); none follows")

@@ -39,7 +39,8 @@ class Agg:
                 return v
         if self.prefix is None:
             return Unknown(f"the component {_spell('', key)} is read before it is set")
-        return Agg(prefix=self.prefix + _spell("", key), base=self.base)
+        name = key if self.prefix == "" and isinstance(key, str) else self.prefix + _spell("", key)
+        return Agg(prefix=name, base=self.base)
 
     def set(self, key: Key, value: "Value") -> "Agg":
         items = tuple((k, v) for k, v in self.items if k != key) + ((key, value),)

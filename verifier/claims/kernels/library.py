@@ -5,6 +5,7 @@ import os
 from typing import Any
 
 from verifier.claims.kernels import tree as t
+from verifier.claims.kernels.fixed_form import is_fixed_form, to_free_form
 from verifier.claims.kernels.locate import FunctionSite, SourceIndex
 from verifier.claims.kernels.parse import ParsedSource, language_of, parse_source
 
@@ -37,7 +38,7 @@ def lowering_for(source: ParsedSource, path: str) -> Any:
 class KernelFile:
     def __init__(self, path: str, text: str, language: str):
         self.path = path
-        self.source = parse_source(language, text)
+        self.source = parse_source(language, to_free_form(text) if is_fixed_form(path) else text)
         self.index = SourceIndex(self.source)
         self._lowering: Any = None
         self._functions: dict[int, t.Function] = {}
@@ -55,6 +56,10 @@ class KernelFile:
         return self._functions[key]
 
     def named(self, name: str) -> t.Function | None:
+        owner, _, method = name.rpartition("::")
+        if owner and self.source.language in ("rust", "cpp", "cuda"):  # `Vec3::dot`: a method of Vec3
+            site = self.index.method_named(owner.rsplit("::", 1)[-1], method)
+            return self.function(site) if site is not None else None
         site = self.index.function_named(name)
         return self.function(site) if site is not None else None
 

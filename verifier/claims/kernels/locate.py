@@ -93,6 +93,42 @@ def function_name(source: ParsedSource, node: Any) -> str | None:
     return None
 
 
+def class_owner(source: ParsedSource, node: Any) -> str | None:
+    """The class or struct a C++ member function belongs to (defined in its body, or as ``T::f``), or None."""
+    parent = node.parent
+    if parent is not None and parent.type == "field_declaration_list" and parent.parent is not None and \
+            parent.parent.type in ("struct_specifier", "class_specifier"):
+        name = parent.parent.child_by_field_name("name")
+        return source.node_text(name) if name is not None else None
+    declarator = node.child_by_field_name("declarator")
+    while declarator is not None and declarator.type != "function_declarator":
+        declarator = declarator.child_by_field_name("declarator")
+    name = declarator.child_by_field_name("declarator") if declarator is not None else None
+    if name is not None and name.type == "qualified_identifier" and name.child_by_field_name("scope") is not None:
+        return source.node_text(name.child_by_field_name("scope")).split("<")[0].strip()
+    return None
+
+
+def owner_of(source: ParsedSource, node: Any) -> str | None:
+    """The type a method belongs to: a Rust ``impl`` block or a C++ class; None for a free function."""
+    if source.language == "rust":
+        return impl_owner(source, node)
+    if source.language in ("cpp", "cuda"):
+        return class_owner(source, node)
+    return None
+
+
+def impl_owner(source: ParsedSource, node: Any) -> str | None:
+    """The type a Rust function item is a method or associated function of (``impl Vec3 { .. }``), or None."""
+    parent = node.parent
+    while parent is not None and parent.type == "declaration_list":
+        parent = parent.parent
+    if parent is None or parent.type != "impl_item":
+        return None
+    owner = parent.child_by_field_name("type")
+    return source.node_text(owner).split("<")[0].strip() if owner is not None else None
+
+
 def _julia_signature_call(node: Any) -> Any:
     """The ``f(args)`` call of a Julia definition (long form, or short form ``f(x) = ...``)."""
     if node.type == "function_definition":
@@ -192,6 +228,13 @@ class SourceIndex:
                         site.line == best.line and site.node.start_byte > best.node.start_byte):
                     best = site
         return best
+
+    def method_named(self, owner: str, name: str) -> FunctionSite | None:
+        """The method ``name`` of ``owner`` (a Rust ``impl`` block, a C++ class), or None."""
+        for site in self.functions:
+            if site.name == name and owner_of(self.source, site.node) == owner:
+                return site
+        return None
 
     def function_named(self, name: str) -> FunctionSite | None:
         wanted = name.lower() if self.source.language == "fortran" else name

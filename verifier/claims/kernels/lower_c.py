@@ -13,7 +13,7 @@ from typing import Any
 
 from verifier.claims.kernels import tree as t
 from verifier.claims.kernels.common import Lowering, scalar_kind
-from verifier.claims.kernels.locate import function_name, walk
+from verifier.claims.kernels.locate import class_owner, function_name, walk
 
 _VECTOR_TYPE = re.compile(r"^(float|double|int|uint|short|long)([234])$")
 _VECTOR_FIELDS = ("x", "y", "z", "w")
@@ -25,6 +25,10 @@ _COMPARISONS = {"==", "!=", "<", "<=", ">", ">="}
 class CLowering(Lowering):
     def __init__(self, source: Any, path: str):
         super().__init__(source, path)
+        self.methods: set[tuple[str, str]] = set()  # (class, member function) of C++ classes of the file
+        self.owner: str | None = None  # the class of the member function being lowered
+        self.typed: dict[str, str] = {}  # parameter or local -> its struct or class type
+        self.pointers: set[str] = set()  # parameters that hold an address (`T*`, and `this`)
         self._collect_globals()
 
     # -- file level
@@ -37,8 +41,12 @@ class CLowering(Lowering):
                     lowered = self._macro_value(self.text(value))
                     if lowered is not None:
                         self.constants[self.text(name)] = lowered
-            elif node.type == "struct_specifier":
+            elif node.type in ("struct_specifier", "class_specifier"):
                 self._struct(node)
+            elif node.type == "function_definition" and self.source.language in ("cpp", "cuda"):
+                owner, name = class_owner(self.source, node), function_name(self.source, node)
+                if owner is not None and name is not None:
+                    self.methods.add((owner, name))
             elif node.type == "declaration" and self._enclosing_function(node) is None:
                 qualifiers = {self.text(c) for c in node.children if c.type == "type_qualifier"}
                 if qualifiers & {"const", "constexpr", "__constant__"}:
@@ -107,6 +115,12 @@ class CLowering(Lowering):
             declarator = declarator.child_by_field_name("declarator")
         params: list[t.Param] = []
         self.scope = set()
+        self.owner = class_owner(self.source, node) if self.source.language in ("cpp", "cuda") else None
+        if self.owner is not None and self.owner in self.structs and declarator is not None:
+            # a member function: `this` points to the object; its fields read as their bare names
+            constant = any(c.type == "type_qualifier" and self.text(c) == "const" for c in declarator.children)
+            params.append(t.Param("this", "unknown", "pointer", 0, self.owner, constant))
+            self.scope.add("this")
         if declarator is not None:
             for child in declarator.child_by_field_name("parameters").named_children:
                 if child.type == "parameter_declaration":
@@ -114,6 +128,8 @@ class CLowering(Lowering):
                     if param is not None:
                         params.append(param)
                         self.scope.add(param.name)
+        self.typed = {p.name: p.struct for p in params if p.struct is not None}
+        self.pointers = {p.name for p in params if p.mode == "pointer"}
         type_node = node.child_by_field_name("type")
         returns_value = not (type_node is not None and self.text(type_node) == "void" and
                              not self._returns_pointer(node))
@@ -243,6 +259,8 @@ class CLowering(Lowering):
                 if not isinstance(init, t.AddressOf):
                     return [self.stop(node, "a pointer local (pointer arithmetic is not followed)")]
             self.scope.add(name)
+            if struct is not None:
+                self.typed[name] = struct
             out.append(t.Declare(name, kind, size, init, self.line(node), struct, node.start_byte))
         return out
 
@@ -340,7 +358,12 @@ class CLowering(Lowering):
         if kind in ("true", "false"):
             return t.Lit(1 if kind == "true" else 0, "int")  # type: ignore[arg-type]
         if kind == "identifier":
-            return self.name_value(self.text(node), line)
+            name = self.text(node)
+            if self.owner is not None and name not in self.scope and name in self.structs.get(self.owner, ()):
+                return t.Field(t.Name("this", line), name, line)  # an implicit member
+            return self.name_value(name, line)
+        if kind == "this":
+            return self.name_value("this", line)
         if kind == "qualified_identifier":
             name = self.text(node).split("::")[-1]
             if name in self.constants:
@@ -402,6 +425,19 @@ class CLowering(Lowering):
             return self.expression(value) if value is not None else self.unsupported(node)
         return self.unsupported(node)
 
+    def _member_call(self, function: Any, args: tuple[t.Node, ...], node: Any) -> t.Node:
+        """``o.f(..)``, ``p->f(..)``, ``this->f(..)``: a member function of a class of the file."""
+        receiver_node, method = function.child_by_field_name("argument"), self.text(function.child_by_field_name("field"))
+        receiver = self.expression(receiver_node)
+        name = receiver.name if isinstance(receiver, t.Name) else None
+        owner = self.owner if name == "this" else self.typed.get(name or "")
+        if owner is None or (owner, method) not in self.methods:
+            return self.unsupported(node, f"the call `{self.text(function)}(...)`")
+        arrow = any(c.type == "->" for c in function.children)
+        if not arrow and name not in self.pointers:
+            receiver = t.AddressOf(receiver, self.line(node))  # `this` of the callee points to the object
+        return t.UserCall(f"{owner}::{method}", (receiver,) + args, self.line(node))
+
     def _call(self, node: Any) -> t.Node:
         function = node.child_by_field_name("function")
         arguments = node.child_by_field_name("arguments")
@@ -412,6 +448,12 @@ class CLowering(Lowering):
                 type_text = self.text(function.child_by_field_name("arguments"))
                 return t.Cast(scalar_kind(type_text), args[0], self.line(node))
             return self.unsupported(node, f"the template call `{self.text(function)}`")
+        if function.type == "identifier" and self.owner is not None and \
+                (self.owner, self.text(function)) in self.methods and self.text(function) not in self.scope:
+            return t.UserCall(f"{self.owner}::{self.text(function)}", (t.Name("this", self.line(node)),) + args,
+                              self.line(node))  # another member function, on the same object
+        if function.type == "field_expression":
+            return self._member_call(function, args, node)
         if function.type in ("identifier", "qualified_identifier"):
             name = self.text(function)
             if name in ("float", "double") and len(args) == 1:

@@ -12,13 +12,13 @@ from typing import Any
 
 from verifier.claims.kernels import tree as t
 from verifier.claims.kernels.common import Lowering, scalar_kind
-from verifier.claims.kernels.locate import walk
+from verifier.claims.kernels.locate import impl_owner, walk
 
 _ASSIGN_OPS: dict[str, t.BinaryOp] = {"+=": "+", "-=": "-", "*=": "*", "/=": "/"}
 _ARITHMETIC = {"+", "-", "*", "/"}
 _COMPARISONS = {"==", "!=", "<", "<=", ">", ">="}
 _METHODS = {"sqrt": "sqrt", "sin": "sin", "cos": "cos", "tan": "tan", "exp": "exp", "ln": "log", "abs": "abs",
-            "hypot": "hypot", "mul_add": "fma", "copysign": "copysign"}
+            "hypot": "hypot", "mul_add": "fma", "copysign": "copysign", "min": "min", "max": "max"}
 _STATEMENT_EXPRESSIONS = {"assignment_expression", "compound_assignment_expr", "for_expression",
                           "if_expression", "return_expression", "while_expression", "loop_expression",
                           "macro_invocation", "call_expression", "block"}
@@ -27,6 +27,7 @@ _STATEMENT_EXPRESSIONS = {"assignment_expression", "compound_assignment_expr", "
 class RustLowering(Lowering):
     def __init__(self, source: Any, path: str):
         super().__init__(source, path)
+        self.receivers: dict[tuple[str, str], str] = {}  # (impl type, method) -> `&self`, `&mut self`, `self`
         for node in walk(source.root):
             if node.type in ("const_item", "static_item"):
                 name, value = node.child_by_field_name("name"), node.child_by_field_name("value")
@@ -38,17 +39,32 @@ class RustLowering(Lowering):
                     self.structs[self.text(name)] = tuple(
                         self.text(f.child_by_field_name("name")) for f in body.named_children
                         if f.type == "field_declaration" and f.child_by_field_name("name") is not None)
+            elif node.type == "function_item":
+                owner = impl_owner(source, node)
+                receiver = next((c for c in node.child_by_field_name("parameters").named_children
+                                 if c.type == "self_parameter"), None)
+                if owner is not None and receiver is not None:
+                    self.receivers[(owner, self.text(node.child_by_field_name("name")))] = self.text(receiver)
+        self.owner: str | None = None  # the impl type of the function being lowered
+        self.pointer_names: set[str] = set()  # parameters holding a reference (`&T`, `&mut T`, `&self`)
+        self.struct_of: dict[str, str] = {}  # parameter -> its struct type
 
     # -- functions
 
     def function(self, node: Any) -> t.Function:
         name = self.text(node.child_by_field_name("name"))
         self.scope = set()
+        self.owner = impl_owner(self.source, node)
         params: list[t.Param] = []
         for child in node.child_by_field_name("parameters").named_children:
             if child.type == "self_parameter":
-                stopped = (t.Stop(f"a method with self at line {self.line(child)}", self.line(child)),)
-                return t.Function(name, (), stopped, True, line=self.line(node), path=self.path, language="rust")
+                # `&self` / `&mut self` is a reference to the impl's struct, `self` the struct itself
+                by_reference = self.text(child).lstrip().startswith("&")
+                struct = self.owner if self.owner in self.structs else None
+                params.append(t.Param("self", "unknown", "pointer" if by_reference else "value", 0,
+                                      struct, const="mut" not in self.text(child)))
+                self.scope.add("self")
+                continue
             if child.type != "parameter":
                 continue
             pattern = child.child_by_field_name("pattern")
@@ -58,6 +74,8 @@ class RustLowering(Lowering):
                 continue
             params.append(self._param(self.text(pattern), child.child_by_field_name("type")))
             self.scope.add(params[-1].name)
+        self.pointer_names = {p.name for p in params if p.mode == "pointer"}
+        self.struct_of = {p.name: p.struct for p in params if p.struct is not None}
         returns = node.child_by_field_name("return_type") is not None
         body = self._body(node.child_by_field_name("body"), returns)
         read = t.read_names(body)
@@ -157,6 +175,11 @@ class RustLowering(Lowering):
                     kind_of = scalar_kind(self.text(type_node))
             init = self.expression(value) if value is not None else None
             self.scope.add(name)
+            struct_type = self.text(type_node) if type_node is not None else (
+                self.text(value.child_by_field_name("name")) if value is not None and
+                value.type == "struct_expression" and value.child_by_field_name("name") is not None else None)
+            if struct_type in self.structs:
+                self.struct_of[name] = struct_type  # for method calls on the local
             return [t.Declare(name, kind_of, size, init, line, None, node.start_byte)]
         return self._effect(node, node.start_byte)
 
@@ -219,7 +242,7 @@ class RustLowering(Lowering):
             return self.literal(node)
         if kind == "boolean_literal":
             return t.Lit(Fraction(1 if self.text(node) == "true" else 0), "int")
-        if kind == "identifier":
+        if kind in ("identifier", "self"):
             return self.name_value(self.text(node), line)
         if kind == "scoped_identifier":
             name = self.text(node).split("::")[-1]
@@ -245,6 +268,14 @@ class RustLowering(Lowering):
             if op == "!":
                 return t.Logic("not", (operand,), line)
             return self.unsupported(node)
+        if kind == "struct_expression" and self.text(node.child_by_field_name("name")) in self.structs:
+            fields = self.structs[self.text(node.child_by_field_name("name"))]
+            given = {self.text(i.child_by_field_name("field")): i.child_by_field_name("value")
+                     for i in node.child_by_field_name("body").named_children
+                     if i.type == "field_initializer" and i.child_by_field_name("value") is not None}
+            if set(given) != set(fields):  # shorthand `Vec3 { x, y, z }` or `..base`: not followed
+                return self.unsupported(node, "a struct literal with shorthand or `..` fields")
+            return t.Aggregate(tuple(self.expression(given[f]) for f in fields), fields, line)
         if kind == "reference_expression":
             return t.AddressOf(self.expression(node.named_children[-1]), line)
         if kind == "type_cast_expression":
@@ -303,8 +334,15 @@ class RustLowering(Lowering):
             if method == "recip" and not args:
                 return t.Binary("/", t.Lit(Fraction(1), "real"), receiver, line)
             if method in _METHODS:
-                return t.MathCall(_METHODS[method], (receiver,) + args, line)
-            return self.unsupported(node, f"the method call `.{method}()`")
+                return t.as_cases(t.MathCall(_METHODS[method], (receiver,) + args, line))
+            owner = self.owner if isinstance(receiver, t.Name) and receiver.name == "self" else (
+                self.struct_of.get(receiver.name) if isinstance(receiver, t.Name) else None)
+            kind = self.receivers.get((owner, method)) if owner is not None else None
+            if kind is None:
+                return self.unsupported(node, f"the method call `.{method}()`")
+            if kind.startswith("&") and isinstance(receiver, t.Name) and receiver.name not in self.pointer_names:
+                receiver = t.AddressOf(receiver, line)  # the method's writes through `&mut self` reach the caller
+            return t.UserCall(f"{owner}::{method}", (receiver,) + args, line)
         if function.type in ("identifier", "scoped_identifier"):
             return self.math_or_call(self.text(function), args, node)
         return self.unsupported(node)

@@ -15,7 +15,7 @@ for _language, _extensions in (
     ("c", ".c .h"),
     ("cpp", ".cc .cpp .cxx .c++ .hpp .hh .hxx .h++"),
     ("cuda", ".cu .cuh"),
-    ("fortran", ".f90 .f95 .f03 .f08 .f18"),
+    ("fortran", ".f90 .f95 .f03 .f08 .f18 .f .for .f77 .ftn"),  # fixed form: see fixed_form.py
     ("julia", ".jl"),
     ("rust", ".rs"),
 ):

@@ -11,24 +11,10 @@ from dataclasses import dataclass, replace
 from fractions import Fraction
 
 from verifier.claims.kernels import tree as t
-from verifier.claims.kernels.kvalues import (
-    _NEGATION,
-    Stuck,
-    binary,
-    convert,
-    Agg,
-    Int,
-    Key,
-    Ptr,
-    SymInt,
-    Unknown,
-    Value,
-    _compare,
-    _put,
-    as_real,
-    flatten,
-)
+from verifier.claims.kernels.kvalues import (_NEGATION, Agg, Int, Key, Ptr, Stuck, SymInt, Unknown, Value,
+                                             _compare, _put, as_real, binary, convert, flatten)
 from verifier.claims.kernels.tree import first_hoistable as _first_hoistable, substitute_node as _substitute
+from verifier.claims.language import expression_text
 from verifier.model.claim import Condition
 from verifier.model.expr import KNOWN_FUNCTIONS, Call, Neg, Num, Opaque, Pow, Var
 
@@ -88,7 +74,9 @@ class Runner:
                 initial = next(inputs, Unknown("missing argument"))
             elif param.size or param.struct or param.mode in ("pointer", "reference", "out", "inout"):
                 fields = function.structs.get(param.struct or "", ())
-                initial = Agg(prefix=param.name, size=param.size, fields=fields, base=function.index_base)
+                # C++ `this`: the members are named as the code spells them inside the class (`x`)
+                prefix = "" if param.name == "this" and function.language in ("cpp", "cuda") else param.name
+                initial = Agg(prefix=prefix, size=param.size, fields=fields, base=function.index_base)
             elif param.kind == "int":
                 initial = SymInt(param.name)
             else:
@@ -285,10 +273,13 @@ class Runner:
                 raise Stuck(f"the condition at line {node.line} cannot be followed: {side.reason}", node.line)
         if isinstance(lhs, Num) and isinstance(rhs, Num):
             return [(_compare(node.op, lhs.value, rhs.value), path)]
-        text = node.text or "condition"
+        negated = _NEGATION[node.op]
+        for earlier in path.conditions:  # the same test already decided on this path (abs(x) * abs(x))
+            if (earlier.left, earlier.right) == (lhs, rhs) and earlier.relation in (node.op, negated):
+                return [(earlier.relation == node.op, path)]
+        text = node.text or f"{expression_text(lhs)} {node.op} {expression_text(rhs)}"  # type: ignore[arg-type]
         where = f"branch (line {node.line})"
         holds = Condition(node.op, lhs, rhs, text, where)  # type: ignore[arg-type]
-        negated = _NEGATION[node.op]
         fails = Condition(negated, lhs, rhs, f"not ({text})", where)  # type: ignore[arg-type]
         other = path.fork()
         path.conditions = path.conditions + (holds,)

@@ -334,8 +334,9 @@ def _children(node: Node) -> list[tuple[str, int | None, Node]]:
 
 def first_hoistable(node: Node, resolve: Callable[[str], object]) -> Choose | UserCall | None:
     """The first call of a known function or conditional expression, arguments before the call itself."""
-    if isinstance(node, Choose):
-        return node
+    if isinstance(node, Choose):  # its condition is always evaluated: what it needs comes first
+        inner = first_hoistable(node.condition, resolve)
+        return node if inner is None else inner
     for _, _, child in _children(node):
         found = first_hoistable(child, resolve)
         if found is not None:
@@ -345,6 +346,45 @@ def first_hoistable(node: Node, resolve: Callable[[str], object]) -> Choose | Us
     return None
 
 
+def as_cases(node: Node) -> Node:
+    """``node`` with ``abs``, ``min``, ``max`` and ``copysign`` written as conditional expressions, which the
+    runner splits into paths (each piece its own obligation, as a branch is)."""
+    changes: dict[str, object] = {}
+    for name, position, child in _children(node):
+        rewritten = as_cases(child)
+        if rewritten is not child:
+            _set_child(changes, node, name, position, rewritten)
+    node = replace(node, **changes) if changes else node  # type: ignore[arg-type]
+    if not isinstance(node, MathCall):
+        return node
+    args, line, zero = node.args, node.line, Lit(Fraction(0), "int")
+
+    def magnitude(x: Node) -> Node:
+        return Choose(Compare(">=", x, zero, line), x, Negate(x, line), line)
+
+    if node.function == "abs" and len(args) == 1:
+        return magnitude(args[0])
+    if node.function == "copysign" and len(args) == 2:
+        size = magnitude(args[0])
+        return Choose(Compare(">=", args[1], zero, line), size, Negate(size, line), line)
+    if node.function in ("min", "max") and len(args) >= 2:
+        keeps: Comparison = "<=" if node.function == "min" else ">="
+        found = args[0]
+        for candidate in args[1:]:
+            found = Choose(Compare(keeps, found, candidate, line), found, candidate, line)
+        return found
+    return node
+
+
+def _set_child(changes: dict[str, object], node: Node, name: str, position: int | None, child: Node) -> None:
+    if position is None:
+        changes[name] = child
+    else:
+        items = list(changes.get(name, getattr(node, name)))  # type: ignore[call-overload]
+        items[position] = child
+        changes[name] = tuple(items)
+
+
 def substitute_node(node: Node, old: Node, new: Node) -> Node:
     """``node`` with the subtree ``old`` (by identity) replaced by ``new``."""
     if node is old:
@@ -352,14 +392,8 @@ def substitute_node(node: Node, old: Node, new: Node) -> Node:
     changes: dict[str, object] = {}
     for name, position, child in _children(node):
         replaced = substitute_node(child, old, new)
-        if replaced is child:
-            continue
-        if position is None:
-            changes[name] = replaced
-        else:
-            items = list(changes.get(name, getattr(node, name)))  # type: ignore[call-overload]
-            items[position] = replaced
-            changes[name] = tuple(items)
+        if replaced is not child:
+            _set_child(changes, node, name, position, replaced)
     # the field names come from the node's own dataclass fields (_children), which the checker cannot follow
     return replace(node, **changes) if changes else node  # type: ignore[arg-type]
 

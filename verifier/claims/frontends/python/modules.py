@@ -4,37 +4,29 @@ the project modules imports name (under the scanned roots).  Files are parsed wi
 from __future__ import annotations
 
 import os
+import re
 from dataclasses import dataclass, field
-from typing import Iterable, Sequence, Union
+from typing import Iterable, Sequence
 
 import libcst as cst
 from libcst.metadata import CodeRange, MetadataWrapper, PositionProvider
 
+from verifier.claims.frontends.python.fallbacks import (
+    Binding,
+    Import,
+    MemberImport,
+    ModuleImport,
+    Alternatives,
+    block_alternatives,
+    choose,
+    import_meaning,
+    import_text,
+)
 from verifier.model import ir
 
 MATH_MODULES = ("math", "numpy", "np")
 
 
-@dataclass(frozen=True)
-class ModuleImport:
-    """``import dotted`` / ``import dotted as alias``: the alias names the module ``dotted``."""
-
-    dotted: str
-
-
-@dataclass(frozen=True)
-class MemberImport:
-    """``from dotted import name [as alias]`` (``dotted`` keeps its leading dots when relative)."""
-
-    dotted: str
-    name: str
-
-    @property
-    def full(self) -> str:
-        return self.dotted + self.name if self.dotted.endswith(".") else f"{self.dotted}.{self.name}"
-
-
-Import = Union[ModuleImport, MemberImport]
 
 
 @dataclass
@@ -51,6 +43,12 @@ class ModuleInfo:
     constants: dict[str, list[cst.BaseExpression]] = field(default_factory=dict)
     rebound: set[str] = field(default_factory=set)  # names bound at top level by something other than one assignment
     star_imports: list[str] = field(default_factory=list)  # modules imported with `from M import *`
+    # names bound by a top-level try/if whose alternatives disagree, and names some alternative leaves None
+    conflicts: dict[str, str] = field(default_factory=dict)
+    maybe_none: dict[str, str] = field(default_factory=dict)
+    bindings: dict[str, Binding] = field(default_factory=dict)  # the latest top-level binding of each name
+    # names bound before a `from M import *` of a project or outside module M, which may replace them
+    starred_over: dict[str, list[str]] = field(default_factory=dict)
     lowered: dict[tuple[int, str], ir.Function] = field(default_factory=dict)  # by id(node), qualname
 
     def line(self, node: cst.CSTNode) -> int:
@@ -103,6 +101,8 @@ def _index_statement(info: ModuleInfo, stmt: cst.CSTNode, top: bool) -> None:
         if name in info.functions or name in info.constants:
             info.rebound.add(name)
         info.functions[name] = stmt
+        line = info.line(stmt)
+        info.bindings[name] = Binding(stmt, ("def", str(line)), line, f"`def {name}` (line {line})")
         return
     if isinstance(stmt, cst.ClassDef):
         methods: dict[str, cst.FunctionDef] = {}
@@ -111,6 +111,9 @@ def _index_statement(info: ModuleInfo, stmt: cst.CSTNode, top: bool) -> None:
             if isinstance(item, cst.FunctionDef):
                 methods[item.name.value] = item
         info.classes[stmt.name.value] = methods
+        line = info.line(stmt)
+        info.bindings[stmt.name.value] = Binding(stmt.name, ("class", str(line)), line,
+                                                 f"`class {stmt.name.value}` (line {line})")
         return
     if isinstance(stmt, cst.SimpleStatementLine):
         for small in stmt.body:
@@ -120,10 +123,10 @@ def _index_statement(info: ModuleInfo, stmt: cst.CSTNode, top: bool) -> None:
                     if imported is None:
                         continue
                     if alias.asname is not None and isinstance(alias.asname.name, cst.Name):
-                        info.imports[alias.asname.name.value] = ModuleImport(imported)
+                        _bind_import(info, alias.asname.name.value, ModuleImport(imported), small)
                     else:
                         head = imported.split(".")[0]
-                        info.imports[head] = ModuleImport(head)
+                        _bind_import(info, head, ModuleImport(head), small)
             elif isinstance(small, cst.ImportFrom):
                 dots = len(small.relative)
                 base = dotted(small.module) if small.module is not None else ""
@@ -131,7 +134,7 @@ def _index_statement(info: ModuleInfo, stmt: cst.CSTNode, top: bool) -> None:
                     continue
                 prefix = "." * dots
                 if isinstance(small.names, cst.ImportStar):
-                    info.star_imports.append(prefix + base)
+                    _star_import(info, prefix + base)
                     continue
                 for alias in small.names:
                     if not isinstance(alias.name, cst.Name):
@@ -140,12 +143,16 @@ def _index_statement(info: ModuleInfo, stmt: cst.CSTNode, top: bool) -> None:
                     bound = name
                     if alias.asname is not None and isinstance(alias.asname.name, cst.Name):
                         bound = alias.asname.name.value
-                    info.imports[bound] = MemberImport(prefix + base, name)
+                    _bind_import(info, bound, MemberImport(prefix + base, name), small)
             elif isinstance(small, cst.Assign) and len(small.targets) == 1 and isinstance(
                 small.targets[0].target, cst.Name
             ):
                 name = small.targets[0].target.value
                 info.constants.setdefault(name, []).append(small.value)
+                line = info.line(small)
+                text = _code(small.value)
+                meaning = ("none",) if text == "None" else ("value", text)
+                info.bindings[name] = Binding(small.value, meaning, line, f"`{name} = {text}` (line {line})")
             elif isinstance(small, cst.AnnAssign) and isinstance(small.target, cst.Name) and small.value is not None:
                 info.constants.setdefault(small.target.value, []).append(small.value)
             elif isinstance(small, (cst.Assign, cst.AugAssign, cst.AnnAssign)):
@@ -156,9 +163,87 @@ def _index_statement(info: ModuleInfo, stmt: cst.CSTNode, top: bool) -> None:
                 for base in _changed_bases(small):
                     info.rebound.add(base)
         return
-    # Compound statements at top level (if/try/for ...) may bind names in ways we do not follow.
+    block = block_alternatives(stmt, info.line, _code)
+    if block is not None:
+        _bind_alternatives(info, block)
+        return
+    # Other compound statements at top level (for, with, nested blocks ...) bind names in ways not followed.
     for name in _names_bound_in(stmt):
         info.rebound.add(name)
+
+
+def star_exports(info: ModuleInfo, name: str) -> bool | None:
+    """Whether ``info`` binds ``name`` for ``from info import *`` itself (None: cannot be told, e.g. a
+    computed ``__all__``); what its own star imports pass on is the caller's to follow."""
+    if name.startswith("_"):
+        return False
+    if "__all__" in info.constants or "__all__" in info.rebound:
+        listed = info.constants.get("__all__", [])
+        if len(listed) != 1 or not isinstance(listed[0], (cst.List, cst.Tuple)):
+            return None
+        names = []
+        for element in listed[0].elements:
+            spelled = element.value.value if isinstance(element.value, cst.SimpleString) else ""
+            match = re.fullmatch(r"(['\"])([A-Za-z_]\w*)\1", spelled)  # a plain quoted name, read as text
+            if match is None:
+                return None
+            names.append(match.group(2))
+        return name in names
+    return (name in info.bindings or name in info.imports or name in info.functions or name in info.constants
+            or name in info.classes or name in info.conflicts or name in info.rebound)
+
+
+def _star_import(info: ModuleInfo, module: str) -> None:
+    info.star_imports.append(module)
+    if module.lstrip(".").split(".")[0] not in MATH_MODULES:
+        for name in info.bindings:
+            info.starred_over.setdefault(name, []).append(module)
+
+
+def _code(node: cst.CSTNode) -> str:
+    return cst.Module(body=[]).code_for_node(node)
+
+
+def _bind_import(info: ModuleInfo, name: str, imported: Import, node: cst.CSTNode) -> None:
+    if name in info.functions or name in info.constants or name in info.classes:
+        info.rebound.add(name)  # an import after a def or assignment of the same name: not followed
+    info.imports[name] = imported
+    line = info.line(node)
+    info.bindings[name] = Binding(imported, import_meaning(imported), line,
+                                  f"`{import_text(imported, name)}` (line {line})")
+
+
+def _bind_alternatives(info: ModuleInfo, block: Alternatives) -> None:
+    """Each name a top-level try/if binds: to what its alternatives agree on, or a conflict."""
+    names = list(dict.fromkeys([*block.first, *(n for other in block.others for n in other)]))
+    for name in names:
+        choice = choose(name, block, info.bindings.get(name), info.path)
+        if choice.maybe_none is not None:
+            info.maybe_none[name] = choice.maybe_none
+        if choice.binding is None:
+            info.conflicts[name] = choice.conflict or "is not followed"
+            info.rebound.add(name)
+            continue
+        info.conflicts.pop(name, None)
+        if choice.binding is info.bindings.get(name):
+            continue  # every alternative keeps the earlier binding
+        info.bindings[name] = choice.binding
+        bound = choice.binding.bound
+        info.imports.pop(name, None)  # the block's binding replaces any earlier one
+        info.functions.pop(name, None)
+        info.constants.pop(name, None)
+        info.classes.pop(name, None)
+        if isinstance(bound, (ModuleImport, MemberImport)):
+            info.imports[name] = bound
+        elif isinstance(bound, cst.FunctionDef):
+            info.functions[name] = bound
+        else:
+            info.constants[name] = [bound]
+    for star in block.stars:
+        _star_import(info, star)
+    for touched in block.touched:
+        if not isinstance(info.imports.get(touched), ModuleImport) and touched not in info.conflicts:
+            info.rebound.add(touched)  # `TABLE.update(...)` in a branch: TABLE is no constant
 
 
 def _assigned_names(small: cst.CSTNode) -> Iterable[str]:

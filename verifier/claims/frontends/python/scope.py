@@ -4,10 +4,11 @@ bound on the path hides a global of the same name."""
 from __future__ import annotations
 
 from fractions import Fraction
+from typing import Callable, TypeVar
 
 import libcst as cst
 
-from verifier.claims.execute.functions import math_constant
+from verifier.claims.execute.functions import TABLE_SPELLINGS, math_constant
 from verifier.claims.execute.scope import (
     BuiltinCallee,
     Callee,
@@ -30,17 +31,20 @@ from verifier.claims.frontends.python.modules import (
     ModuleInfo,
     ModuleLoader,
     dotted,
+    star_exports,
 )
 from verifier.model import ir
 from verifier.model.expr import Num, Var
 
+T = TypeVar("T")
 MAX_IMPORT_CHAIN = 8
+_STAR_CYCLE = "the name {name} is passed around a cycle of `import *` statements"
 # Decorators known not to change what a function computes (JIT compilers, caches, method kinds).
 NEUTRAL_DECORATORS = frozenset(
     {"njit", "jit", "vectorize", "lru_cache", "cache", "staticmethod", "wraps", "profile", "cfunc", "guvectorize"}
 )
 _STAR_MATH = frozenset({"sqrt", "hypot", "fma", "sin", "cos", "tan", "exp", "log", "log10", "log2", "pow",
-                        "square", "fabs", "floor", "ceil", "trunc", "fmod", "copysign"})
+                        "square", "fabs", "floor", "ceil", "trunc", "fmod", "copysign"}) | frozenset(TABLE_SPELLINGS)
 _BUILTINS = frozenset({"pow", "float", "int", "tuple", "list", "len", "sum", "range", "enumerate", "zip",
                        "reversed", "abs", "min", "max", "round", "divmod", "complex", "sorted", "map", "filter",
                        "any", "all", "print", "isinstance", "bool", "str"})
@@ -89,6 +93,7 @@ class PythonScope:
         self.loader = loader
         self._constants: dict[tuple[str, str], Value] = {}
         self._busy: set[tuple[str, str]] = set()
+        self._star_busy: set[tuple[str, str]] = set()
 
     def lower(self, module: ModuleInfo, node: cst.FunctionDef, qualname: str, owner: str | None = None
               ) -> ir.Function:
@@ -104,8 +109,16 @@ class PythonScope:
             return NONE
         if name in ("True", "False"):
             return Num(Fraction(1 if name == "True" else 0))
+        if name in module.conflicts:
+            return Unknown(f"the module-level name {name} (used at line {line}) {module.conflicts[name]}")
+        if name in module.maybe_none:
+            return Unknown(f"the module-level name {name} (used at line {line}) {module.maybe_none[name]}, so its "
+                           "value is not followed")
         if name in module.rebound:
             return Unknown(f"the module-level name {name} (line {line}) is bound in a way the tool does not follow")
+        replaced = self._replaced_by_star(host, module, name, line)
+        if replaced is not None:
+            return Unknown(replaced)
         if name in module.constants:
             return self.module_constant(host, module, name, line)
         target = module.imports.get(name)
@@ -122,10 +135,14 @@ class PythonScope:
             return Unknown(f"the module {name} used as a value at line {line}")
         if name in module.functions or name in module.classes:
             return Unknown(f"the function or class {name} used as a value at line {line} is not supported")
+        source = self._star_source(host, module, name, line)
+        if isinstance(source, str):
+            return Unknown(source)
+        if source is not None:
+            cycle: Value = Unknown(_STAR_CYCLE.format(name=name))
+            return self._followed_star(source, name, lambda: self._global(host, name, source, line), cycle)
         if name in ("pi", "tau", "e") and any(m in MATH_MODULES for m in module.star_imports):
             return math_constant("math", name, line)
-        if _other_star_imports(module):
-            return Unknown(_star_reason(name, module, line))
         # an undefined global: any real number (a claim must hold for every value of it)
         return Var(name)
 
@@ -177,9 +194,16 @@ class PythonScope:
         head, _, rest = spelled.partition(".")
         if is_bound(head):
             return None
+        return self._module_named(head, rest, module, 0)
+
+    def _module_named(self, head: str, rest: str, module: ModuleInfo, depth: int
+                      ) -> tuple[str, ModuleInfo | None] | None:
+        if head in module.conflicts or depth > MAX_IMPORT_CHAIN:
+            return None  # read as a value, which says why it is not followed
         target = module.imports.get(head)
         if target is None:
-            if head in MATH_MODULES and not rest and head not in module.constants and head not in module.functions:
+            if (head in MATH_MODULES and not rest and head not in module.constants and head not in module.functions
+                    and head not in module.rebound):
                 return ("numpy" if head == "np" else head, None)
             return None
         full = target.dotted if isinstance(target, ModuleImport) else target.full
@@ -190,8 +214,13 @@ class PythonScope:
             return ("numpy" if base == "np" else base, None)
         info = self.loader.find(full, module)
         if info is None:
-            if isinstance(target, MemberImport) and not rest:
-                return None  # `from pkg import thing`: a value or function rather than a module
+            if isinstance(target, MemberImport):
+                # `from .compat import np`: the project module compat may import a module under that name
+                source = self.loader.find(target.dotted, module)
+                if source is not None and target.name in source.imports and target.name not in source.rebound:
+                    return self._module_named(target.name, rest, source, depth + 1)
+                if not rest:
+                    return None  # `from pkg import thing`: a value or function rather than a module
             return (base, None)
         return (base, info)
 
@@ -245,9 +274,14 @@ class PythonScope:
     def _global_callee(self, host: Host, name: str, module: ModuleInfo, line: int, depth: int) -> Callee:
         if depth > MAX_IMPORT_CHAIN:
             return UnknownCallee(f"the import chain for {name} (line {line}) is too long to follow")
+        if name in module.conflicts:
+            return UnknownCallee(f"the module-level name {name} (called at line {line}) {module.conflicts[name]}")
         if name in module.rebound:
             return UnknownCallee(f"the module-level name {name} (line {line}) is bound in a way the tool does not "
                                  "follow")
+        replaced = self._replaced_by_star(host, module, name, line)
+        if replaced is not None:
+            return UnknownCallee(replaced)
         if name in module.functions:
             node = module.functions[name]
             if not neutral_decorators(node):
@@ -270,10 +304,71 @@ class PythonScope:
                 return OpaqueCallee(f"{base}.{target.name}" if base else target.name)
             host.depend(other.path)
             return self._global_callee(host, target.name, other, line, depth + 1)
+        source = self._star_source(host, module, name, line)
+        if isinstance(source, str):
+            return UnknownCallee(source)
+        if source is not None:
+            stuck: Callee = UnknownCallee(_STAR_CYCLE.format(name=name))
+            return self._followed_star(source, name, lambda: self._global_callee(host, name, source, line, depth + 1),
+                                       stuck)
         if name in _BUILTINS:
             return BuiltinCallee(name)
         if any(m in MATH_MODULES for m in module.star_imports) and name in _STAR_MATH:
             return MathCallee(name)
-        if _other_star_imports(module):
-            return UnknownCallee(_star_reason(name, module, line))
         return OpaqueCallee(name)
+
+    # -- star imports of project modules (read, never imported)
+
+    def _star_source(self, host: Host, module: ModuleInfo, name: str, line: int, depth: int = 0
+                     ) -> ModuleInfo | str | None:
+        """The project module a ``from M import *`` of ``module`` takes ``name`` from (the last such import
+        that binds it, itself or through its own star imports), None when none does, or the reason it
+        cannot be told."""
+        if depth > MAX_IMPORT_CHAIN:
+            return f"the chain of `import *` statements that may bind {name} (line {line}) is too long to follow"
+        for star in reversed(_other_star_imports(module)):
+            other = self.loader.find(star, module)
+            if other is None:
+                return _star_reason(name, module, line)
+            host.depend(other.path)
+            exported = star_exports(other, name)
+            if exported is None:
+                return (f"the name {name} at line {line} may come from `from {star} import *`, whose `__all__` "
+                        "the tool cannot read")
+            if exported or (name in _STAR_MATH or name in ("pi", "tau", "e")) and any(
+                    m in MATH_MODULES for m in other.star_imports):
+                return other
+            if "__all__" in other.constants:
+                continue  # a literal __all__ without the name: not passed on
+            passed_on = self._star_source(host, other, name, line, depth + 1)
+            if passed_on is not None:
+                return passed_on if isinstance(passed_on, str) else other
+        return None
+
+    def _followed_star(self, source: ModuleInfo, name: str, resolve: Callable[[], T], cycle: T) -> T:
+        key = (source.path, name)
+        if key in self._star_busy:  # star imports in a cycle: the name is bound nowhere along it
+            return cycle
+        self._star_busy.add(key)
+        try:
+            return resolve()
+        finally:
+            self._star_busy.discard(key)
+
+    def _replaced_by_star(self, host: Host, module: ModuleInfo, name: str, line: int) -> str | None:
+        """Why a name bound in ``module`` is not followed: a later ``from M import *`` may bind it again."""
+        binding = module.bindings.get(name)
+        for star in module.starred_over.get(name, []):
+            if binding is not None and binding.bound == MemberImport(star, name):
+                continue  # `from M import name` then `from M import *`: the same binding again
+            other = self.loader.find(star, module)
+            exported = star_exports(other, name) if other is not None else None
+            if other is not None and exported is False:
+                passes_math = (name in _STAR_MATH or name in ("pi", "tau", "e")) and any(
+                    m in MATH_MODULES for m in other.star_imports)
+                if passes_math or self._star_source(host, other, name, line) is not None:
+                    exported = None
+            if exported is not False:
+                return (f"the module-level name {name} (used at line {line}) may be bound again by the later "
+                        f"`from {star} import *` in {module.path}")
+        return None
