@@ -190,7 +190,7 @@ def find_claims(
 def decide_claims(claim_set: ClaimSet, claims: Sequence[Claim] | None = None) -> tuple[Verdict, ...]:
     """Verdicts of ``claims`` (default: all of ``claim_set``), in that order, with its limits and cache."""
     chosen = claim_set.claims if claims is None else tuple(claims)
-    options, _refused = with_cache(claim_set.request, dict(claim_set.texts))
+    options, _refused = with_cache(claim_set.request)
     return tuple(run(chosen, options))
 
 

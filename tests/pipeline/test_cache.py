@@ -34,13 +34,8 @@ FALSE = _claim("k.c", 2, square(BinOp("+", a, b)), BinOp("+", square(a), square(
 # x*y/y = x: needs the assumption y != 0 (saturation)
 DIVISION = _claim("k.c", 3, BinOp("/", BinOp("*", x, y), y), x, "x*y/y == x")
 
-TEXTS = {"k.c": "// the claims of this test\n", "other.c": "int f;\n"}
-
-
-def _cache(directory: Path, *, texts: dict[str, str] | None = None, version: str = "1.0",
-           conditions: tuple[NamedConditionSet, ...] = ()) -> ResultCache:
-    table = TEXTS if texts is None else texts
-    return ResultCache(directory, version=version, conditions=conditions, dependency_text=table.get)
+def _cache(directory: Path, *, version: str = "1.0", conditions: tuple[NamedConditionSet, ...] = ()) -> ResultCache:
+    return ResultCache(directory, version=version, conditions=conditions)
 
 
 def _decided(claim: Claim):
@@ -162,17 +157,18 @@ def test_malformed_entries_are_misses_not_crashes(tmp_path: Path, content: str) 
     assert cache.load(TRUE) is None
 
 
-def test_the_key_covers_dependencies_version_and_conditions_but_not_the_location() -> None:
-    base = claim_key(TRUE, version="1.0", conditions=(), dependency_text=TEXTS.get)
-    edited = dict(TEXTS, **{"k.c": "// edited\n"})
-    assert claim_key(TRUE, version="1.0", conditions=(), dependency_text=edited.get) != base
-    assert claim_key(TRUE, version="1.1", conditions=(), dependency_text=TEXTS.get) != base
+def test_the_key_covers_obligations_dependencies_version_and_conditions_but_not_the_location() -> None:
+    base = claim_key(TRUE, version="1.0", conditions=())
+    assert claim_key(FALSE, version="1.0", conditions=()) != base
+    other_code = replace(TRUE, obligations=FALSE.obligations)  # same text, the code executes differently
+    assert claim_key(other_code, version="1.0", conditions=()) != base
+    assert claim_key(TRUE, version="1.1", conditions=()) != base
     named = (NamedConditionSet("unit", ("x",), ("x**2 == 1",)),)
-    assert claim_key(TRUE, version="1.0", conditions=named, dependency_text=TEXTS.get) != base
+    assert claim_key(TRUE, version="1.0", conditions=named) != base
     with_helper = replace(TRUE, dependencies=("k.c", "other.c"))
-    assert claim_key(with_helper, version="1.0", conditions=(), dependency_text=TEXTS.get) != base
+    assert claim_key(with_helper, version="1.0", conditions=()) != base
     moved = replace(TRUE, id="k.c:40:1", location=Location("k.c", 40, 1))
-    assert claim_key(moved, version="1.0", conditions=(), dependency_text=TEXTS.get) == base
+    assert claim_key(moved, version="1.0", conditions=()) == base
 
 
 def test_results_cut_short_by_a_limit_are_not_stored(tmp_path: Path, decided) -> None:
@@ -198,18 +194,18 @@ def test_inconclusive_results_are_reused_only_when_they_fail_the_run(tmp_path: P
     verdict = decide_guarded(OPEN, 10.0, 2048)
     assert verdict.verdict == "inconclusive"
     _cache(tmp_path).store(OPEN, verdict)
-    failing = ResultCache(tmp_path, version="1.0", dependency_text=TEXTS.get, reuse_inconclusive=True)
+    failing = ResultCache(tmp_path, version="1.0", reuse_inconclusive=True)
     loaded = failing.load(OPEN)
     assert loaded is not None and loaded.verdict == "inconclusive" and loaded.cached
-    warning = ResultCache(tmp_path, version="1.0", dependency_text=TEXTS.get, reuse_inconclusive=False)
+    warning = ResultCache(tmp_path, version="1.0", reuse_inconclusive=False)
     assert warning.load(OPEN) is None
-    other_limits = ResultCache(tmp_path, version="1.0", dependency_text=TEXTS.get, reuse_inconclusive=True,
+    other_limits = ResultCache(tmp_path, version="1.0", reuse_inconclusive=True,
                                limits=(60.0, 2048))
     assert other_limits.load(OPEN) is None
 
 
 def test_a_forged_inconclusive_entry_cannot_pass_a_false_claim(tmp_path: Path, decided) -> None:
-    cache = ResultCache(tmp_path, version="1.0", dependency_text=TEXTS.get, reuse_inconclusive=True)
+    cache = ResultCache(tmp_path, version="1.0", reuse_inconclusive=True)
     cache.store(FALSE, decided[FALSE.text])
     document = _entry(cache, FALSE)
     document["obligations"][0].update(verdict="inconclusive", witness=None, counter_normal_form=None)
@@ -220,7 +216,7 @@ def test_a_forged_inconclusive_entry_cannot_pass_a_false_claim(tmp_path: Path, d
     cache.entry_path(FALSE).unlink()
     loaded = cache.load(FALSE)  # read back only because inconclusive fails the run anyway
     assert loaded is not None and loaded.verdict == "inconclusive"
-    warning = ResultCache(tmp_path, version="1.0", dependency_text=TEXTS.get, reuse_inconclusive=False)
+    warning = ResultCache(tmp_path, version="1.0", reuse_inconclusive=False)
     assert warning.load(FALSE) is None
 
 

@@ -58,8 +58,13 @@ def test_skipped_folders(tmp_path: Path) -> None:
     write(tmp_path, "myenv/lib/skipped.c")
     write(tmp_path, "cache/CACHEDIR.TAG", "Signature: 8a477f597d28d172789f06886806bc55\n")
     write(tmp_path, "cache/skipped.c")
-    write(tmp_path, "env/not_a_venv.c")  # a folder named env without pyvenv.cfg is ordinary
-    assert paths(collect(["."], cwd=tmp_path)) == ["env/not_a_venv.c", "keep/k.c"]
+    # outside a git working tree the common build and environment folders are left out too (listed)
+    for folder in ["env", "venv", "build", "dist", "docs/_build"]:
+        write(tmp_path, f"{folder}/skipped.c")
+    discovery = collect(["."], cwd=tmp_path)
+    assert paths(discovery) == ["keep/k.c"]
+    listed = {item.path for item in discovery.skipped}
+    assert {"env/", "venv/", "build/", "dist/", "docs/_build/", "myenv/", "cache/", ".venv/"} <= listed
 
 
 def test_explicit_file_in_a_skipped_folder_is_read(tmp_path: Path) -> None:
@@ -73,12 +78,14 @@ def test_binary_undecodable_and_missing_files_are_problems_not_crashes(tmp_path:
     write(tmp_path, "latin1.c", "// caf\u00e9\n// idealcheck: a == a\n".encode("latin-1"))
     write(tmp_path, "bom.c", "\ufeff// idealcheck: a == a\n".encode("utf-8"))
     discovery = collect([".", "missing.c", "gone"], cwd=tmp_path)
-    assert paths(discovery) == ["bom.c", "ok.c"]
+    # a binary file is skipped and listed; a Latin-1 file is read (its claim line is ASCII)
+    assert paths(discovery) == ["bom.c", "latin1.c", "ok.c"]
     assert discovery.files[0].text == "// idealcheck: a == a\n"  # byte-order mark dropped
+    assert discovery.files[1].text == "// caf\u00e9\n// idealcheck: a == a\n"
+    assert [(item.path, item.kind) for item in discovery.skipped] == [("blob.bin", "binary")]
+    assert dict(discovery.notes)["latin1.c"].startswith("this file is not UTF-8")
     problems = {p.location.path: p for p in discovery.problems}
-    assert sorted(problems) == ["blob.bin", "gone", "latin1.c", "missing.c"]
-    assert "binary" in problems["blob.bin"].message
-    assert "not UTF-8" in problems["latin1.c"].message and problems["latin1.c"].location.line == 1
+    assert sorted(problems) == ["gone", "missing.c"]
     assert "no such file" in problems["missing.c"].message
 
 
@@ -152,7 +159,7 @@ def test_staged_texts_come_from_the_index(repo: Path, git_repo: GitRepo) -> None
     discovery = collect(["lib"], cwd=repo, source="staged")
     texts = {f.path: f.text for f in discovery.files}
     assert texts == {"lib/a.c": "// idealcheck: staged == staged\n", "lib/b.c": "// idealcheck: b == b\n"}
-    assert [p.location.path for p in discovery.problems] == ["lib/bin.dat"]
+    assert discovery.problems == () and [(s.path, s.kind) for s in discovery.skipped] == [("lib/bin.dat", "binary")]
     assert staged_paths(repo) == {"lib/a.c", "lib/bin.dat"}
     assert staged_paths(repo / "lib") == {"a.c", "bin.dat"}
     assert paths(collect(["."], cwd=repo / "lib", source="staged")) == ["a.c", "b.c"]

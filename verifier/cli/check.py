@@ -25,6 +25,7 @@ from verifier.cli.options import (
     run_options,
 )
 from verifier.claims.near_miss import near_misses
+from verifier.cli.baseline_options import add_baseline_options, load_for_check, warn_stale
 from verifier.cli.report_options import (
     OutputTarget,
     add_report_options,
@@ -36,6 +37,7 @@ from verifier.cli.report_options import (
     use_color,
 )
 from verifier.pipeline.config import Config
+from verifier.pipeline.baseline import StaleEntry
 from verifier.pipeline.discover import DiscoveryError
 from verifier.pipeline.runner import CheckRequest, check_run, parse_shard
 from verifier.report import Format, fails_run, render
@@ -69,6 +71,7 @@ def register(subparsers: Subparsers) -> None:
     parser.add_argument("--cache-dir", metavar="DIR", help="result cache folder (config: cache_dir; default .idealcheck_cache)")
     add_run_mode_options(parser, unit="claim")
     add_config_option(parser)
+    add_baseline_options(parser)
     add_accuracy_options(parser)
     add_report_options(parser)  # --format, --output FORMAT=FILE, -q/-v, --color, --require-claims
     parser.set_defaults(handler=run_check)
@@ -134,13 +137,16 @@ def _run_check(args: argparse.Namespace, stdout_format: Format, targets: list[Ou
         cache_dir=cache_dir(args, config, cwd),
         options=run_options(args, config),
         on_inconclusive=failing,
+        baseline=load_for_check(args, config, cwd),
     )
     texts: dict[str, str] = {}
+    stale: list[StaleEntry] = []
     try:
-        result = check_run(request, texts_out=texts)
+        result = check_run(request, texts_out=texts, stale_out=stale)
     except DiscoveryError as exc:
         raise UsageError(str(exc)) from exc
     verdicts, skipped = list(result.verdicts), result.skipped
+    warn_stale(stale)
     if not args.quiet:
         _warn_near_misses(texts)
     root = repository_root(str(cwd)) or str(config.root)

@@ -15,10 +15,10 @@ import sys
 from collections.abc import Callable, Sequence
 
 from verifier import __version__
-from verifier.cli import audit, check, explain
+from verifier.cli import audit, baseline, check, explain
 from verifier.cli.options import EXIT_INTERRUPTED, EXIT_USAGE, UsageError
 
-SUBCOMMANDS = (check, audit, explain)
+SUBCOMMANDS = (check, baseline, audit, explain)
 
 
 def build_parser() -> argparse.ArgumentParser:

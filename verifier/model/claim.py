@@ -76,13 +76,15 @@ class Problem:
 
 @dataclass(frozen=True)
 class Expectation:
-    """An accepted known result written on the claim: ``expect inconclusive: REASON`` after the claim text.
+    """An accepted known result: written on the claim (``expect inconclusive: REASON`` after the claim
+    text) or recorded in a baseline file.
 
     The claim passes while its verdict is ``verdict``; any other verdict (a proof included) is reported and fails.
     """
 
     verdict: Literal["refuted", "inconclusive", "error"]
     reason: str
+    baseline: str | None = None  # the baseline file that accepted it; None for the inline marker
 
 
 @dataclass(frozen=True)

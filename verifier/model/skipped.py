@@ -14,6 +14,7 @@ SkipKind = Literal[
     "not-regular",  # a device, FIFO or socket: never opened for reading
     "link",  # a symbolic link that is broken, loops, leads to a folder or out of the scanned roots
     "too-large",  # a file over the size cap (``max_file_kb``)
+    "binary",  # a binary file, recognised by its content (counted in the text report, listed with -v)
     "unreadable",  # the file system refused (permissions, too many open files ...)
     "cache",  # the result cache folder was refused, so no result was read from or written to it
 ]

@@ -1,8 +1,9 @@
 """The proof-carrying result cache.
 
 An entry is a JSON file under ``<cache_dir>/v1/<2 hex>/<key>.json``; the key is the sha256 of the claim's
-canonical form (the ``repr`` of its obligations, which are frozen dataclasses), the text of every file it
-depends on, the named condition sets and the tool version.  Decisive results (``proved``, ``refuted``)
+canonical form (the ``repr`` of its obligations, which are frozen dataclasses: what the code it depends
+on was executed into), the paths of the files they came from, the named condition sets and the tool
+version; not the texts of those files, so an edit elsewhere in a file keeps every other claim's entry.  Decisive results (``proved``, ``refuted``)
 are stored under that key; ``inconclusive`` ones under a key that also covers the time and memory limits,
 and only when no limit was hit (a result of a busy machine must not stick).  An inconclusive entry cannot
 be re-checked, so it is read back only when inconclusive fails the run anyway (``on_inconclusive =
@@ -32,7 +33,7 @@ import hashlib
 import json
 import os
 import time
-from collections.abc import Callable, Sequence
+from collections.abc import Sequence
 from dataclasses import dataclass, replace
 from pathlib import Path
 from typing import Any
@@ -55,20 +56,12 @@ class Invalid(Exception):
 # ---------------------------------------------------------------- key
 
 
-def claim_key(
-    claim: Claim,
-    *,
-    version: str,
-    conditions: Sequence[NamedConditionSet],
-    dependency_text: Callable[[str], str | None],
-) -> str:
-    """sha256 over everything a claim's verdict depends on (its location is deliberately left out)."""
-    dependencies = sorted(set(claim.dependencies) | {claim.location.path})
-    digests = []
-    for path in dependencies:
-        text = dependency_text(path)
-        digest = "missing" if text is None else hashlib.sha256(text.encode("utf-8", "surrogateescape")).hexdigest()
-        digests.append([path, digest])
+def claim_key(claim: Claim, *, version: str, conditions: Sequence[NamedConditionSet]) -> str:
+    """sha256 over everything a claim's verdict depends on: its text and kind, its obligations (the
+    expressions and conditions the code was executed into, so the code it depends on, inlined helpers
+    included), the files they came from, the named condition sets and the tool version.  The texts of
+    those files are deliberately left out, as is the location: editing a comment or another function of
+    the file, or moving the code, leaves the key as it is."""
     material = json.dumps(
         [
             "idealcheck-result",
@@ -78,7 +71,7 @@ def claim_key(
             claim.text,
             repr(claim.obligations),
             repr(claim.notes),
-            digests,
+            sorted(set(claim.dependencies) | {claim.location.path}),
             repr(tuple(conditions)),
         ],
         ensure_ascii=True,
@@ -292,7 +285,6 @@ class ResultCache:
         *,
         version: str,
         conditions: Sequence[NamedConditionSet] = (),
-        dependency_text: Callable[[str], str | None],
         limits: tuple[float, int] = (DEFAULT_TIMEOUT_SECONDS, DEFAULT_MEMORY_MB),
         reuse_inconclusive: bool = False,
     ) -> None:
@@ -301,7 +293,6 @@ class ResultCache:
         self.reuse_inconclusive = reuse_inconclusive
         self.version = version
         self.conditions = tuple(conditions)
-        self.dependency_text = dependency_text
         self.stats = CacheStats()
         self._keys: dict[str, str] = {}
         # why this folder must not be used (a symbolic link, a folder of someone else's), or None
@@ -309,9 +300,7 @@ class ResultCache:
 
     def key(self, claim: Claim) -> str:
         if claim.id not in self._keys:
-            self._keys[claim.id] = claim_key(
-                claim, version=self.version, conditions=self.conditions, dependency_text=self.dependency_text
-            )
+            self._keys[claim.id] = claim_key(claim, version=self.version, conditions=self.conditions)
         return self._keys[claim.id]
 
     def slot(self, claim: Claim) -> EntrySlot:

@@ -25,7 +25,7 @@ else:  # pragma: no cover - exercised on Python 3.10 only
 
 TABLE = "tool.idealcheck"
 KNOWN_KEYS = ("paths", "include", "exclude", "conditions", "on_inconclusive", "timeout", "memory_mb", "jobs", "cache_dir",
-              "accuracy", "max_file_kb")
+              "accuracy", "max_file_kb", "baseline")
 # Upper bound of the sampled points per claim: they are kept in memory.
 MAX_ACCURACY_SAMPLES = 1_000_000
 CONDITION_KEYS = ("vars", "given")
@@ -65,6 +65,7 @@ class Config:
     cache_dir: str = DEFAULT_CACHE_DIR
     accuracy: AccuracyConfig = AccuracyConfig()
     max_file_kb: int | None = None  # size cap of a scanned file; None: the default (discover)
+    baseline: str | None = None  # accepted results file, relative to root; None: the default one if present
 
     def named(self, name: str) -> NamedConditionSet | None:
         return next((item for item in self.conditions if item.name == name), None)
@@ -202,6 +203,11 @@ def _build(table: TomlTable, path: Path, root: Path) -> Config:
         if not isinstance(value, str) or not value.strip():
             raise ConfigError(f"{path}: `{TABLE}.cache_dir` must be a non-empty string, found {value!r}")
         config = replace(config, cache_dir=value)
+    if "baseline" in table:
+        value = table["baseline"]
+        if not isinstance(value, str) or not value.strip():
+            raise ConfigError(f"{path}: `{TABLE}.baseline` must be a non-empty string (a file), found {value!r}")
+        config = replace(config, baseline=value)
     if "conditions" in table:
         config = replace(config, conditions=_condition_sets(table["conditions"], path))
     if "accuracy" in table:

@@ -1,14 +1,20 @@
 """Which files to read: paths and folders, include/exclude globs, and git staged or changed files.
 
-Every file under the scanned paths is read unless the config's globs exclude it.  Whatever is left out
-for another reason is listed as ``Skipped`` with the reason, so that a pull request cannot hide a claim
-unseen: folders that are virtual environments, tool caches or build metadata (by name or by a marker file
-such as ``pyvenv.cfg`` or ``CACHEDIR.TAG``), anything that is not a regular file (devices, FIFOs, sockets:
-never opened for reading, so nothing can block or stream forever), symbolic links that are broken, loop,
-lead to a folder or out of the scanned roots, and files over the size cap.  Version-control metadata
-(``.git`` and the like) is never tracked content and is left out silently.
+In a git working tree a folder's files are those git lists (``git ls-files --cached --others
+--exclude-standard``): what it tracks plus the untracked files it does not ignore, so ``.gitignore`` is
+honoured.  Outside one (or without git) the folder is walked, and common build and environment folders
+(``build``, ``dist``, ``venv``, ``env``, ``_build`` ...) are left out as well.  A file named on the command
+line is always read.  Every file so selected is read unless the config's globs exclude it.  Whatever is
+left out for another reason is listed as ``Skipped`` with the reason, so that a pull request cannot hide a
+claim unseen: folders that are virtual environments, tool caches or build metadata (by name or by a marker
+file such as ``pyvenv.cfg`` or ``CACHEDIR.TAG``), binary files (recognised by content, ``decoding``),
+anything that is not a regular file (devices, FIFOs, sockets: never opened for reading, so nothing can
+block or stream forever), symbolic links that are broken, loop, lead to a folder or out of the scanned
+roots, and files over the size cap.  Version-control metadata (``.git`` and the like) is never tracked
+content and is left out silently, as are files git ignores (the project's own choice, and never in a
+commit).
 
-A file that is read but is not text (binary, not UTF-8) becomes a ``FileProblem`` (an ``error`` in the
+A file that is read but cannot be decoded becomes a ``FileProblem`` (an ``error`` in the
 report), never an exception.  Paths are reported relative to the working directory with forward slashes;
 a name that is not valid UTF-8 keeps its bytes as surrogate escapes.  Scanned files are only read, never
 imported or run.
@@ -17,19 +23,27 @@ from __future__ import annotations
 
 import errno
 import os
-import re
 import stat
-import subprocess
-from collections.abc import Collection, Iterable, Sequence
+from collections.abc import Collection, Sequence
 from dataclasses import dataclass
-from functools import lru_cache
 from pathlib import Path
 from typing import Literal
 
 from verifier.model.claim import FileProblem, Location
 from verifier.model.paths import relative_path  # re-exported: discovery names files this way
 from verifier.model.skipped import SkipKind, Skipped
-from verifier.pipeline.reading import DEFAULT_MAX_FILE_BYTES, decode_source, kind_of_file, read_regular_file, too_large
+from verifier.pipeline.decoding import Decoded, decode_source
+from verifier.pipeline.git_files import (  # re-exported: the git side of discovery
+    DiscoveryError,
+    run_git,
+    split_z,
+    changed_since,
+    git_listing,
+    git_toplevel,
+    staged_paths,
+)
+from verifier.pipeline.globs import matches_glob, selected  # re-exported: globs select the files
+from verifier.pipeline.reading import DEFAULT_MAX_FILE_BYTES, kind_of_file, read_decoded, too_large
 
 # Version-control metadata: never tracked content, so never listed.
 VCS_DIRS = frozenset({".git", ".hg", ".svn", ".bzr", "_darcs", "CVS"})
@@ -45,10 +59,12 @@ SKIPPED_DIRS: dict[str, str] = {
     ".pytest_cache": "tool cache", ".ruff_cache": "tool cache", ".hypothesis": "tool cache",
 }
 SKIPPED_DIR_SUFFIXES = (".egg-info", ".dist-info")
-
-
-class DiscoveryError(Exception):
-    """The requested set of files cannot be determined (not a git repository, unknown revision ...)."""
+# Outside a git working tree (where .gitignore cannot say what is generated), these common build and
+# environment folders are left out too, and listed; in a git tree their tracked files are read.
+WALK_SKIPPED_DIRS: dict[str, str] = {
+    "build": "build output", "dist": "build output", "_build": "build output (docs/_build and the like)",
+    "htmlcov": "coverage report", "venv": "virtual environment", "env": "virtual environment",
+}
 
 
 @dataclass(frozen=True)
@@ -62,83 +78,17 @@ class Discovery:
     files: tuple[SourceFile, ...]
     problems: tuple[FileProblem, ...]
     skipped: tuple[Skipped, ...] = ()
+    notes: tuple[tuple[str, str], ...] = ()  # (path, note): how a file that is not UTF-8 was read
+    claim_line_problems: tuple[FileProblem, ...] = ()  # claim lines of files read that cannot be decoded
 
 
-# ---------------------------------------------------------------- paths and globs
-
-
-@lru_cache(maxsize=512)
-def _glob_regex(pattern: str) -> re.Pattern[str]:
-    """A glob as a regex over '/'-separated paths: ``*`` and ``?`` stay within one folder, ``**`` crosses folders."""
-    out: list[str] = []
-    i = 0
-    while i < len(pattern):
-        char = pattern[i]
-        if pattern.startswith("**/", i):
-            out.append("(?:.*/)?")
-            i += 3
-        elif pattern.startswith("**", i):
-            out.append(".*")
-            i += 2
-        elif char == "*":
-            out.append("[^/]*")
-            i += 1
-        elif char == "?":
-            out.append("[^/]")
-            i += 1
-        elif char == "[":
-            end = pattern.find("]", i + 2)
-            if end < 0:
-                out.append(re.escape(char))
-                i += 1
-            else:
-                body = pattern[i + 1 : end]
-                if body.startswith("!"):
-                    body = "^" + body[1:]
-                out.append("[" + body.replace("\\", "\\\\") + "]")
-                i = end + 1
-        else:
-            out.append(re.escape(char))
-            i += 1
-    return re.compile("".join(out) + r"\Z")
-
-
-def matches_glob(path: str, pattern: str) -> bool:
-    """Whether the relative path ``path`` matches ``pattern``.
-
-    Like ignore files in common practice: a pattern without ``/`` matches a file name or any folder name
-    on the path (``*.md``, ``build``); a pattern with ``/`` is anchored at the root (``src/**/*.c``,
-    ``docs/gen``) and also matches everything below a folder it names.
-    """
-    pattern = pattern.strip()
-    if not pattern:
-        return False
-    path = path.replace(os.sep, "/")
-    while path.startswith("./"):
-        path = path[2:]
-    pattern = pattern[2:] if pattern.startswith("./") else pattern
-    pattern = pattern.lstrip("/")
-    directory_only = pattern.endswith("/")
-    pattern = pattern.rstrip("/")
-    parts = path.split("/")
-    regex = _glob_regex(pattern)
-    if "/" not in pattern:
-        candidates = parts[:-1] if directory_only else parts
-        return any(regex.match(part) for part in candidates)
-    prefixes = ["/".join(parts[:k]) for k in range(1, len(parts) + (0 if directory_only else 1))]
-    return any(regex.match(prefix) for prefix in prefixes)
-
-
-def selected(path: str, include: Sequence[str], exclude: Sequence[str]) -> bool:
-    if include and not any(matches_glob(path, pattern) for pattern in include):
-        return False
-    return not any(matches_glob(path, pattern) for pattern in exclude)
-
-
-def skipped_dir_reason(directory: Path, name: str) -> str | None:
-    """Why the folder ``directory/name`` is not walked into, or None when it is walked."""
+def skipped_dir_reason(directory: Path, name: str, *, walking: bool = False) -> str | None:
+    """Why the folder ``directory/name`` is not walked into, or None when it is walked; ``walking`` (no
+    git listing) adds the common build and environment folders."""
     if name in SKIPPED_DIRS:
         return SKIPPED_DIRS[name]
+    if walking and name in WALK_SKIPPED_DIRS:
+        return WALK_SKIPPED_DIRS[name]
     if name.endswith(SKIPPED_DIR_SUFFIXES):
         return "package build metadata"
     # A virtual environment of any name, and caches that tag themselves (Cache Directory Tagging Specification).
@@ -166,6 +116,8 @@ class _Collector:
         self.files: dict[str, SourceFile] = {}
         self.problems: dict[str, FileProblem] = {}
         self.skipped: dict[str, Skipped] = {}
+        self.notes: dict[str, str] = {}
+        self.problem_lines: dict[tuple[str, int, int], FileProblem] = {}  # claim lines that cannot be decoded
 
     def wanted(self, path: str) -> bool:
         if path in self.files or path in self.problems or path in self.skipped:
@@ -189,13 +141,18 @@ class _Collector:
         anchored = inside if self.root is None else relative_path(self.cwd / inside, self.root)
         return any(matches_glob(anchored, pattern) for pattern in self.exclude)
 
-    def add(self, path: str, text: str | None, problem: FileProblem | None, skipped: Skipped | None = None) -> None:
-        if skipped is not None:
-            self.skipped[skipped.path] = skipped
-        elif problem is not None:
-            self.problems[path] = problem
-        elif text is not None:
-            self.files[path] = SourceFile(path, text)
+    def add(self, path: str, decoded: Decoded) -> None:
+        if decoded.skipped is not None:
+            self.skipped[decoded.skipped.path] = decoded.skipped
+        elif decoded.text is None:
+            if decoded.problems:
+                self.problems[path] = decoded.problems[0]
+        else:
+            self.files[path] = SourceFile(path, decoded.text)
+            for problem in decoded.problems:
+                self.problem_lines[(path, problem.location.line, problem.location.column)] = problem
+            if decoded.note is not None:
+                self.notes[path] = decoded.note
 
     def skip(self, path: str, kind: SkipKind, reason: str) -> None:
         self.skipped.setdefault(path, Skipped(path, kind, reason))
@@ -203,8 +160,10 @@ class _Collector:
     def discovery(self) -> Discovery:
         files = tuple(self.files[key] for key in sorted(self.files))
         problems = tuple(self.problems[key] for key in sorted(self.problems))
+        lines = tuple(self.problem_lines[key] for key in sorted(self.problem_lines) if key[0] in self.files)
         skipped = tuple(self.skipped[key] for key in sorted(self.skipped))
-        return Discovery(files, problems, skipped)
+        notes = tuple((path, self.notes[path]) for path in sorted(self.notes) if path in self.files)
+        return Discovery(files, problems, skipped, notes, lines)
 
 
 def _inside(real: str, roots: Sequence[str]) -> bool:
@@ -248,7 +207,7 @@ class _Walker:
         if stat.S_ISDIR(mode):
             if entry.name in VCS_DIRS or self.collector.folder_excluded(path):
                 return
-            reason = skipped_dir_reason(directory, entry.name)
+            reason = skipped_dir_reason(directory, entry.name, walking=True)
             if reason is not None:
                 self.collector.skip(path + "/", "folder", f"{reason}, not walked into")
             else:
@@ -259,9 +218,51 @@ class _Walker:
         if stat.S_ISLNK(mode):
             self.link(entry.path, path)
         elif stat.S_ISREG(mode):
-            self.collector.add(path, *read_regular_file(entry.path, path, self.collector.max_bytes))
+            self.collector.add(path, read_decoded(entry.path, path, self.collector.max_bytes))
         else:
             self.collector.skip(path, "not-regular", f"{kind_of_file(mode)}, not read")
+
+    def listed(self, folder: Path, listing: Sequence[str]) -> None:
+        """The files git lists under ``folder`` (paths relative to it): each is read as a walked file
+        would be, except under a skipped folder (a virtual environment or cache committed or not ignored)."""
+        reasons: dict[Path, str | None] = {}
+        for relative in listing:
+            parts = relative.rstrip("/").split("/")
+            directory, skipped_at = folder, None
+            for name in parts[:-1]:
+                below = directory / name
+                if below not in reasons:
+                    reasons[below] = skipped_dir_reason(directory, name)
+                if reasons[below] is not None:
+                    skipped_at = below
+                    break
+                directory = below
+            if skipped_at is not None:
+                shown = self.shown(skipped_at)
+                if not self.collector.folder_excluded(shown):
+                    self.collector.skip(shown + "/", "folder", f"{reasons[skipped_at]}, not walked into")
+                continue
+            self.listed_file(folder / relative)
+
+    def listed_file(self, target: Path) -> None:
+        shown = self.shown(target)
+        if not self.collector.wanted(shown):
+            return
+        try:
+            mode = os.lstat(target).st_mode
+        except FileNotFoundError:
+            return  # tracked but deleted in the working tree: there is nothing to read
+        except OSError as exc:
+            self.collector.skip(shown, "unreadable", f"cannot read its metadata: {exc.strerror or exc}")
+            return
+        if stat.S_ISDIR(mode):
+            self.collector.skip(shown + "/", "folder", "git submodule or another git repository, not walked into")
+        elif stat.S_ISLNK(mode):
+            self.link(str(target), shown)
+        elif stat.S_ISREG(mode):
+            self.collector.add(shown, read_decoded(str(target), shown, self.collector.max_bytes))
+        else:
+            self.collector.skip(shown, "not-regular", f"{kind_of_file(mode)}, not read")
 
     def link(self, absolute: str, path: str) -> None:
         """A symbolic link to a regular file inside the scanned roots is read; any other is listed."""
@@ -283,7 +284,7 @@ class _Walker:
         elif not stat.S_ISREG(mode):
             self.collector.skip(path, "not-regular", f"symbolic link to {kind_of_file(mode)}, not read")
         else:
-            self.collector.add(path, *read_regular_file(real, path, self.collector.max_bytes))
+            self.collector.add(path, read_decoded(real, path, self.collector.max_bytes))
 
     def named(self, argument: str) -> None:
         target = Path(self.cwd, argument)
@@ -300,77 +301,24 @@ class _Walker:
         elif stat.S_ISLNK(mode):
             self.link(str(target), shown)
         elif stat.S_ISREG(mode):
-            self.collector.add(shown, *read_regular_file(str(target), shown, self.collector.max_bytes))
+            self.collector.add(shown, read_decoded(str(target), shown, self.collector.max_bytes))
         else:
             self.collector.skip(shown, "not-regular", f"{kind_of_file(mode)}, not read")
 
 
-def _collect_worktree(paths: Sequence[str], cwd: Path, collector: _Collector) -> None:
+def _collect_worktree(paths: Sequence[str], cwd: Path, collector: _Collector, use_git: bool = True) -> None:
     folders = [os.path.realpath(Path(cwd, p)) for p in paths if Path(cwd, p).is_dir()]
     walker = _Walker(collector, folders or [os.path.realpath(cwd)])
     for argument in paths:
-        walker.named(argument)
+        target = Path(cwd, argument)
+        listing = git_listing(target) if use_git and target.is_dir() and not target.is_symlink() else None
+        if listing is not None:
+            walker.listed(target, listing)
+        else:
+            walker.named(argument)
 
 
 # ---------------------------------------------------------------- git
-
-
-def _git(args: Sequence[str], cwd: Path, *, input_bytes: bytes | None = None) -> bytes:
-    try:
-        result = subprocess.run(
-            ["git", *args], cwd=str(cwd), input=input_bytes, capture_output=True, check=False
-        )
-    except FileNotFoundError:
-        raise DiscoveryError("git is not installed, but it is needed to read staged or changed files") from None
-    except OSError as exc:
-        raise DiscoveryError(f"cannot run git: {exc}") from None
-    if result.returncode != 0:
-        message = result.stderr.decode("utf-8", errors="replace").strip().splitlines()
-        raise DiscoveryError(f"git {args[0]} failed: {message[0] if message else 'exit status ' + str(result.returncode)}")
-    return result.stdout
-
-
-def git_toplevel(cwd: Path | str) -> Path:
-    """The top folder of the git working tree containing ``cwd``; ``DiscoveryError`` outside a repository."""
-    cwd = Path(cwd)
-    try:
-        out = _git(["rev-parse", "--show-toplevel"], cwd)
-    except DiscoveryError as exc:
-        if "git is not installed" in str(exc):
-            raise
-        raise DiscoveryError(f"{cwd} is not inside a git repository (needed for staged or changed files)") from None
-    return Path(out.decode("utf-8", errors="surrogateescape").strip())
-
-
-def _split_z(out: bytes) -> list[str]:
-    return [item.decode("utf-8", errors="surrogateescape") for item in out.split(b"\0") if item]
-
-
-def _from_top(paths: Iterable[str], top: Path, cwd: Path) -> set[str]:
-    return {relative_path(top / path, cwd) for path in paths}
-
-
-def staged_paths(cwd: Path | str) -> set[str]:
-    """Files added, copied, modified or renamed in the git index, relative to ``cwd``."""
-    cwd = Path(cwd)
-    top = git_toplevel(cwd)
-    out = _git(["diff", "--cached", "--name-only", "-z", "--diff-filter=ACMR"], top)
-    return _from_top(_split_z(out), top, cwd)
-
-
-def changed_since(ref: str, cwd: Path | str) -> set[str]:
-    """Files that differ between revision ``ref`` and the working tree, plus untracked files, relative to ``cwd``."""
-    cwd = Path(cwd)
-    top = git_toplevel(cwd)
-    if ref.startswith("-"):
-        raise DiscoveryError(f"unknown git revision {ref!r}")
-    try:
-        _git(["rev-parse", "--verify", "--quiet", "--end-of-options", f"{ref}^{{commit}}"], top)
-    except DiscoveryError:
-        raise DiscoveryError(f"unknown git revision {ref!r}") from None
-    changed = _split_z(_git(["diff", "--name-only", "-z", ref, "--"], top))
-    untracked = _split_z(_git(["ls-files", "--others", "--exclude-standard", "-z", "--full-name"], top))
-    return _from_top(changed + untracked, top, cwd)
 
 
 def _under(path: str, argument: str) -> bool:
@@ -396,7 +344,7 @@ def _skipped_folder_of(path: str, argument: str) -> tuple[str, str] | None:
 
 def _collect_staged(paths: Sequence[str], cwd: Path, collector: _Collector) -> None:
     top = git_toplevel(cwd)
-    listing = _split_z(_git(["ls-files", "--stage", "-z", "--full-name"], top))
+    listing = split_z(run_git(["ls-files", "--stage", "-z", "--full-name"], top))
     arguments = [relative_path(Path(cwd, argument), cwd) for argument in paths]
     wanted: list[tuple[str, str]] = []  # (relative path, blob id)
     indexed: set[str] = set()
@@ -426,20 +374,20 @@ def _collect_staged(paths: Sequence[str], cwd: Path, collector: _Collector) -> N
             )
     if not wanted:
         return
-    sizes = _git(["cat-file", "--batch-check"], top,
+    sizes = run_git(["cat-file", "--batch-check"], top,
                  input_bytes=b"".join(blob.encode() + b"\n" for _, blob in wanted)).splitlines()
     small: list[tuple[str, str]] = []
     for (path, blob), line in zip(wanted, sizes):
         fields = line.split(b" ")
         if len(fields) >= 3 and fields[2].isdigit() and int(fields[2]) > collector.max_bytes:
-            collector.add(path, None, None, too_large(path, int(fields[2]), collector.max_bytes))
+            collector.add(path, Decoded(None, skipped=too_large(path, int(fields[2]), collector.max_bytes)))
         else:
             small.append((path, blob))
     wanted = small
     if not wanted:
         return
     request = b"".join(blob.encode() + b"\n" for _, blob in wanted)
-    out = _git(["cat-file", "--batch"], top, input_bytes=request)
+    out = run_git(["cat-file", "--batch"], top, input_bytes=request)
     position = 0
     for path, _blob in wanted:
         header_end = out.index(b"\n", position)
@@ -451,7 +399,7 @@ def _collect_staged(paths: Sequence[str], cwd: Path, collector: _Collector) -> N
         size = int(header[2])
         data = out[header_end + 1 : header_end + 1 + size]
         position = header_end + 1 + size + 1
-        collector.add(path, *decode_source(data, path))
+        collector.add(path, decode_source(data, path))
 
 
 # ---------------------------------------------------------------- entry point
@@ -467,13 +415,15 @@ def collect(
     only: Collection[str] | None = None,
     root: Path | str | None = None,
     max_file_bytes: int = DEFAULT_MAX_FILE_BYTES,
+    use_git: bool = True,
 ) -> Discovery:
     """The files to scan under ``paths`` (files or folders, relative to ``cwd``) and the ones that could not be read.
 
     ``include``/``exclude`` are globs on the path relative to ``root`` (the config's folder; default ``cwd``,
     see ``matches_glob``); they apply to explicitly named files too, while the skipped folders only apply
     when walking.  ``source="staged"`` reads the file list and texts from the git index.  ``only`` restricts the result to these relative paths.
-    ``max_file_bytes`` is the size cap; a larger file is listed in ``skipped``, not read.
+    ``max_file_bytes`` is the size cap; a larger file is listed in ``skipped``, not read.  ``use_git``
+    (the default) takes a folder's files from git when it is in a working tree (see the module text).
     """
     base = Path(cwd) if cwd is not None else Path.cwd()
     only_set = None if only is None else {relative_path(Path(base, p), base) for p in only}
@@ -482,7 +432,7 @@ def collect(
     if source == "staged":
         _collect_staged(paths or ["."], base, collector)
     elif source == "worktree":
-        _collect_worktree(paths or ["."], base, collector)
+        _collect_worktree(paths or ["."], base, collector, use_git)
     else:
         raise ValueError(f"unknown source {source!r}")
     return collector.discovery()

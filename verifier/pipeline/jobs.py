@@ -19,15 +19,16 @@ DEFAULT_DECIDER = "verifier.pipeline.runner:decide_with_engine"
 TOO_DEEP = "the claim is nested too deeply to handle"
 
 
-def file_problem_claim(problem: FileProblem, verdict: str = "error") -> Claim:
+def file_problem_claim(problem: FileProblem, verdict: str = "error", text: str | None = None) -> Claim:
     """A pseudo-claim standing for a file that could not be read (``error``) or whose claims could not be
-    read within the limits (``inconclusive``), so that it is reported."""
+    read within the limits (``inconclusive``), so that it is reported; ``text`` replaces its default text."""
     loc = problem.location
+    default = "(claims of this file not read)" if verdict == "inconclusive" else "(file could not be read)"
     return Claim(
         id=f"{loc.path}:{loc.line}:{loc.column}",
         location=loc,
         kind="expression",
-        text="(claims of this file not read)" if verdict == "inconclusive" else "(file could not be read)",
+        text=text or default,
         problem=Problem("inconclusive" if verdict == "inconclusive" else "error", problem.message),
         dependencies=(loc.path,),
     )

@@ -1,4 +1,4 @@
-"""Reading one scanned file safely: only a regular file, at most a size cap, decoded as UTF-8 text.
+"""Reading one scanned file safely: only a regular file, at most a size cap, then decoded (``decoding``).
 
 A hostile checkout may hold a FIFO, a device (``/dev/zero``, ``/proc/kmsg``) or a link swapped in between
 a check and a read; none of them is ever read, and no read can block or grow without bound.
@@ -11,26 +11,12 @@ import stat
 
 from verifier.model.claim import FileProblem, Location
 from verifier.model.skipped import Skipped
+from verifier.pipeline.decoding import Decoded, decode_source
 
 DEFAULT_MAX_FILE_BYTES = 10 * 1024 * 1024  # config: max_file_kb
 # Open flags that keep a read from blocking (FIFOs, terminals) or following a link planted after the check.
 _OPEN_FLAGS = (os.O_RDONLY | getattr(os, "O_NONBLOCK", 0) | getattr(os, "O_NOFOLLOW", 0)
                | getattr(os, "O_NOCTTY", 0) | getattr(os, "O_CLOEXEC", 0) | getattr(os, "O_BINARY", 0))
-
-
-def decode_source(data: bytes, path: str) -> tuple[str | None, FileProblem | None]:
-    """The text of a file's bytes, or a problem saying why it is not readable text."""
-    if b"\0" in data:
-        line = data.count(b"\n", 0, data.index(b"\0")) + 1
-        return None, FileProblem(Location(path, line, 1), "binary file (contains NUL bytes), not read")
-    try:
-        return data.decode("utf-8-sig"), None
-    except UnicodeDecodeError as exc:
-        line = data.count(b"\n", 0, exc.start) + 1
-        column = exc.start - (data.rfind(b"\n", 0, exc.start) + 1) + 1
-        byte = data[exc.start : exc.start + 1].hex()
-        message = f"not UTF-8 text (byte 0x{byte} at line {line}), not read"
-        return None, FileProblem(Location(path, line, column), message)
 
 
 def kind_of_file(mode: int) -> str:
@@ -48,10 +34,25 @@ def kind_of_file(mode: int) -> str:
 
 
 Outcome = tuple[str | None, FileProblem | None, Skipped | None]
+BytesOutcome = tuple[bytes | None, FileProblem | None, Skipped | None]
 
 
 def read_regular_file(absolute: str, path: str, max_bytes: int) -> Outcome:
-    """(text, problem, skipped) for one file: only a regular file is read, and at most ``max_bytes``.
+    """(text, problem, skipped) for one file (the first problem only; ``read_decoded`` gives them all)."""
+    decoded = read_decoded(absolute, path, max_bytes)
+    return decoded.text, (decoded.problems[0] if decoded.problems else None), decoded.skipped
+
+
+def read_decoded(absolute: str, path: str, max_bytes: int) -> Decoded:
+    """One file read (``read_regular_bytes``) and decoded (``decoding.decode_source``)."""
+    data, problem, skipped = read_regular_bytes(absolute, path, max_bytes)
+    if data is None:
+        return Decoded(None, (problem,) if problem is not None else (), skipped)
+    return decode_source(data, path)
+
+
+def read_regular_bytes(absolute: str, path: str, max_bytes: int) -> BytesOutcome:
+    """(bytes, problem, skipped) for one file: only a regular file is read, and at most ``max_bytes``.
 
     The file is opened without following a final symbolic link and without blocking, and checked with
     ``fstat`` on the open descriptor, so a FIFO, a device or a link swapped in meanwhile is never read.
@@ -90,8 +91,7 @@ def read_regular_file(absolute: str, path: str, max_bytes: int) -> Outcome:
         return None, FileProblem(Location(path, 1, 1), f"cannot read the file: {exc.strerror or exc}"), None
     finally:
         os.close(fd)
-    text, problem = decode_source(b"".join(chunks), path)
-    return text, problem, None
+    return b"".join(chunks), None, None
 
 
 def too_large(path: str, size: int, max_bytes: int) -> Skipped:

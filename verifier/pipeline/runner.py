@@ -25,6 +25,7 @@ from verifier.model.paths import relative_path
 from verifier.model.run import RunResult
 from verifier.model.skipped import Skipped
 from verifier.model.verdict import Limit, Verdict
+from verifier.pipeline.baseline import Baseline, StaleEntry, apply_baseline
 from verifier.pipeline.jobs import (  # re-exported: the runner's public names
     DEFAULT_DECIDER,
     cached_or_decided,
@@ -103,6 +104,7 @@ def collect_claims(discovery: Any, context: Any, *, extract: Callable[..., list[
     other files are still read.  ``extract`` (in this process) is for tests.
     """
     claims: list[Claim] = [file_problem_claim(p) for p in discovery.problems]
+    claims += [file_problem_claim(p, text="(claim could not be read)") for p in discovery.claim_line_problems]
     files = list(discovery.files)
     if extract is not None or options is None or options.in_process:
         for source in files:
@@ -303,6 +305,7 @@ class CheckRequest:
     cache_dir: str | None = None  # None: no cache
     options: RunOptions = RunOptions()
     on_inconclusive: str = "fail"  # cached inconclusive results are reused only when they fail the run
+    baseline: Baseline | None = None  # accepted known results (``pipeline.baseline``)
 
 
 def _relative(path: str, cwd: str) -> str:
@@ -313,9 +316,11 @@ def _under(path: str, directory: str) -> bool:
     return directory == "." or path == directory or path.startswith(directory.rstrip("/") + "/")
 
 
-def gather_claims(request: CheckRequest) -> tuple[list[Claim], dict[str, str], tuple[Skipped, ...]]:
+def gather_claims(request: CheckRequest, *, stale_out: list[StaleEntry] | None = None,
+                  ) -> tuple[list[Claim], dict[str, str], tuple[Skipped, ...]]:
     """The selected claims of a request (changed-only filters and shard applied), the texts read and
-    what was left out unread.
+    what was left out unread.  With a baseline, its accepted verdicts are attached before any selection,
+    and its entries that match no claim found go to ``stale_out``.
 
     File arguments (as a hook passes them) select the claims whose dependencies include one of those
     files, so the project root is scanned too: a claim elsewhere that inlines a function of a changed
@@ -343,11 +348,15 @@ def gather_claims(request: CheckRequest) -> tuple[list[Claim], dict[str, str], t
     roots = tuple(dict.fromkeys(directories + [root] if files or not directories else directories))
     context = ExtractionContext(named_conditions=config.conditions, roots=roots)
     texts = {normalize_path(str(f.path)): f.text for f in discovery.files}
-    claims = collect_claims(discovery, context, options=request.options)
+    claims = with_file_notes(collect_claims(discovery, context, options=request.options), dict(discovery.notes))
     unique: dict[str, Claim] = {}
     for claim in claims:
         unique.setdefault(claim.id, claim)
     claims = list(unique.values())
+    if request.baseline is not None:
+        claims, stale = apply_baseline(claims, request.baseline, cwd, scan)
+        if stale_out is not None:
+            stale_out.extend(stale)
     if files:
         claims = [
             c for c in claims
@@ -361,6 +370,14 @@ def gather_claims(request: CheckRequest) -> tuple[list[Claim], dict[str, str], t
         claims = [c for c in claims if depends_on(c, changed)]
     claims = select_shard(claims, request.shard)
     return claims, texts, discovery.skipped
+
+
+def with_file_notes(claims: list[Claim], notes: dict[str, str]) -> list[Claim]:
+    """The claims with the note of their file (how a file that is not UTF-8 was read) added."""
+    if not notes:
+        return claims
+    return [dataclasses.replace(c, notes=c.notes + (notes[c.location.path],)) if c.location.path in notes else c
+            for c in claims]
 
 
 def max_file_bytes(config: Config) -> int:
@@ -387,31 +404,19 @@ def check(request: CheckRequest) -> list[Verdict]:
     return list(check_run(request).verdicts)
 
 
-def with_cache(request: CheckRequest, texts: dict[str, str]) -> tuple[RunOptions, tuple[Skipped, ...]]:
+def with_cache(request: CheckRequest) -> tuple[RunOptions, tuple[Skipped, ...]]:
     """The request's run options with the result cache of ``request.cache_dir`` (unchanged without one),
-    and the cache folder as a skipped entry when it is refused; ``texts`` are the files already read
-    (``gather_claims``), other dependencies are read from disk."""
+    and the cache folder as a skipped entry when it is refused."""
     options = request.options
     if request.cache_dir is None:
         return options, ()
     from verifier import __version__
     from verifier.pipeline.cache import ResultCache
-    from verifier.pipeline.reading import read_regular_file
-
-    limit = max_file_bytes(request.config)
-
-    def dependency_text(path: str) -> str | None:
-        key = normalize_path(path)
-        if key in texts:
-            return texts[key]
-        text, _problem, _skipped = read_regular_file(os.path.join(request.cwd, key), key, limit)
-        return text
 
     cache = ResultCache(
         os.path.join(request.cwd, request.cache_dir),
         version=__version__,
         conditions=request.config.conditions,
-        dependency_text=dependency_text,
         limits=(options.timeout, options.memory_mb),
         reuse_inconclusive=request.on_inconclusive == "fail",
     )
@@ -420,15 +425,16 @@ def with_cache(request: CheckRequest, texts: dict[str, str]) -> tuple[RunOptions
     return dataclasses.replace(options, cache=cache), ()
 
 
-def check_run(request: CheckRequest, *, texts_out: dict[str, str] | None = None) -> RunResult:
+def check_run(request: CheckRequest, *, texts_out: dict[str, str] | None = None,
+              stale_out: list[StaleEntry] | None = None) -> RunResult:
     """Run a whole check: the verdicts (in the order the claims were found) and what was not read.
 
     ``texts_out``, when given, receives the texts of the files read (the command line warns about
-    misspelt claim markers in them)."""
+    misspelt claim markers in them); ``stale_out`` the baseline's stale entries."""
     allow_long_integers()
     warm_up_workers(request.options)
-    claims, texts, skipped = gather_claims(request)
+    claims, texts, skipped = gather_claims(request, stale_out=stale_out)
     if texts_out is not None:
         texts_out.update(texts)
-    options, refused = with_cache(request, texts)
+    options, refused = with_cache(request)
     return RunResult(tuple(run(claims, options)), skipped + refused)

@@ -52,6 +52,13 @@ def expectation_note(verdict: Verdict) -> str | None:
     expected = verdict.claim.expected
     if expected is None:
         return None
+    if expected.baseline is not None:  # a baseline entry's reason is optional
+        why = f" ({expected.reason})" if expected.reason else ""
+        if verdict.verdict == expected.verdict:
+            return f"accepted by the baseline {expected.baseline}: {expected.verdict}{why}"
+        fix = ("run `idealcheck baseline` to drop the entry" if verdict.verdict == "proved"
+               else "run `idealcheck baseline` to record the new verdict if it is known")
+        return f"the baseline {expected.baseline} accepts {expected.verdict}{why}, now {verdict.verdict}: {fix}"
     if verdict.verdict == expected.verdict:
         return f"accepted: expected {expected.verdict} ({expected.reason})"
     fix = ("remove the `expect` marker" if verdict.verdict == "proved"

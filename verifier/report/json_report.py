@@ -24,7 +24,8 @@ def claim_object(verdict: Verdict) -> dict[str, Any]:
     # an inline `expect VERDICT: REASON`, only when the claim has one (and whether it holds)
     expected = {} if claim.expected is None else {"expected": {
         "verdict": claim.expected.verdict, "reason": claim.expected.reason,
-        "met": verdict.verdict == claim.expected.verdict}}
+        "met": verdict.verdict == claim.expected.verdict,
+        **({} if claim.expected.baseline is None else {"baseline": claim.expected.baseline})}}
     return {
         "id": claim.id,
         "path": claim.location.path,

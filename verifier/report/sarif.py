@@ -144,7 +144,10 @@ def _result(verdict: Verdict, on_inconclusive: OnInconclusive, uri: str, occurre
     if expected is not None:
         result["properties"]["expected"] = {"verdict": expected.verdict, "reason": expected.reason}
         if expectation_met(verdict):
-            result["suppressions"] = [{"kind": "inSource", "justification": expected.reason}]
+            # an inline marker is in the source; a baseline entry is kept outside it (SARIF suppression kinds)
+            kind = "inSource" if expected.baseline is None else "external"
+            justification = expected.reason or f"accepted by the baseline {expected.baseline}"
+            result["suppressions"] = [{"kind": kind, "justification": justification}]
     if loc.cell is not None:  # a notebook: the region's lines count within this cell's source
         result["locations"][0]["message"] = {"text": f"cell {loc.cell}"}
         result["properties"]["cell"] = loc.cell

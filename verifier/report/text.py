@@ -170,14 +170,30 @@ def passing_line(verdict: Verdict, *, color: bool = False, width: int | None = N
     return Escaped(f"{location}: {coloured(verdict.verdict, color)}: {text}{tail}")
 
 
-def skipped_lines(skipped: Sequence[Skipped]) -> list[str]:
-    """What was left out unread, one line each (nothing when everything was read)."""
+# Left out by their nature, not by anything odd: counted in the summary, listed with -v only.
+COUNTED_ONLY_KINDS = frozenset({"binary"})
+
+
+def skipped_lines(skipped: Sequence[Skipped], detail: Detail = "verbose") -> list[str]:
+    """What was left out unread, one line each (nothing when everything was read); below ``verbose`` the
+    binary files are only counted (``binary_count_text``)."""
+    if detail != "verbose":
+        skipped = [item for item in skipped if item.kind not in COUNTED_ONLY_KINDS]
     if not skipped:
         return []
     noun = "path" if len(skipped) == 1 else "paths"
     lines = [f"not read ({len(skipped)} {noun}; claims in them, if any, were not checked):"]
     lines.extend(f"{INDENT}{item.path}: {item.reason}" for item in skipped)
     return lines
+
+
+def binary_count_text(skipped: Sequence[Skipped], detail: Detail) -> str:
+    """``"; 3 binary files not read"`` for the summary line ("" when there are none)."""
+    count = sum(1 for item in skipped if item.kind == "binary")
+    if not count:
+        return ""
+    noun = "binary file" if count == 1 else "binary files"
+    return f"; {count} {noun} not read" + ("" if detail == "verbose" else " (-v lists them)")
 
 
 def render_text(
@@ -206,9 +222,9 @@ def render_text(
             if failing and passing:
                 lines.append("")
             lines.extend(passing_line(v, color=color, width=width) for v in passing)
-    lines.extend(skipped_lines(skipped))
+    lines.extend(skipped_lines(skipped, detail))
     if detail != "quiet" and any(v.verdict == "proved" for v in items):
         lines.append(BRIEF_CAUTION)
-    lines.append(summary_line(verdicts))
+    lines.append(summary_line(verdicts) + binary_count_text(skipped, detail))
     # Lines from the code under review are escaped here; Escaped lines were escaped piece by piece.
     return "\n".join(line if isinstance(line, Escaped) else shown(line) for line in lines) + "\n"
