@@ -1,18 +1,35 @@
 """Defect D5 of the fuzzing: ``8**(1/3) == 2``, ``x**1e400`` and ``2**x`` were `error` (text that cannot be
-read) although the text is well formed.  They are opaque values now: identical sides are proved, the rest
-is inconclusive, never refuted without a witness and never an error.
+read) although the text is well formed.  They are opaque values now: identical sides are proved; a false claim
+is refuted by a witness evaluated with the real power (mpmath's ``power``, independent of the tool); a true
+claim the algebra cannot see is inconclusive, never refuted; nothing is an error.
 """
 from __future__ import annotations
 
 from pathlib import Path
 
 CLAIMS = {
-    "8**(1/3) == 2": "inconclusive",
+    "8**(1/3) == 2": "inconclusive",  # true (the real cube root), beyond the algebra
+    "8**(1/3)*x == 3*x": "refuted",  # found by the fuzzer: was never refuted
     "x**1e400 == x**1e400": "proved",
     "2**x*3 == 3*2**x": "proved",
-    "2**x == 3**x": "inconclusive",
+    "2**x == 3**x": "refuted",  # x = 1: 2 != 3
+    "2**(x + 1) == 2*2**x + 1": "refuted",
+    "2**x*2**x == 4**x": "inconclusive",  # true, beyond the algebra
+    "(-8)**(1/3) == -2": "inconclusive",  # no real power of a negative base: never refuted
 }
 
 
 def test_unrepresentable_powers_are_read_end_to_end(cli, tmp_path: Path) -> None:
     assert cli.verdicts(tmp_path, "growth.py", CLAIMS) == CLAIMS
+
+
+def test_a_refuting_witness_agrees_with_mpmath(cli, tmp_path: Path) -> None:
+    import json
+
+    import mpmath
+
+    (tmp_path / "growth.py").write_text("# idealcheck: 2**x == 3**x\n")
+    claim = json.loads(cli("check", "--no-cache", "--format", "json", "growth.py", cwd=tmp_path).out)["claims"][0]
+    x = mpmath.mpf(claim["witness"]["values"]["x"])
+    assert mpmath.power(2, x) != mpmath.power(3, x)
+    assert mpmath.almosteq(mpmath.mpf(claim["witness"]["left"]), mpmath.power(2, x))

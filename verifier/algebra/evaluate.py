@@ -10,13 +10,14 @@ square root), every logarithm's argument is > 0, and tan needs cos != 0.
 """
 from __future__ import annotations
 
+import math
 from fractions import Fraction
 from typing import Any, Mapping, Sequence, Union
 
 import mpmath
 from mpmath import mp, mpf
 
-from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold, is_constant
+from verifier.model.expr import REAL_POWER, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold, is_constant
 from verifier.model.expr import has_opaque, variables  # noqa: F401  (re-exported for the evaluators' callers)
 from verifier.model.functions import (
     CONSTANTS,
@@ -56,6 +57,17 @@ def _arithmetic(op: str, a: Any, b: Any, divisor_is_zero: bool) -> Any:
             raise DomainError("division by zero")
         return a / b
     raise ValueError(f"unknown operator {op!r}")
+
+
+_MAX_REAL_POWER = 1000  # integer exponents evaluated exactly up to this size
+
+
+def _real_power_domain(base: Any, exponent: Any) -> None:
+    """``base ** exponent`` over the reals: a negative base needs an integer exponent, 0 a positive one."""
+    if base == 0 and exponent <= 0:
+        raise DomainError("division by zero: a non-positive power of 0")
+    if base < 0 and exponent != int(exponent):
+        raise DomainError("a fractional power of a negative number")
 
 
 def _opaque_error(node: Opaque) -> NotEvaluable:
@@ -112,6 +124,12 @@ class _ExactValues:
     def opaque(self, node: Opaque, args: Sequence[Fraction]) -> Fraction:
         if is_constant(node):
             return self._bounded(CONSTANTS[node.name].exact(()))
+        if node.name == REAL_POWER:
+            base, exponent = args
+            _real_power_domain(base, exponent)
+            if exponent.denominator != 1 or abs(exponent) > _MAX_REAL_POWER:
+                raise NotRational()  # left to the high-precision evaluation
+            return self.pow(Pow(Num(base), exponent), base)
         raise _opaque_error(node)
 
 
@@ -193,6 +211,14 @@ class _NumericValues:
     def opaque(self, node: Opaque, args: Sequence[mpf]) -> mpf:
         if is_constant(node):
             return self._finite(CONSTANTS[node.name].high_precision((), self.at))
+        if node.name == REAL_POWER:
+            base, exponent = args
+            if abs(base) <= self.at.eps and base != 0:
+                raise DomainError("a power of a number indistinguishable from 0")
+            _real_power_domain(base, exponent)
+            if base != 0 and abs(exponent) * (abs(mpmath.mag(base)) + 1) > _MAGNITUDE_LIMIT:
+                raise DomainError("overflow")
+            return self._finite(mpmath.power(base, exponent) if base > 0 else base ** int(exponent))
         raise _opaque_error(node)
 
 
@@ -256,6 +282,10 @@ class _FloatValues:
     def opaque(self, node: Opaque, args: Sequence[float]) -> float:
         if is_constant(node):
             return CONSTANTS[node.name].ieee(())
+        if node.name == REAL_POWER:
+            base, exponent = args
+            _real_power_domain(base, exponent)
+            return math.pow(base, exponent)  # OverflowError / ValueError like the other IEEE operations
         raise _opaque_error(node)
 
 

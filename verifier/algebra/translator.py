@@ -44,7 +44,7 @@ from verifier.algebra.angles import (
 from verifier.algebra.polytext import format_poly, parenthesized, poly_key
 from verifier.algebra.radicands import split_constant_radicand
 from verifier.model.explanation import AuxKind, AuxVariable
-from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold
+from verifier.model.expr import REAL_POWER, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold
 from verifier.model.functions import FUNCTIONS, DomainError, NotRational, rational_sqrt
 
 GeneratorKind = Literal["equation", "nonzero", "inverse", "radical", "trig", "exp"]
@@ -292,7 +292,8 @@ class Translator:
         """One variable per opaque name and distinct translated arguments (pi is ``pi``)."""
         args = [self.lift(a) for a in args]
         key = ("opaque", name, tuple(poly_key(a) for a in args))
-        shown = f"{name}({', '.join(self.printed(a) for a in args)})" if args else name
+        spelled = "pow" if name == REAL_POWER else name
+        shown = f"{spelled}({', '.join(self.printed(a) for a in args)})" if args else name
         return self.atom(key, "f", shown, "opaque")
 
     def opaque_call(self, function: str, args: Sequence[PolyElement]) -> PolyElement:

@@ -12,7 +12,7 @@ from fractions import Fraction
 from typing import Sequence, Union
 
 from verifier.claims.claim_syntax import ClaimSource, ClaimSyntaxError, check_brackets, one_line
-from verifier.model.expr import PI, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold
+from verifier.model.expr import PI, REAL_POWER, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold
 from verifier.model.functions import (
     BARE_ONLY,
     CALL_SPELLINGS,
@@ -265,7 +265,7 @@ class ExprConverter:
         exponent_expr = self._convert(exponent_node)
         exponent = self.fold(exponent_expr, exponent_node)
         if exponent is None or exponent.denominator not in (1, 2) or abs(exponent) > MAX_EXPONENT:
-            return Opaque("pow", (base, exponent_expr))
+            return Opaque(REAL_POWER, (base, exponent_expr))
         return Pow(base, exponent)
 
     def fold(self, expr: Expr, node: ast.AST) -> Fraction | None:
@@ -432,7 +432,8 @@ class _Printer:
         return _Shown(f"{node.function}({', '.join(arg.at(0) for arg in args)})")
 
     def opaque(self, node: Opaque, args: Sequence[_Shown]) -> _Shown:
-        return _Shown(f"{node.name}({', '.join(arg.at(0) for arg in args)})")
+        name = "pow" if node.name == REAL_POWER else node.name
+        return _Shown(f"{name}({', '.join(arg.at(0) for arg in args)})")
 
 
 class _ConstantExponent:
