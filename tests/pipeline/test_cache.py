@@ -183,10 +183,10 @@ def test_results_cut_short_by_a_limit_are_not_stored(tmp_path: Path, decided) ->
     assert cache.entry_path(TRUE, inconclusive=True).exists()
 
 
-# x = 5 under x**2 + 1 = 0: the condition has no real point, so there is nothing to refute or prove
-OPEN = Claim(id="k.c:4:1", location=Location("k.c", 4, 1), kind="expression", text="x == 5 given x**2 + 1 == 0",
-             obligations=(Obligation(x, Num(Fraction(5)), (Condition("==", BinOp("+", square(x), Num(Fraction(1))),
-                                                                     Num(Fraction(0)), "x**2 + 1 == 0"),)),),
+# x = 5 under x**4 + 1 = 0: the condition has no real point, so there is nothing to refute or prove
+OPEN = Claim(id="k.c:4:1", location=Location("k.c", 4, 1), kind="expression", text="x == 5 given x**4 + 1 == 0",
+             obligations=(Obligation(x, Num(Fraction(5)), (Condition("==", BinOp("+", Pow(x, Fraction(4)), Num(Fraction(1))),
+                                                                     Num(Fraction(0)), "x**4 + 1 == 0"),)),),
              dependencies=("k.c",))
 
 

@@ -25,6 +25,7 @@ from verifier.algebra.facts import nonnegative_symbols
 from verifier.algebra.groebner import GroebnerResult, membership_cofactors, reduce
 from verifier.algebra.kernel.checkers import contradicts, shift_contradicts, shifted_negation
 from verifier.algebra.kernel.polynomial import fraction_text, poly_to_data, sign_pattern_ok
+from verifier.algebra.squares import quadratic_squares
 from verifier.algebra.translate import Translation
 from verifier.model.certificate import (
     PolyData,
@@ -232,6 +233,11 @@ def find_sign_contradiction(tr: Translation, basis: GroebnerResult | None, *,
     return None
 
 
+# multiples c of a quadratic equation g tried in P = c*g - f**2: if some c works, every larger one does
+# (g itself is then a sum of squares), so powers of two up to 2**20 cover the scales that occur
+_SCALES = tuple(sign * 2**k for k in range(21) for sign in (1, -1))
+
+
 def find_real_square(tr: Translation, basis: GroebnerResult, *,
                      deadline: float | None) -> RealSquareCertificate | None:
     """f**2 + P in the ideal with P >= 0 by its sign pattern: then f**2 == -P <= 0, so f == 0 over the
@@ -243,14 +249,27 @@ def find_real_square(tr: Translation, basis: GroebnerResult, *,
     positive = nonnegative_symbols(tr)
     _, remainder = reduce(f**2, basis.basis, deadline=deadline)
     p = -remainder
+    squares: list[tuple[Fraction, PolyElement]] = []
     if not sign_pattern_ok(p, {symbols.index(n) for n in positive}):
-        return None
+        found = None
+        # P = -(normal form of f**2), else P = c*g - f**2 for a quadratic equation g: an exact sum of
+        # squares ((y + 2*z)**2 and the like), found by rational LDL^T
+        for candidate in [p] + [c * g.poly - f**2 for g in tr.generators if g.kind == "equation"
+                                for c in _SCALES if g.poly.degree() <= 2 >= f.degree() * 2]:
+            found = quadratic_squares(candidate)
+            if found is not None:
+                p = candidate
+                break
+        if found is None:
+            return None
+        squares = found
     cofactors = membership_cofactors(f**2 + p, basis, deadline=deadline)
     if cofactors is None:
         return None
     names, target, generators = _claim_part(tr)
     return RealSquareCertificate(names, target, generators,
-                                 tuple(poly_to_data(c) for c in cofactors), poly_to_data(p), positive)
+                                 tuple(poly_to_data(c) for c in cofactors), poly_to_data(p), positive,
+                                 tuple((fraction_text(w), poly_to_data(q)) for w, q in squares))
 
 
 def find_shift_contradiction(tr: Translation) -> ShiftContradictionCertificate | None:

@@ -61,9 +61,10 @@ class ConjugateCertificate:
 
 @dataclass(frozen=True)
 class RealSquareCertificate:
-    """``target**2 + remainder == sum(cofactors[i] * generators[i])`` and ``remainder`` is >= 0 by its sign
-    pattern (positive coefficients, odd powers only of ``nonnegative_symbols``): so target**2 <= 0, i.e.
-    target == 0 at every real point of the conditions."""
+    """``target**2 + remainder == sum(cofactors[i] * generators[i])`` and ``remainder`` is >= 0: it is
+    ``sum(w * s**2 for w, s in squares)`` (weights >= 0) plus a rest >= 0 by its sign pattern (positive
+    coefficients, odd powers only of ``nonnegative_symbols``).  So target**2 <= 0, i.e. target == 0 at
+    every real point of the conditions."""
 
     kind: ClassVar[str] = "real_square"
     symbols: tuple[str, ...]
@@ -72,6 +73,7 @@ class RealSquareCertificate:
     cofactors: tuple[PolyData, ...]
     remainder: PolyData
     nonnegative_symbols: tuple[str, ...]
+    squares: tuple[tuple[str, PolyData], ...] = ()  # (weight "p/q", polynomial) of the squares in remainder
 
 
 @dataclass(frozen=True)

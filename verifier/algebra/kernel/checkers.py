@@ -125,7 +125,12 @@ def check_real_square(cert: RealSquareCertificate) -> Premises:
     remainder = data_to_poly(cert.remainder, ring)
     total = combination(polys(cert.cofactors, ring), polys(cert.generators, ring), ring)
     _require(target**2 + remainder == total, "target**2 + remainder is not in the ideal")
-    _require(sign_pattern_ok(remainder, positive), "the remainder may be negative")
+    rest = remainder
+    for weight_text, square in cert.squares:
+        weight = strict_fraction(weight_text)
+        _require(weight >= 0, "a square with a negative weight")
+        rest -= rational(weight) * data_to_poly(square, ring) ** 2
+    _require(sign_pattern_ok(rest, positive), "the remainder may be negative")
     return Premises(cert.nonnegative_symbols)
 
 
