@@ -31,21 +31,13 @@ from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
 from verifier.algebra import logarithms
-from verifier.algebra.angles import (
-    MAX_ANGLE_MULTIPLE,
-    MIN_ANGLE_STEP,
-    PI_VALUES,
-    RootSum,
-    has_scaled_call,
-    multiple_angle,
-    scaled,
-    scaled_calls,
-)
+from verifier.algebra.angles import (MAX_ANGLE_MULTIPLE, MIN_ANGLE_STEP, PI_VALUES, RootSum, has_scaled_call,
+                                     multiple_angle, scaled, scaled_calls)
 from verifier.algebra.polytext import format_poly, parenthesized, poly_key
 from verifier.algebra.radicands import split_constant_radicand
 from verifier.model.explanation import AuxKind, AuxVariable
 from verifier.model.expr import REAL_POWER, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold
-from verifier.model.functions import FUNCTIONS, DomainError, NotRational, rational_sqrt
+from verifier.model.functions import FUNCTIONS, DomainError, NotRational, rational_power, rational_sqrt
 
 GeneratorKind = Literal["equation", "nonzero", "inverse", "radical", "trig", "exp"]
 
@@ -291,6 +283,10 @@ class Translator:
     def opaque(self, name: str, args: Sequence[PolyElement]) -> PolyElement:
         """One variable per opaque name and distinct translated arguments (pi is ``pi``)."""
         args = [self.lift(a) for a in args]
+        if name == REAL_POWER and all(a.is_ground for a in args):  # 8**(1/3) is 2, 4**(-1/2) is 1/2
+            value = rational_power(*(Fraction(str(a.LC)) if a else Fraction(0) for a in args))
+            if value is not None:
+                return self.const(value)
         key = ("opaque", name, tuple(poly_key(a) for a in args))
         spelled = "pow" if name == REAL_POWER else name
         shown = f"{spelled}({', '.join(self.printed(a) for a in args)})" if args else name

@@ -46,6 +46,32 @@ def rational_sqrt(value: Fraction) -> Fraction | None:
     return None
 
 
+def rational_power(base: Fraction, exponent: Fraction) -> Fraction | None:
+    """``base ** exponent`` over the reals when it is rational (``8**(1/3)`` is 2), else None (also outside the
+    domain: a non-positive power of 0, a fractional power of a negative number - undefined in Python and
+    numpy too - or an exponent or base too large to bother)."""
+    p, q = exponent.numerator, exponent.denominator
+    if abs(p) > 1000 or q > 1000 or (base == 0 and p <= 0) or (base < 0 and q > 1):
+        return None
+    if q == 1:
+        return base**p
+    roots = []
+    for part in (abs(base.numerator), base.denominator):
+        if part.bit_length() > 256:
+            return None
+        root = round(math.exp(math.log(part) / q)) if part else 0
+        for _ in range(64):  # Newton's step on integers: the float estimate is off for large parts
+            better = ((q - 1) * root + part // root ** (q - 1)) // q if root else 0
+            if abs(better - root) <= 1:
+                break
+            root = better
+        exact = next((r for r in (root - 1, root, root + 1) if r >= 0 and r**q == part), None)
+        if exact is None:
+            return None
+        roots.append(exact)
+    return (Fraction(roots[0], roots[1]) * (-1 if base < 0 else 1)) ** p
+
+
 def exact_sqrt(value: Fraction) -> Fraction:
     root = rational_sqrt(value)
     if root is None:
