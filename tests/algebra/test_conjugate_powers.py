@@ -54,7 +54,8 @@ def _certificate(text: str) -> ConjugateCertificate:
 
 
 def test_the_certificate_states_the_linear_form_and_its_cofactors() -> None:
-    text = PROVED[0]
+    # written as u - y == 0: a condition between two bare variables is substituted before any search
+    text = "sqrt(y)**3 == sqrt(u)**3 given u - y == 0"
     cert = _certificate(text)
     facts = claim_facts(translate(claim_of(text).obligations[0]))
     assert cert.form != cert.target and any(cert.form_cofactors)

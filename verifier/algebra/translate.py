@@ -72,6 +72,16 @@ def _substitute_constants(obligation: Obligation) -> Obligation:
         if isinstance(pair[0], Var) and _is_closed(pair[1]) and pair[0].name not in constants:
             constants[pair[0].name] = pair[1]
             defining.add(index)
+    # v == w between two variables: w stands for v too (sqrt(u)**3 - 3*sqrt(u) given u == x then sees one
+    # root); the representative of each class is its first name in sorted order
+    same: dict[str, str] = {}
+    for index, cond in enumerate(obligation.conditions):
+        if cond.relation == "==" and isinstance(cond.left, Var) and isinstance(cond.right, Var):
+            a, b = (_representative(same, cond.left.name), _representative(same, cond.right.name))
+            if a != b and a not in constants and b not in constants:
+                same[max(a, b)] = min(a, b)
+                defining.add(index)
+    constants.update({name: Var(_representative(same, name)) for name in same})
     if not constants:
         return obligation
     conditions = tuple(
@@ -81,6 +91,12 @@ def _substitute_constants(obligation: Obligation) -> Obligation:
     )
     return replace(obligation, left=substitute(obligation.left, constants),
                    right=substitute(obligation.right, constants), conditions=conditions)
+
+
+def _representative(same: dict[str, str], name: str) -> str:
+    while name in same:
+        name = same[name]
+    return name
 
 
 def _is_closed(expr: Expr) -> bool:
