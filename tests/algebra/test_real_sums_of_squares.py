@@ -24,6 +24,11 @@ def test_sums_of_squares_decide_the_claims(cli, tmp_path):
         # conditions with no real point (issue 13's empty real conditions): true vacuously over the reals
         "a == b given a**2 + b**2 + 1 == 0": "proved",
         "x == 5 given x**2 + 1 == 0": "proved",
+        # a real root of a factor whose cofactor is positive: x**3 - 8 == (x - 2)*((x + 1)**2 + 3)
+        "x == 2 given x**3 == 8": "proved",
+        "x == 1 given x**3 - 2*x**2 + 2*x - 1 == 0": "proved",  # (x - 1)*(x**2 - x + 1)
+        "x + y == 2 given (x + y - 2)*(x**2 + y**2 + 1) == 0": "proved",
+        "x == 1 given x**3 - x == 0": "not proved",  # x = 0 and x = -1 are real roots too
         "a + b == 2 given 2*a**2 + 2*b**2 - 4*a - 4*b + 4 == 0": "proved",  # (a - 1)**2 + (b - 1)**2 == 0
         # false: x = -1, y = -2, z = 1 satisfies the condition (1 - 2 + 4 - 8 + 5 == 0) and x != z
         "x == z given x**2 + 2*x*z + y**2 + 4*y*z + 5*z**2 == 0": "not proved",

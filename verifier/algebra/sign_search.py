@@ -238,6 +238,28 @@ def find_sign_contradiction(tr: Translation, basis: GroebnerResult | None, *,
 _SCALES = tuple(sign * 2**k for k in range(21) for sign in (1, -1))
 
 
+def _degree(p: PolyElement) -> int:
+    return max((sum(monom) for monom in p.monoms()), default=0)
+
+
+def _positive_factor_squares(tr: Translation, f: PolyElement) -> list[tuple[Fraction, PolyElement]] | None:
+    """An equation g == f*q with q == sum(d*l**2) + c, c > 0 (x**3 == 8 is (x - 2)*((x + 1)**2 + 3)): then
+    f**2 + sum((d/c)*(f*l)**2) == f*g/c lies in the ideal, so f == 0 over the reals."""
+    for g in tr.generators:
+        if g.kind != "equation" or not f or _degree(g.poly) > _degree(f) + 2:
+            continue
+        quotients, rest = g.poly.div([f])
+        if rest or not quotients[0]:
+            continue
+        for q in (quotients[0], -quotients[0]):
+            found = quadratic_squares(q, constant_last=True)
+            if found is None or not found or found[-1][1] != f.ring.one or found[-1][0] <= 0:
+                continue
+            constant = found[-1][0]
+            return [(weight / constant, f * linear) for weight, linear in found[:-1]]
+    return None
+
+
 def find_real_square(tr: Translation, basis: GroebnerResult, *,
                      deadline: float | None) -> RealSquareCertificate | None:
     """f**2 + P in the ideal with P >= 0 by its sign pattern: then f**2 == -P <= 0, so f == 0 over the
@@ -255,13 +277,16 @@ def find_real_square(tr: Translation, basis: GroebnerResult, *,
         # P = -(normal form of f**2), else P = c*g - f**2 for a quadratic equation g: an exact sum of
         # squares ((y + 2*z)**2 and the like), found by rational LDL^T
         for candidate in [p] + [c * g.poly - f**2 for g in tr.generators if g.kind == "equation"
-                                for c in _SCALES if g.poly.degree() <= 2 >= f.degree() * 2]:
+                                for c in _SCALES if _degree(g.poly) <= 2 >= _degree(f) * 2]:
             found = quadratic_squares(candidate)
             if found is not None:
                 p = candidate
                 break
         if found is None:
-            return None
+            found = _positive_factor_squares(tr, f)
+            if found is None:
+                return None
+            p = sum((f.ring(w.numerator) / w.denominator * q**2 for w, q in found), f.ring.zero)
         squares = found
     cofactors = membership_cofactors(f**2 + p, basis, deadline=deadline)
     if cofactors is None:

@@ -15,22 +15,26 @@ from sympy.polys.rings import PolyElement
 MAX_VARIABLES = 12  # the matrix is (n + 1) x (n + 1); larger quadratics are left undecided
 
 
-def quadratic_squares(p: PolyElement) -> list[tuple[Fraction, PolyElement]] | None:
-    """``[(d, l), ...]`` with ``p == sum(d * l**2)``, every d > 0 and l linear, or None."""
+def quadratic_squares(p: PolyElement, constant_last: bool = False) -> list[tuple[Fraction, PolyElement]] | None:
+    """``[(d, l), ...]`` with ``p == sum(d * l**2)``, every d > 0 and l linear, or None.
+
+    ``constant_last``: the monomial 1 is eliminated last, so a final ``(c, 1)`` with c > 0 says p >= c > 0.
+    """
     if not p or any(sum(monom) > 2 for monom in p.monoms()):
         return None
     ring = p.ring
     used = sorted({i for monom in p.monoms() for i, e in enumerate(monom) if e})
     if len(used) > MAX_VARIABLES:
         return None
-    basis = [ring.one] + [ring.gens[i] for i in used]
+    basis = [ring.gens[i] for i in used] + [ring.one] if constant_last else [ring.one] + [ring.gens[i] for i in used]
     size = len(basis)
     matrix = [[Fraction(0)] * size for _ in range(size)]
-    position = {i: k + 1 for k, i in enumerate(used)}
+    position = {i: k + (0 if constant_last else 1) for k, i in enumerate(used)}
+    one = size - 1 if constant_last else 0  # the row of the monomial 1
     for monom, coeff in p.terms():
         c = Fraction(int(coeff.numerator), int(coeff.denominator))
         factors = [position[i] for i, e in enumerate(monom) for _ in range(e)]
-        a, b = (factors + [0, 0])[:2]
+        a, b = (factors + [one, one])[:2]
         if a == b:
             matrix[a][a] += c
         else:
