@@ -98,19 +98,19 @@ def _import_bindings(small: cst.Import | cst.ImportFrom, line: int) -> dict[str,
     bound: dict[str, Binding] = {}
     if isinstance(small, cst.Import):
         for alias in small.names:
-            dotted = _dotted(alias.name)
-            if dotted is None:
+            path = dotted(alias.name)
+            if path is None:
                 return None
             if alias.asname is not None and isinstance(alias.asname.name, cst.Name):
-                name, imported = alias.asname.name.value, ModuleImport(dotted)
+                name, imported = alias.asname.name.value, ModuleImport(path)
             else:
-                name = dotted.split(".")[0]
+                name = path.split(".")[0]
                 imported = ModuleImport(name)
             bound[name] = Binding(imported, import_meaning(imported), line, f"`{import_text(imported, name)}`")
         return bound
     if isinstance(small.names, cst.ImportStar):
         return None
-    base = _dotted(small.module) if small.module is not None else ""
+    base = dotted(small.module) if small.module is not None else ""
     if base is None:
         return None
     prefix = "." * len(small.relative)
@@ -125,11 +125,12 @@ def _import_bindings(small: cst.Import | cst.ImportFrom, line: int) -> dict[str,
     return bound
 
 
-def _dotted(node: cst.BaseExpression) -> str | None:
+def dotted(node: cst.BaseExpression) -> str | None:
+    """``a.b.c`` for a chain of names, else None."""
     if isinstance(node, cst.Name):
         return node.value
     if isinstance(node, cst.Attribute):
-        head = _dotted(node.value)
+        head = dotted(node.value)
         return None if head is None else f"{head}.{node.attr.value}"
     return None
 
@@ -159,7 +160,7 @@ def _branch(statements: tuple[cst.CSTNode, ...] | list[cst.CSTNode], line_of: Li
         for small in stmt.body:
             line = line_of(small)
             if isinstance(small, cst.ImportFrom) and isinstance(small.names, cst.ImportStar):
-                module = _dotted(small.module) if small.module is not None else ""
+                module = dotted(small.module) if small.module is not None else ""
                 if module is None:
                     branch.opaque = True
                     return branch
@@ -184,10 +185,10 @@ def _branch(statements: tuple[cst.CSTNode, ...] | list[cst.CSTNode], line_of: Li
             elif isinstance(small, cst.Pass) or (isinstance(small, cst.Expr) and isinstance(
                     small.value, (cst.SimpleString, cst.ConcatenatedString))):
                 continue
-            elif isinstance(small, cst.Expr) and isinstance(small.value, cst.Call) and _dotted(small.value.func):
+            elif isinstance(small, cst.Expr) and isinstance(small.value, cst.Call) and dotted(small.value.func):
                 # a call for its effect (a warning, a message, np.seterr): it binds nothing, but a method
                 # call on a module-level name may change that object
-                head = (_dotted(small.value.func) or "").split(".")
+                head = (dotted(small.value.func) or "").split(".")
                 if len(head) > 1:
                     branch.touched.append(head[0])
                 continue

@@ -12,6 +12,7 @@ import libcst as cst
 from libcst.metadata import CodeRange, MetadataWrapper, PositionProvider
 
 from verifier.claims.frontends.python.fallbacks import (
+    dotted,
     Binding,
     Import,
     MemberImport,
@@ -84,15 +85,6 @@ def _global_names(module: cst.Module) -> set[str]:
 
     module.visit(Visitor())
     return names
-
-
-def dotted(node: cst.BaseExpression) -> str | None:
-    if isinstance(node, cst.Name):
-        return node.value
-    if isinstance(node, cst.Attribute):
-        head = dotted(node.value)
-        return None if head is None else f"{head}.{node.attr.value}"
-    return None
 
 
 def _index_statement(info: ModuleInfo, stmt: cst.CSTNode, top: bool) -> None:
