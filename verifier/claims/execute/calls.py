@@ -170,7 +170,7 @@ class CallEvaluator(Evaluator):
                     result.append(_noted(after, self.builtin_value(name, args, keywords, line, False, frame.ident),
                                          line))
                 else:
-                    result.extend(self._math_call(name, node, after, frame, split_pieces=False))
+                    result.extend(self._math_of(name, args, keywords, after, frame, line))
                 continue
             for tests, value in split:
                 states = [after]
@@ -179,40 +179,35 @@ class CallEvaluator(Evaluator):
                 result.extend((s, value) for s in states)
         return result
 
-    def _math_call(self, name: str, node: ir.Invoke, state: State, frame: Frame, split_pieces: bool = True
-                   ) -> Alternatives:
-        line = node.line
-        if split_pieces and name in PIECEWISE:
+    def _math_call(self, name: str, node: ir.Invoke, state: State, frame: Frame) -> Alternatives:
+        if name in PIECEWISE:
             return self._piecewise_call(name, node, state, frame, builtin=False)
-        result: Alternatives = []
-        for after, args, keywords in self.arguments(node, state, frame):
-            if keywords:
-                result.append((after, Unknown(f"keyword arguments to {name} at line {line} are not supported")))
-                continue
-            if any(isinstance(a, Seq) for a in args):
-                value = self.bounded(self.array_call(name, args, line), line)
-                if isinstance(value, Seq) and value.kind is ARRAY:
-                    value = Seq(value.items, value.kind, value.ident, frame.ident)
-                result.append((after, value))
-                continue
-            filled = self.zeros(name, args, frame.ident)
-            if filled is not None:
-                result.append((after, filled))
-                continue
-            exprs = [as_expr(a) for a in args]
-            bad = next((a for a, e in zip(args, exprs) if e is None), None)
-            if bad is not None:
-                result.append((after, bad if isinstance(bad, Unknown) else
-                               Unknown(f"{name} of a tuple, list or None at line {line} is not supported")))
-                continue
-            operands = [e for e in exprs if e is not None]
-            computed = self.math_value(name, operands, line)
-            if computed is None:
-                note = f"opaque call {name}(...) at line {line}"
-                result.append((after.with_note(note), Opaque(name, tuple(operands))))
-            else:
-                result.append(_noted(after, self.bounded(computed, line), line))
-        return result
+        return [alternative for after, args, keywords in self.arguments(node, state, frame)
+                for alternative in self._math_of(name, args, keywords, after, frame, node.line)]
+
+    def _math_of(self, name: str, args: list[Value], keywords: dict[str, Value], after: State, frame: Frame,
+                 line: int) -> Alternatives:
+        """The value of the math function ``name`` at arguments already evaluated on the path ``after``."""
+        if keywords:
+            return [(after, Unknown(f"keyword arguments to {name} at line {line} are not supported"))]
+        if any(isinstance(a, Seq) for a in args):
+            value = self.bounded(self.array_call(name, args, line), line)
+            if isinstance(value, Seq) and value.kind is ARRAY:
+                value = Seq(value.items, value.kind, value.ident, frame.ident)
+            return [(after, value)]
+        filled = self.zeros(name, args, frame.ident)
+        if filled is not None:
+            return [(after, filled)]
+        exprs = [as_expr(a) for a in args]
+        bad = next((a for a, e in zip(args, exprs) if e is None), None)
+        if bad is not None:
+            return [(after, bad if isinstance(bad, Unknown) else
+                     Unknown(f"{name} of a tuple, list or None at line {line} is not supported"))]
+        operands = [e for e in exprs if e is not None]
+        computed = self.math_value(name, operands, line)
+        if computed is None:
+            return [(after.with_note(f"opaque call {name}(...) at line {line}"), Opaque(name, tuple(operands)))]
+        return [_noted(after, self.bounded(computed, line), line)]
 
     # -- inlining
 
