@@ -69,6 +69,17 @@ class Cli:
         return {claim["text"]: claim["verdict"] for claim in json.loads(result.out)["claims"]}
 
 
+def write_file(root: Path, relative: str, content: str | bytes) -> Path:
+    """Write ``content`` (text as UTF-8, or bytes) to ``root/relative``, making the folders."""
+    path = root / relative
+    path.parent.mkdir(parents=True, exist_ok=True)
+    if isinstance(content, bytes):
+        path.write_bytes(content)
+    else:
+        path.write_text(content, encoding="utf-8")
+    return path
+
+
 @pytest.fixture(scope="session")
 def cli() -> Cli:
     return Cli()

@@ -11,18 +11,11 @@ import json
 from pathlib import Path
 from typing import Any
 
+from conftest import write_file as write  # re-exported for the CLI tests
+
 TRUE_PY = "# idealcheck: (a + b)**2 == a**2 + 2*a*b + b**2\n"
 FALSE_PY = "# idealcheck: (a + b)**2 == a**2 + b**2\n"  # a false claim: must never be decided when skipped
 CYRILLIC_COMMENT = "# Программа для волн\n"  # "a program for waves"
-
-
-def write(root: Path, relative: str, content: str | bytes) -> None:
-    path = root / relative
-    path.parent.mkdir(parents=True, exist_ok=True)
-    if isinstance(content, bytes):
-        path.write_bytes(content)
-    else:
-        path.write_text(content, encoding="utf-8")
 
 
 def scratch_project(root: Path) -> None:

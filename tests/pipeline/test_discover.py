@@ -12,6 +12,7 @@ from typing import TYPE_CHECKING
 
 import pytest
 
+from conftest import write_file
 from verifier.pipeline.discover import DiscoveryError, changed_since, collect, matches_glob, staged_paths
 
 if TYPE_CHECKING:
@@ -19,13 +20,7 @@ if TYPE_CHECKING:
 
 
 def write(root: Path, relative: str, content: str | bytes = "// idealcheck: a == a\n") -> Path:
-    path = root / relative
-    path.parent.mkdir(parents=True, exist_ok=True)
-    if isinstance(content, bytes):
-        path.write_bytes(content)
-    else:
-        path.write_text(content, encoding="utf-8")
-    return path
+    return write_file(root, relative, content)
 
 
 def paths(discovery) -> list[str]:
