@@ -133,3 +133,31 @@ def test_a_bad_configuration_raises_config_error(tmp_path: Path) -> None:
 def test_the_stable_names() -> None:
     assert set(api.__all__) >= {"check_paths", "decide_claim", "render_report", "find_claims", "decide_claims",
                                 "load_config", "RunResult", "ClaimResult", "ClaimSet"}
+
+
+def _accept_refuted(project: Path, *extra: dict[str, str]) -> None:
+    """A baseline beside the pyproject.toml that accepts every refuted claim of the project, and ``extra``."""
+    refuted = [{"path": e.path, "claim": c.text, "verdict": "refuted", "reason": "kept for the tutorial"}
+               for e in EXPECTED if e.verdict == "refuted"
+               for c in api.find_claims([e.path], cwd=project, cache=False, baseline=False).claims
+               if (c.location.cell, c.location.line) == (e.cell, e.line)]
+    assert len(refuted) == 3
+    document = {"idealcheck_baseline": 1, "claims": refuted + list(extra)}
+    (project / ".idealcheck-baseline.json").write_text(json.dumps(document, indent=1), encoding="utf-8")
+
+
+def test_the_baseline_applies_as_on_the_command_line(project: Path) -> None:
+    stale = {"path": "src/kernels.py", "claim": "q == q + 1", "verdict": "refuted", "reason": ""}
+    _accept_refuted(project, stale)
+    accepted = api.check_paths(cwd=project, cache=False, in_process=True)
+    assert accepted.ok and accepted.counts["refuted"] == 3
+    assert all(v.claim.expected is not None for v in accepted.with_verdict("refuted"))
+    found = api.find_claims(cwd=project, cache=False)
+    assert [s.entry.claim for s in found.stale] == ["q == q + 1"]
+    assert not api.check_paths(cwd=project, cache=False, in_process=True, baseline=False).ok
+    moved = project / "ci-accepted.json"
+    (project / ".idealcheck-baseline.json").rename(moved)
+    assert not api.check_paths(cwd=project, cache=False, in_process=True).ok  # the default file is gone
+    assert api.check_paths(cwd=project, cache=False, in_process=True, baseline="ci-accepted.json").ok
+    with pytest.raises(api.BaselineError, match="no such file: nowhere.json"):
+        api.find_claims(cwd=project, cache=False, baseline="nowhere.json")

@@ -176,3 +176,22 @@ def test_a_claim_accepted_by_its_expect_clause_is_skipped_and_a_changed_one_fail
     assert re.search(r"^SKIPPED .*inconclusive as expected: no real point", output, re.MULTILINE), output
     assert re.search(r"^FAILED src/open.c::y == 5 given y - 5 == 0", output, re.MULTILINE), output
     assert "now proved: remove the `expect` marker" in output
+
+
+def test_the_baseline_accepts_known_results_and_warns_of_stale_entries(project: Path) -> None:
+    refuted = [e for e in EXPECTED if e.path == "src/kernels.py" and e.verdict == "refuted"]
+    entries = [{"path": "src/kernels.py", "claim": "(a + b)**2 == a**2 + b**2", "verdict": "refuted"},
+               {"path": "src/kernels.py", "claim": "q == q + 1", "verdict": "refuted"}]
+    (project / ".idealcheck-baseline.json").write_text(
+        '{"idealcheck_baseline": 1, "claims": [\n' + ",\n".join(
+            "{" + ", ".join(f'"{k}": "{v}"' for k, v in e.items()) + "}" for e in entries) + "\n]}\n")
+    result = _pytest(project, "--idealcheck")
+    output = result.stdout + result.stderr
+    assert result.returncode == 1, output  # the other refuted claims still fail
+    assert f"PASSED {_node(refuted[0])}" not in output and f"FAILED {_node(refuted[0])}" not in output
+    assert re.search(r"^SKIPPED .*idealcheck refuted, accepted by the baseline .idealcheck-baseline.json$",
+                     output, re.MULTILINE), output
+    assert "stale baseline entry: no claim `q == q + 1` in src/kernels.py" in output
+    (project / ".idealcheck-baseline.json").write_text("{not json")
+    broken = _pytest(project, "--idealcheck")
+    assert broken.returncode != 0 and "idealcheck: baseline error:" in broken.stdout + broken.stderr

@@ -24,6 +24,7 @@ from typing import Literal, Union
 from verifier import __version__
 from verifier.model.claim import Claim, ExtractionContext
 from verifier.model.verdict import Verdict, VerdictName
+from verifier.pipeline.baseline import Baseline, BaselineError, StaleEntry, baseline_for_check
 from verifier.pipeline.config import Config, ConfigError
 from verifier.pipeline.config import load_config as _load_config
 from verifier.pipeline.discover import DiscoveryError
@@ -40,7 +41,7 @@ DECIDED_CLAIM_PATH = "<claim>"  # the path shown for a claim given to ``decide_c
 _SEVERITY: dict[str, int] = {"error": 3, "refuted": 2, "inconclusive": 1, "proved": 0}
 
 __all__ = [
-    "ClaimResult", "ClaimSet", "ConfigError", "DiscoveryError", "RunResult",
+    "BaselineError", "ClaimResult", "ClaimSet", "ConfigError", "DiscoveryError", "RunResult",
     "check_paths", "decide_claim", "decide_claims", "find_claims", "load_config", "render_report",
 ]
 
@@ -94,6 +95,7 @@ class ClaimSet:
     claims: tuple[Claim, ...]
     request: CheckRequest = field(repr=False)
     texts: Mapping[str, str] = field(repr=False, compare=False, default_factory=dict)
+    stale: tuple[StaleEntry, ...] = ()  # baseline entries that match no claim found
 
     @property
     def on_inconclusive(self) -> OnInconclusive:
@@ -152,13 +154,18 @@ def find_claims(
     cache: bool = True,
     on_inconclusive: OnInconclusive | None = None,
     in_process: bool = False,
+    baseline: PathArg | bool = True,
 ) -> ClaimSet:
     """The claims under ``paths`` (files or folders, relative to ``cwd``), read but not decided.
 
     ``config`` is a ``Config``, the path of a pyproject.toml, or None for the nearest one (searched from
     the first path).  The limits default to the configuration's; ``cache=False`` neither reads nor writes
     the result cache.  A file argument selects the claims that depend on it, as on the command line.
-    Raises ``ConfigError`` for a bad configuration and ``DiscoveryError`` when the files cannot be listed.
+    ``baseline`` is the accepted-results file to apply (relative to ``cwd``), ``True`` for the one
+    ``idealcheck check`` would use (the configured one, else the default file when it exists) or ``False``
+    for none; its entries that match no claim are in ``ClaimSet.stale``.
+    Raises ``ConfigError`` for a bad configuration, ``BaselineError`` for an unusable baseline and
+    ``DiscoveryError`` when the files cannot be listed.
     """
     base = Path(cwd) if cwd is not None else Path.cwd()
     given = tuple(str(p) for p in paths) if paths is not None else ()
@@ -181,10 +188,18 @@ def find_claims(
         cache_dir=_cache_dir(settings, base) if cache else None,
         options=options,
         on_inconclusive=on_inconclusive or settings.on_inconclusive,
+        baseline=_baseline(baseline, settings, base),
     )
     warm_up_workers(options)
-    claims, texts, _skipped = gather_claims(request)
-    return ClaimSet(tuple(claims), request, texts)
+    stale: list[StaleEntry] = []
+    claims, texts, _skipped = gather_claims(request, stale_out=stale)
+    return ClaimSet(tuple(claims), request, texts, tuple(stale))
+
+
+def _baseline(baseline: PathArg | bool, config: Config, cwd: Path) -> Baseline | None:
+    if baseline is False:
+        return None
+    return baseline_for_check(config, cwd, None if baseline is True else Path(baseline))
 
 
 def decide_claims(claim_set: ClaimSet, claims: Sequence[Claim] | None = None) -> tuple[Verdict, ...]:
@@ -205,10 +220,11 @@ def check_paths(
     cache: bool = True,
     on_inconclusive: OnInconclusive | None = None,
     in_process: bool = False,
+    baseline: PathArg | bool = True,
 ) -> RunResult:
     """Find and decide every claim under ``paths`` (see ``find_claims`` for the arguments)."""
     found = find_claims(paths, config, cwd=cwd, timeout=timeout, memory_mb=memory_mb, jobs=jobs, cache=cache,
-                        on_inconclusive=on_inconclusive, in_process=in_process)
+                        on_inconclusive=on_inconclusive, in_process=in_process, baseline=baseline)
     return RunResult(decide_claims(found), found.on_inconclusive)
 
 

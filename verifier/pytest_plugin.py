@@ -8,7 +8,8 @@ and claim text (statement claims and claims inside a function) or by its claim t
 numbers, so ``-k``, ``--lf`` and pytest-xdist (which needs the same items in every worker) see stable
 ids.  A refuted, inconclusive or malformed claim fails its item with the report's details; an
 inconclusive one is skipped instead when the configuration says ``on_inconclusive = "warn"``.  Time and
-memory limits and the result cache are the tool's own (``[tool.idealcheck]``).
+memory limits, the result cache and the baseline of accepted results are the tool's own
+(``[tool.idealcheck]``); a stale baseline entry is a warning.
 
 Importing this module loads neither sympy nor libcst: pytest imports it in every run of a project that
 has idealcheck installed, also when the plugin stays off.
@@ -17,6 +18,7 @@ from __future__ import annotations
 
 import ast
 import os
+import warnings
 from collections.abc import Iterator
 from pathlib import Path
 from typing import Any
@@ -176,10 +178,15 @@ class ClaimCollection:
             explicit = str(Path(self.config.invocation_params.dir) / explicit)
         paths = self._paths()
         try:
-            return api.find_claims(paths or None, explicit, cwd=self.config.rootpath,
-                                   cache=not self.config.getoption("idealcheck_no_cache"))
+            found = api.find_claims(paths or None, explicit, cwd=self.config.rootpath,
+                                    cache=not self.config.getoption("idealcheck_no_cache"))
         except (api.ConfigError, api.DiscoveryError) as exc:
             raise pytest.UsageError(f"idealcheck: {exc}") from None
+        except api.BaselineError as exc:
+            raise pytest.UsageError(f"idealcheck: baseline error: {exc}") from None
+        for entry in found.stale:
+            warnings.warn(pytest.PytestWarning(f"idealcheck: {entry.message()}"), stacklevel=1)
+        return found
 
     @pytest.hookimpl(tryfirst=True)
     def pytest_collection_modifyitems(self, session: pytest.Session, config: pytest.Config,
@@ -235,8 +242,11 @@ class ClaimItem(pytest.Item):
     def runtest(self) -> None:
         verdict = self.collection.verdict(self)
         self.user_properties.append(("idealcheck_verdict", verdict.verdict))
-        expected = verdict.claim.expected  # an inline `expect VERDICT: REASON`: skipped while it holds
+        expected = verdict.claim.expected  # an inline `expect` or a baseline entry: skipped while it holds
         if expected is not None and verdict.verdict == expected.verdict:
+            if expected.baseline is not None:
+                why = f" ({expected.reason})" if expected.reason else ""
+                pytest.skip(f"idealcheck {verdict.verdict}, accepted by the baseline {expected.baseline}{why}")
             pytest.skip(f"idealcheck {verdict.verdict} as expected: {expected.reason}")
         if verdict.verdict == "proved" and expected is None:
             return

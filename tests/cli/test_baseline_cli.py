@@ -146,7 +146,7 @@ def test_refuted_claims_are_accepted_only_when_asked_and_inline_markers_are_left
 def test_the_baseline_file_is_chosen_and_checked_strictly(cli: Cli, project: Path) -> None:
     write(project, "pyproject.toml", '[tool.idealcheck]\nbaseline = "ci/accepted.json"\n')
     missing = cli("check", "--no-cache", cwd=project)
-    assert missing.code == 2 and "baseline: no such file: ci/accepted.json" in missing.err
+    assert missing.code == 2 and "baseline error: no such file: ci/accepted.json" in missing.err
     (project / "ci").mkdir()
     assert cli("baseline", "--no-cache", cwd=project).code == 0
     assert (project / "ci/accepted.json").is_file() and not (project / BASELINE).exists()

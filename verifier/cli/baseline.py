@@ -56,7 +56,7 @@ def run_baseline(args: argparse.Namespace) -> int:
     if missing:
         raise UsageError(f"PATH: no such file or folder: {', '.join(missing)}")
     config = load_config_or_exit(args, config_start(args.paths, cwd))
-    path, _explicit = baseline_path(args, config, cwd)
+    path = baseline_path(args, config, cwd)
     assert path is not None  # the writing command has no --no-baseline
     shown_path = relative_path(path, cwd)
     previous: Baseline | None = None

@@ -11,8 +11,8 @@ import sys
 from pathlib import Path
 
 from verifier.cli.options import UsageError
-from verifier.model.paths import relative_path
-from verifier.pipeline.baseline import DEFAULT_BASELINE, Baseline, BaselineError, StaleEntry, load_baseline
+from verifier.pipeline.baseline import (DEFAULT_BASELINE, Baseline, BaselineError, StaleEntry, baseline_for_check,
+                                        baseline_location)
 from verifier.pipeline.config import Config
 from verifier.report.escape import shown
 
@@ -27,28 +27,17 @@ def add_baseline_options(parser: argparse.ArgumentParser, *, writing: bool = Fal
         parser.add_argument("--no-baseline", action="store_true", help="use no baseline file")
 
 
-def baseline_path(args: argparse.Namespace, config: Config, cwd: Path) -> tuple[Path | None, bool]:
-    """(the baseline file, whether it was asked for explicitly); None with ``--no-baseline``."""
-    if getattr(args, "no_baseline", False):
-        return None, False
-    if args.baseline:
-        return cwd / args.baseline, True
-    if config.baseline is not None:
-        return config.root / config.baseline, True
-    return config.root / DEFAULT_BASELINE, False
+def baseline_path(args: argparse.Namespace, config: Config, cwd: Path) -> Path:
+    """The baseline file ``idealcheck baseline`` writes."""
+    return baseline_location(config, cwd, Path(args.baseline) if args.baseline else None)[0]
 
 
 def load_for_check(args: argparse.Namespace, config: Config, cwd: Path) -> Baseline | None:
     """The baseline ``check`` applies (None when there is none); ``UsageError`` when it is unusable."""
-    path, explicit = baseline_path(args, config, cwd)
-    if path is None:
-        return None
-    if not path.exists() and not path.is_symlink():
-        if explicit:
-            raise UsageError(f"baseline: no such file: {relative_path(path, cwd)} (write it with `idealcheck baseline`)")
+    if args.no_baseline:
         return None
     try:
-        return load_baseline(path, relative_path(path, cwd))
+        return baseline_for_check(config, cwd, Path(args.baseline) if args.baseline else None)
     except BaselineError as exc:
         raise UsageError(f"baseline error: {exc}") from exc
 

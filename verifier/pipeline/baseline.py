@@ -35,6 +35,7 @@ from typing import Literal
 from verifier.model.claim import Claim, Expectation
 from verifier.model.paths import relative_path
 from verifier.model.verdict import Verdict
+from verifier.pipeline.config import Config
 from verifier.pipeline.reading import read_regular_bytes
 
 FORMAT_KEY = "idealcheck_baseline"
@@ -105,6 +106,27 @@ def load_baseline(path: Path, shown: str) -> Baseline:
     lines = text.splitlines()
     entries = [_entry(item, index, shown, lines) for index, item in enumerate(items)]
     return Baseline(shown, path.parent, tuple(entries))
+
+
+def baseline_location(config: Config, cwd: Path, explicit: Path | None = None) -> tuple[Path, bool]:
+    """(the baseline file, whether it was named): ``explicit`` (relative to ``cwd``), else ``baseline`` of
+    the configuration (relative to its pyproject.toml), else the default file beside the pyproject.toml."""
+    if explicit is not None:
+        return cwd / explicit, True
+    if config.baseline is not None:
+        return config.root / config.baseline, True
+    return config.root / DEFAULT_BASELINE, False
+
+
+def baseline_for_check(config: Config, cwd: Path, explicit: Path | None = None) -> Baseline | None:
+    """The baseline a check applies: the default file only when it exists, a named one always (a missing
+    named file is a ``BaselineError``)."""
+    path, named = baseline_location(config, cwd, explicit)
+    if not path.exists() and not path.is_symlink():
+        if named:
+            raise BaselineError(f"no such file: {relative_path(path, cwd)} (write it with `idealcheck baseline`)")
+        return None
+    return load_baseline(path, relative_path(path, cwd))
 
 
 def _entry(item: object, index: int, shown: str, lines: list[str]) -> BaselineEntry:
