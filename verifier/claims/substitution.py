@@ -42,31 +42,27 @@ def resolve_spelling(name: str, state: State, constant: ConstantLookup) -> Value
         spelled += match.group(0)
         if isinstance(value, Unknown):
             return value
-        if match.group(1) is not None:
-            if isinstance(value, Var):
-                value = Var(f"{value.name}.{match.group(1)}")
-            elif isinstance(value, Opaque):
-                value = Opaque(f"{value.name}.{match.group(1)}", value.args)
-            else:
-                return Unknown(f"{spelled} is not a variable at this point")
-        elif match.group(2) is not None:
+        if match.group(2) is not None and isinstance(value, Seq):
             index = int(match.group(2))
-            if isinstance(value, Seq):
-                if not -len(value.items) <= index < len(value.items):
-                    return Unknown(f"{spelled} is out of range")
-                value = value.items[index]
-            elif isinstance(value, Var):
-                value = Var(f"{value.name}[{index}]")
-            elif isinstance(value, Opaque):
-                value = Opaque(f"{value.name}[{index}]", value.args)
-            else:
-                return Unknown(f"{spelled} is not a variable at this point")
-        else:
-            if isinstance(value, Var):
-                value = Var(f"{value.name}[{match.group(3)}]")
-            else:
-                return Unknown(f"{spelled} is not a variable at this point")
+            if not -len(value.items) <= index < len(value.items):
+                return Unknown(f"{spelled} is out of range")
+            value = value.items[index]
+            continue
+        suffix = match.group(0) if match.group(2) is None else f"[{int(match.group(2))}]"
+        component = _component(value, suffix)
+        if component is None:
+            return Unknown(f"{spelled} is not a variable at this point")
+        value = component
     return value
+
+
+def _component(value: Value, suffix: str) -> Value | None:
+    """A field or element (``suffix`` is ``.w`` or ``[0]``) of a value the code keeps whole; None if none."""
+    if isinstance(value, Var):
+        return Var(value.name + suffix)
+    if isinstance(value, Opaque):
+        return Opaque(value.name + suffix, value.args)
+    return None
 
 
 def substitute(expr: Expr, state: State, constant: ConstantLookup) -> Value:

@@ -57,27 +57,27 @@ def _exact_atan2(args: Sequence[Fraction]) -> Fraction:
     raise NotRational()
 
 
-def _exact_divisor(b: Fraction, what: str) -> None:
+def _exact_quotient(args: Sequence[Fraction], what: str,
+                    rounding: Callable[[Fraction], int]) -> tuple[Fraction, Fraction, int]:
+    """(a, b, a/b rounded) for ``%``, ``//`` and ``fmod``; a zero divisor is outside the domain."""
+    a, b = args
     if b == 0:
         raise DomainError(f"{what} with divisor 0")
+    return a, b, rounding(a / b)
 
 
 def _exact_mod(args: Sequence[Fraction]) -> Fraction:
-    a, b = args
-    _exact_divisor(b, "%")
-    return a - b * math.floor(a / b)
+    a, b, quotient = _exact_quotient(args, "%", math.floor)
+    return a - b * quotient
 
 
 def _exact_floordiv(args: Sequence[Fraction]) -> Fraction:
-    a, b = args
-    _exact_divisor(b, "//")
-    return Fraction(math.floor(a / b))
+    return Fraction(_exact_quotient(args, "//", math.floor)[2])
 
 
 def _exact_fmod(args: Sequence[Fraction]) -> Fraction:
-    a, b = args
-    _exact_divisor(b, "fmod")
-    return a - b * math.trunc(a / b)
+    a, b, quotient = _exact_quotient(args, "fmod", math.trunc)
+    return a - b * quotient
 
 
 def _exact_copysign(args: Sequence[Fraction]) -> Fraction:
