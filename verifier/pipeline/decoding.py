@@ -29,6 +29,7 @@ FALLBACK_NOTE = "this file is not UTF-8: lines that are not valid UTF-8 were rea
 PYTHON_SUFFIXES = (".py", ".pyw", ".pyi")
 # PEP 263's own pattern for a coding declaration, on one of the first two lines.
 _CODING = re.compile(rb"^[ \t\f]*#.*?coding[:=][ \t]*([-\w.]+)")
+_IDEAL = re.compile(rb"ideal", re.IGNORECASE)  # as ``near_miss`` looks for it (ASCII letters only)
 
 # Leading bytes of common binary formats that may hold no NUL byte early (compressed or short files).
 MAGIC_NUMBERS: tuple[tuple[bytes, str], ...] = (
@@ -61,6 +62,7 @@ class Decoded:
     problems: tuple[FileProblem, ...] = ()
     skipped: Skipped | None = None
     note: str | None = None
+    claim_free: bool = False  # read, but its bytes hold no claim marker: not decoded (``decode_if_claimed``)
 
 
 def binary_kind(data: bytes) -> str | None:
@@ -99,6 +101,26 @@ def decode_source(data: bytes, path: str) -> Decoded:
         return Decoded(data.decode("utf-8-sig"))
     except UnicodeDecodeError:
         return _decode_with_fallback(data, path)
+
+
+def decode_if_claimed(data: bytes, path: str) -> Decoded:
+    """``decode_source`` for a file whose bytes may hold a claim; any other text file is not decoded at all
+    (``claim_free``), which keeps a scan of a tree without claims at the speed of reading its bytes."""
+    if binary_kind(data) is None and not needs_text(data, path):
+        return Decoded(None, claim_free=True)
+    return decode_source(data, path)
+
+
+def needs_text(data: bytes, path: str) -> bool:
+    """Whether the text of a (not binary) file is needed: its bytes hold the claim marker, or ``ideal`` in
+    any case (a misspelt marker gets a warning), or it is a Python file with a coding declaration (in an
+    encoding that is not ASCII-compatible the marker's bytes differ, and a bad declaration is an error)."""
+    if MARKER in data or _IDEAL.search(data) is not None:
+        return True
+    if not path.lower().endswith(PYTHON_SUFFIXES):
+        return False
+    second_end = data.find(b"\n", data.find(b"\n") + 1)  # the first two lines only, as PEP 263 reads them
+    return _declaration_line(data if second_end < 0 else data[:second_end]) is not None
 
 
 def _decode_python(data: bytes, path: str) -> Decoded:

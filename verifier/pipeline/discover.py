@@ -24,7 +24,7 @@ from __future__ import annotations
 import errno
 import os
 import stat
-from collections.abc import Collection, Sequence
+from collections.abc import Callable, Collection, Sequence
 from dataclasses import dataclass
 from pathlib import Path
 from typing import Literal
@@ -32,7 +32,7 @@ from typing import Literal
 from verifier.model.claim import FileProblem, Location
 from verifier.model.paths import relative_path  # re-exported: discovery names files this way
 from verifier.model.skipped import SkipKind, Skipped
-from verifier.pipeline.decoding import Decoded, decode_source
+from verifier.pipeline.decoding import MARKER, Decoded, decode_if_claimed
 from verifier.pipeline.git_files import (  # re-exported: the git side of discovery
     DiscoveryError,
     run_git,
@@ -43,8 +43,9 @@ from verifier.pipeline.git_files import (  # re-exported: the git side of discov
     staged_paths,
 )
 from verifier.pipeline.globs import matches_glob, selected  # re-exported: globs select the files
-from verifier.pipeline.reading import DEFAULT_MAX_FILE_BYTES, kind_of_file, read_decoded, too_large
+from verifier.pipeline.reading import DEFAULT_MAX_FILE_BYTES, kind_of_file, read_scanned, too_large
 
+CLAIM_MARKER = MARKER.decode("ascii")
 # Version-control metadata: never tracked content, so never listed.
 VCS_DIRS = frozenset({".git", ".hg", ".svn", ".bzr", "_darcs", "CVS"})
 # Folder names not walked into (listed in the report; explicitly named files inside them are still read).
@@ -70,7 +71,10 @@ WALK_SKIPPED_DIRS: dict[str, str] = {
 @dataclass(frozen=True)
 class SourceFile:
     path: str  # relative to the working directory, forward slashes
-    text: str
+    text: str | None  # None: the file's bytes hold no claim marker, so it was not decoded (it has no claims)
+
+    def holds_claims(self) -> bool:
+        return self.text is not None and CLAIM_MARKER in self.text
 
 
 @dataclass(frozen=True)
@@ -105,7 +109,7 @@ def skipped_dir_reason(directory: Path, name: str, *, walking: bool = False) -> 
 class _Collector:
     def __init__(
         self, include: Sequence[str], exclude: Sequence[str], only: set[str] | None, cwd: Path, root: Path | None,
-        max_bytes: int = DEFAULT_MAX_FILE_BYTES,
+        max_bytes: int = DEFAULT_MAX_FILE_BYTES, on_claims: Callable[[], None] | None = None,
     ) -> None:
         self.include = include
         self.exclude = exclude
@@ -118,6 +122,7 @@ class _Collector:
         self.skipped: dict[str, Skipped] = {}
         self.notes: dict[str, str] = {}
         self.problem_lines: dict[tuple[str, int, int], FileProblem] = {}  # claim lines that cannot be decoded
+        self.on_claims = on_claims  # called once, when the first file holding claims is read
 
     def wanted(self, path: str) -> bool:
         if path in self.files or path in self.problems or path in self.skipped:
@@ -144,11 +149,17 @@ class _Collector:
     def add(self, path: str, decoded: Decoded) -> None:
         if decoded.skipped is not None:
             self.skipped[decoded.skipped.path] = decoded.skipped
+        elif decoded.claim_free:
+            self.files[path] = SourceFile(path, None)
         elif decoded.text is None:
             if decoded.problems:
                 self.problems[path] = decoded.problems[0]
         else:
-            self.files[path] = SourceFile(path, decoded.text)
+            source = SourceFile(path, decoded.text)
+            self.files[path] = source
+            if self.on_claims is not None and source.holds_claims():
+                self.on_claims()
+                self.on_claims = None
             for problem in decoded.problems:
                 self.problem_lines[(path, problem.location.line, problem.location.column)] = problem
             if decoded.note is not None:
@@ -194,11 +205,12 @@ class _Walker:
             self.collector.skip(self.shown(directory) + "/", "unreadable",
                                 f"cannot list the folder: {exc.strerror or exc}")
             return
+        shown = self.shown(directory)  # once per folder: the names below it are joined to it textually
+        prefix = "" if shown == "." else shown + "/"
         for entry in entries:
-            self.entry(directory, entry)
+            self.entry(directory, entry, prefix + entry.name)
 
-    def entry(self, directory: Path, entry: os.DirEntry[str]) -> None:
-        path = self.shown(entry.path)
+    def entry(self, directory: Path, entry: os.DirEntry[str], path: str) -> None:
         try:
             mode = entry.stat(follow_symlinks=False).st_mode
         except OSError as exc:
@@ -218,7 +230,7 @@ class _Walker:
         if stat.S_ISLNK(mode):
             self.link(entry.path, path)
         elif stat.S_ISREG(mode):
-            self.collector.add(path, read_decoded(entry.path, path, self.collector.max_bytes))
+            self.collector.add(path, read_scanned(entry.path, path, self.collector.max_bytes))
         else:
             self.collector.skip(path, "not-regular", f"{kind_of_file(mode)}, not read")
 
@@ -260,7 +272,7 @@ class _Walker:
         elif stat.S_ISLNK(mode):
             self.link(str(target), shown)
         elif stat.S_ISREG(mode):
-            self.collector.add(shown, read_decoded(str(target), shown, self.collector.max_bytes))
+            self.collector.add(shown, read_scanned(str(target), shown, self.collector.max_bytes))
         else:
             self.collector.skip(shown, "not-regular", f"{kind_of_file(mode)}, not read")
 
@@ -284,7 +296,7 @@ class _Walker:
         elif not stat.S_ISREG(mode):
             self.collector.skip(path, "not-regular", f"symbolic link to {kind_of_file(mode)}, not read")
         else:
-            self.collector.add(path, read_decoded(real, path, self.collector.max_bytes))
+            self.collector.add(path, read_scanned(real, path, self.collector.max_bytes))
 
     def named(self, argument: str) -> None:
         target = Path(self.cwd, argument)
@@ -301,7 +313,7 @@ class _Walker:
         elif stat.S_ISLNK(mode):
             self.link(str(target), shown)
         elif stat.S_ISREG(mode):
-            self.collector.add(shown, read_decoded(str(target), shown, self.collector.max_bytes))
+            self.collector.add(shown, read_scanned(str(target), shown, self.collector.max_bytes))
         else:
             self.collector.skip(shown, "not-regular", f"{kind_of_file(mode)}, not read")
 
@@ -399,7 +411,7 @@ def _collect_staged(paths: Sequence[str], cwd: Path, collector: _Collector) -> N
         size = int(header[2])
         data = out[header_end + 1 : header_end + 1 + size]
         position = header_end + 1 + size + 1
-        collector.add(path, decode_source(data, path))
+        collector.add(path, decode_if_claimed(data, path))
 
 
 # ---------------------------------------------------------------- entry point
@@ -416,6 +428,7 @@ def collect(
     root: Path | str | None = None,
     max_file_bytes: int = DEFAULT_MAX_FILE_BYTES,
     use_git: bool = True,
+    on_claims: Callable[[], None] | None = None,
 ) -> Discovery:
     """The files to scan under ``paths`` (files or folders, relative to ``cwd``) and the ones that could not be read.
 
@@ -424,11 +437,13 @@ def collect(
     when walking.  ``source="staged"`` reads the file list and texts from the git index.  ``only`` restricts the result to these relative paths.
     ``max_file_bytes`` is the size cap; a larger file is listed in ``skipped``, not read.  ``use_git``
     (the default) takes a folder's files from git when it is in a working tree (see the module text).
+    A file whose bytes hold no claim marker is listed without its text (``SourceFile.text`` is None);
+    ``on_claims`` is called once, as soon as a file holding claims is read (the runner starts its workers).
     """
     base = Path(cwd) if cwd is not None else Path.cwd()
     only_set = None if only is None else {relative_path(Path(base, p), base) for p in only}
     anchor = None if root is None else Path(base, root)
-    collector = _Collector(tuple(include), tuple(exclude), only_set, base, anchor, max_file_bytes)
+    collector = _Collector(tuple(include), tuple(exclude), only_set, base, anchor, max_file_bytes, on_claims)
     if source == "staged":
         _collect_staged(paths or ["."], base, collector)
     elif source == "worktree":

@@ -11,7 +11,7 @@ import stat
 
 from verifier.model.claim import FileProblem, Location
 from verifier.model.skipped import Skipped
-from verifier.pipeline.decoding import Decoded, decode_source
+from verifier.pipeline.decoding import Decoded, decode_if_claimed, decode_source
 
 DEFAULT_MAX_FILE_BYTES = 10 * 1024 * 1024  # config: max_file_kb
 # Open flags that keep a read from blocking (FIFOs, terminals) or following a link planted after the check.
@@ -51,6 +51,15 @@ def read_decoded(absolute: str, path: str, max_bytes: int) -> Decoded:
     return decode_source(data, path)
 
 
+def read_scanned(absolute: str, path: str, max_bytes: int) -> Decoded:
+    """One scanned file read (``read_regular_bytes``) and decoded only when its bytes may hold a claim
+    (``decoding.decode_if_claimed``)."""
+    data, problem, skipped = read_regular_bytes(absolute, path, max_bytes)
+    if data is None:
+        return Decoded(None, (problem,) if problem is not None else (), skipped)
+    return decode_if_claimed(data, path)
+
+
 def read_regular_bytes(absolute: str, path: str, max_bytes: int) -> BytesOutcome:
     """(bytes, problem, skipped) for one file: only a regular file is read, and at most ``max_bytes``.
 
@@ -79,8 +88,10 @@ def read_regular_bytes(absolute: str, path: str, max_bytes: int) -> BytesOutcome
             return None, None, too_large(path, info.st_size, max_bytes)
         chunks: list[bytes] = []
         size = 0
+        want = info.st_size + 1  # the whole file and the end in one read, unless it grows meanwhile
         while size <= max_bytes:  # the file may grow while it is read: never more than the cap
-            chunk = os.read(fd, min(1 << 20, max_bytes + 1 - size))
+            chunk = os.read(fd, min(want, max_bytes + 1 - size))
+            want = 1 << 20
             if not chunk:
                 break
             chunks.append(chunk)

@@ -105,7 +105,7 @@ def collect_claims(discovery: Any, context: Any, *, extract: Callable[..., list[
     """
     claims: list[Claim] = [file_problem_claim(p) for p in discovery.problems]
     claims += [file_problem_claim(p, text="(claim could not be read)") for p in discovery.claim_line_problems]
-    files = list(discovery.files)
+    files = [source for source in discovery.files if source.holds_claims()]  # no marker, no claims: not parsed
     if extract is not None or options is None or options.in_process:
         for source in files:
             path = str(source.path)
@@ -344,10 +344,11 @@ def gather_claims(request: CheckRequest, *, stale_out: list[StaleEntry] | None =
         cwd=cwd,
         source="staged" if request.staged else "worktree",
         max_file_bytes=max_file_bytes(config),
+        on_claims=lambda: warm_up_workers(request.options),  # a tree without claims never starts them
     )
     roots = tuple(dict.fromkeys(directories + [root] if files or not directories else directories))
     context = ExtractionContext(named_conditions=config.conditions, roots=roots)
-    texts = {normalize_path(str(f.path)): f.text for f in discovery.files}
+    texts = {normalize_path(str(f.path)): f.text for f in discovery.files if f.text is not None}
     claims = with_file_notes(collect_claims(discovery, context, options=request.options), dict(discovery.notes))
     unique: dict[str, Claim] = {}
     for claim in claims:
@@ -386,7 +387,8 @@ def max_file_bytes(config: Config) -> int:
 
 
 def warm_up_workers(options: RunOptions) -> None:
-    """Start the process that forks the workers now, so that its imports overlap with finding the files."""
+    """Start the process that forks the workers now, so that its imports overlap with finding the files
+    (discovery calls this when it reads the first file holding claims)."""
     if options.in_process:
         return
     ctx = worker_context()
@@ -432,7 +434,6 @@ def check_run(request: CheckRequest, *, texts_out: dict[str, str] | None = None,
     ``texts_out``, when given, receives the texts of the files read (the command line warns about
     misspelt claim markers in them); ``stale_out`` the baseline's stale entries."""
     allow_long_integers()
-    warm_up_workers(request.options)
     claims, texts, skipped = gather_claims(request, stale_out=stale_out)
     if texts_out is not None:
         texts_out.update(texts)

@@ -2,7 +2,9 @@
 from __future__ import annotations
 
 import enum
+from collections.abc import Iterable, Iterator
 from dataclasses import dataclass
+from typing import cast
 
 from verifier.claims.execute.values import Value
 from verifier.model.claim import Condition
@@ -11,23 +13,73 @@ from verifier.model.ir import Function
 Mark = tuple[int, int]  # (line, column) of a marked statement of the top-level function
 
 
+class Env:
+    """The locals of one path: an immutable mapping, iterated as (name, value) pairs in the order of their
+    last binding.  Binding a name shares everything but a small recent part with the old mapping, so a
+    straight-line function of n assignments costs O(n sqrt n), not O(n^2) (a long unrolled kernel)."""
+
+    __slots__ = ("_base", "_recent")
+
+    def __init__(self, pairs: Iterable[tuple[str, Value]] = ()) -> None:
+        self._base: dict[str, Value] = {}
+        for name, value in pairs:
+            self._base.pop(name, None)
+            self._base[name] = value
+        self._recent: dict[str, Value] = {}  # bound after everything in ``_base``; never mutated once shared
+
+    def get(self, name: str) -> Value | None:
+        value = self._recent.get(name)
+        return value if value is not None or name in self._recent else self._base.get(name)
+
+    def bind(self, name: str, value: Value) -> "Env":
+        recent = dict(self._recent)
+        recent.pop(name, None)
+        recent[name] = value
+        new = Env.__new__(Env)
+        if len(recent) * len(recent) > len(self._base) + 64:  # fold the recent part in: amortised sqrt(n)
+            base = {key: held for key, held in self._base.items() if key not in recent}
+            base.update(recent)
+            new._base, new._recent = base, {}
+        else:
+            new._base, new._recent = self._base, recent
+        return new
+
+    def __iter__(self) -> Iterator[tuple[str, Value]]:
+        for name, value in self._base.items():
+            if name not in self._recent:
+                yield name, value
+        yield from self._recent.items()
+
+    def __len__(self) -> int:
+        return len(self._base) + sum(1 for name in self._recent if name not in self._base)
+
+    def __eq__(self, other: object) -> bool:
+        return isinstance(other, Env) and list(self) == list(other)
+
+    def __hash__(self) -> int:
+        return hash(tuple(self))
+
+    def __repr__(self) -> str:
+        return f"Env({list(self)!r})"
+
+
 @dataclass(frozen=True)
 class State:
-    """One path: the locals (as ordered pairs; small functions keep this cheap), branch conditions, notes."""
+    """One path: the locals, branch conditions, notes.  ``env`` may be given as (name, value) pairs."""
 
-    env: tuple[tuple[str, Value], ...]
+    env: Env | tuple[tuple[str, Value], ...]  # always an Env once built (pairs are converted)
     conditions: tuple[Condition, ...] = ()
     notes: tuple[str, ...] = ()
 
+    def __post_init__(self) -> None:
+        if not isinstance(self.env, Env):
+            object.__setattr__(self, "env", Env(self.env))
+
     def get(self, name: str) -> Value | None:
-        for key, value in reversed(self.env):
-            if key == name:
-                return value
-        return None
+        return cast(Env, self.env).get(name)
 
     def bind(self, name: str, value: Value) -> "State":
-        env = tuple((k, v) for k, v in self.env if k != name) + ((name, value),)
-        return State(env, self.conditions, self.notes)
+        return State(cast(Env, self.env).bind(name, value), self.conditions, self.notes)
 
     def with_condition(self, condition: Condition) -> "State":
         return State(self.env, self.conditions + (condition,), self.notes)
@@ -37,8 +89,8 @@ class State:
             return self
         return State(self.env, self.conditions, self.notes + (note,))
 
-    def with_env(self, env: tuple[tuple[str, Value], ...]) -> "State":
-        return State(env, self.conditions, self.notes)
+    def with_env(self, env: Iterable[tuple[str, Value]]) -> "State":
+        return State(env if isinstance(env, Env) else Env(env), self.conditions, self.notes)
 
 
 class Status(enum.Enum):
