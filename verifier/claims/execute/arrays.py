@@ -90,6 +90,8 @@ def array_function(host: Arithmetic, name: str, args: list[Value], line: int) ->
                 return Unknown(f"np.{name} of arrays of different shapes at line {line}")
             return _array(rows, host)
         if name == "column_stack":
+            if any(isinstance(i, Seq) for p in parts for i in p.items):
+                return None  # columns of matrices: not followed
             columns = tuple(parts)
             table = transpose(Seq(columns)) if columns else None
             return None if table is None else _array(table, host)
@@ -175,7 +177,7 @@ def _filled(value: Seq, constant: Value) -> Seq:
 
 # methods and attributes of arrays: `v.sum()`, `a.dot(b)`, `m.T`, `v.shape`
 METHODS = {"sum": "sum", "dot": "dot", "copy": "copy", "transpose": "transpose", "flatten": "flatten",
-           "ravel": "ravel", "trace": "trace", "tolist": "copy", "astype": "copy"}
+           "ravel": "ravel", "trace": "trace"}  # not tolist: a list adds by joining
 ATTRIBUTES = {"T": "transpose", "shape": "shape", "size": "size"}
 
 
