@@ -273,6 +273,9 @@ class ExprConverter:
         return fold(expr, _ConstantExponent(self, node))
 
     def call(self, node: ast.Call) -> Expr:
+        if (isinstance(node.func, ast.Name) and node.func.id == "len" and len(node.args) == 1
+                and isinstance(node.args[0], ast.Name) and not node.keywords):
+            return Var(f"len({node.args[0].id})")  # a sequence's length: a variable (`given len(q) == 4`)
         name = self.function_name(node.func)
         if node.keywords:
             raise self.error(f"keyword arguments are not supported in a call of `{name}`", node)

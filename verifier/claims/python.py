@@ -39,6 +39,7 @@ from verifier.claims.obligations import (
     unique,
 )
 from verifier.claims.parameter_functions import with_particular_functions
+from verifier.claims.sequence_parameters import parameter_shapes, sequence_arguments
 from verifier.claims.substitution import ConstantLookup, substitute, substitute_condition
 from verifier.model.claim import (
     Claim,
@@ -272,8 +273,16 @@ class _FileReader:
                                          "(decorators may sit in between); none follows this comment")
         name = ref.node.name.value
         executor, scope = self._executor()
-        outcomes = executor.run_function(_lowered(scope, ref))
+        lowered = _lowered(scope, ref)
+        other = None
+        if parsed.form == "same_as":
+            other = self._find_function(parsed.other or "", self.module, 0, executor)
+        others = [] if other is None else [_lowered(scope, other)]
+        shapes, shape_notes = parameter_shapes(parsed, lowered, others)
+        outcomes = executor.run_function(lowered, shapes=shapes)
         paths = self._returned(outcomes, name)
+        for note in shape_notes:
+            paths = [(state.with_note(note), value) for state, value in paths]
         obligations: list[Obligation] = []
         if "pi" in ref.positional_names():
             parsed = _pi_as_variable(parsed)  # a parameter named pi: the claim's pi is that parameter
@@ -291,7 +300,6 @@ class _FileReader:
                     obligations.append(obligation(left, right, given, state.conditions, label, state.notes))
         else:
             other_name = parsed.other or ""
-            other = self._find_function(other_name, self.module, 0, executor)
             if other is None:
                 raise ClaimProblem("error", f"cannot find the function `{other_name}` among the functions and "
                                              f"imports of {self.path}")
@@ -300,7 +308,7 @@ class _FileReader:
             if len(mine) != len(theirs):
                 raise ClaimProblem("error", f"{name} takes {len(mine)} positional arguments, {other_name} takes "
                                              f"{len(theirs)}: `same as` compares them for the same arguments")
-            other_outcomes = executor.run_function(_lowered(scope, other), args=[Var(p) for p in mine])
+            other_outcomes = executor.run_function(others[0], args=sequence_arguments(mine, shapes, executor))
             other_paths = self._returned(other_outcomes, other_name)
             for state, value in paths:
                 for other_state, other_value in other_paths:

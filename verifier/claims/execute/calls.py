@@ -3,6 +3,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
+from verifier.claims.execute.arrays import ROUTED, array_method, harmless_keywords
 from verifier.claims.execute.expressions import Alternatives, Evaluator
 from verifier.claims.execute.functions import opaque_note
 from verifier.claims.execute.piecewise import PIECEWISE, pieces
@@ -49,6 +50,8 @@ def _noted(state: State, value: Value, line: int) -> tuple[State, Value]:
     note = opaque_note(value, line)
     return (state.with_note(note) if note else state), value
 
+_RUNNING, _ITEM = "\0running", "\0item"  # names of reduce's step call
+
 
 class CallEvaluator(Evaluator):
     """Evaluates calls; running an inlined body is left to ``Executor.exec_block``."""
@@ -89,14 +92,50 @@ class CallEvaluator(Evaluator):
             return self._method_call(callee, node, state, frame)
         if isinstance(callee, UnknownCallee):
             return [(state, Unknown(callee.reason))]
+        routed = ROUTED.get(callee.name)  # np.linalg.norm, functools.reduce: known, not opaque
+        if routed == "reduce":
+            return self._reduce(node, state, frame)
+        if routed is not None:
+            return self._math_call(routed, node, state, frame)
         return self.opaque(callee.name, node, state, frame, prefix=())
+
+    def _reduce(self, node: ir.Invoke, state: State, frame: Frame) -> Alternatives:
+        """``functools.reduce(f, items[, start])``: ``f`` called on the running value and each item in turn,
+        through temporary names no Python code can spell."""
+        line = node.line
+        arguments = node.arguments
+        if len(arguments) not in (2, 3) or any(a.keyword or a.star is not ir.Star.NONE for a in arguments):
+            return [(state, Unknown(f"functools.reduce(...) at line {line} with these arguments is not supported"))]
+        result: Alternatives = []
+        for after, sequence in self.evaluate(arguments[1].value, state, frame):
+            if not isinstance(sequence, Seq):
+                result.append((after, Unknown(f"functools.reduce(...) at line {line} over a value that is not a "
+                                              "sequence of known length is not supported")))
+                continue
+            items = list(sequence.items)
+            paths: Alternatives = (self.evaluate(arguments[2].value, after, frame) if len(arguments) == 3
+                                   else [(after, items.pop(0))] if items else [])
+            if not paths:
+                raise Stuck(f"functools.reduce(...) of an empty sequence at line {line} raises")
+            step = ir.Invoke(arguments[0].value, (ir.Argument(ir.Name(_RUNNING, line)), ir.Argument(ir.Name(_ITEM, line))),
+                             node.spelling, line, node.column)
+            for item in items:
+                paths = [(State(s.env, s2.conditions, s2.notes), value) for s, running in paths
+                         for s2, value in self.evaluate(step, s.bind(_RUNNING, running).bind(_ITEM, item), frame)]
+            result.extend(paths)
+        return result
 
     def _method_call(self, callee: MethodCallee, node: ir.Invoke, state: State, frame: Frame) -> Alternatives:
         # `value.name(...)` on a variable or unknown value: opaque in the receiver and arguments
         result: Alternatives = []
         for after, receiver in self.evaluate(callee.receiver, state, frame):
             expr = as_expr(receiver)
-            if isinstance(receiver, Var):
+            numpy_name = array_method(callee.name, receiver, {}) if isinstance(receiver, Seq) else None
+            if numpy_name is not None:
+                result.extend(alternative for s, args, keywords in self.arguments(node, after, frame)
+                              for alternative in self._math_of(numpy_name, [receiver] + args, keywords, s, frame,
+                                                               node.line))
+            elif isinstance(receiver, Var):
                 result.extend(self.opaque(f"{receiver.name}.{callee.name}", node, after, frame, prefix=()))
             elif expr is not None:
                 result.extend(self.opaque(f".{callee.name}", node, after, frame, prefix=(expr,)))
@@ -182,8 +221,10 @@ class CallEvaluator(Evaluator):
     def _math_call(self, name: str, node: ir.Invoke, state: State, frame: Frame) -> Alternatives:
         if name in PIECEWISE:
             return self._piecewise_call(name, node, state, frame, builtin=False)
+        harmless = harmless_keywords(name, node)  # np.asarray(v, dtype=np.float64) is v as an array
         return [alternative for after, args, keywords in self.arguments(node, state, frame)
-                for alternative in self._math_of(name, args, keywords, after, frame, node.line)]
+                for alternative in self._math_of(name, args, {k: v for k, v in keywords.items() if k not in harmless},
+                                                 after, frame, node.line)]
 
     def _math_of(self, name: str, args: list[Value], keywords: dict[str, Value], after: State, frame: Frame,
                  line: int) -> Alternatives:

@@ -6,10 +6,12 @@ from fractions import Fraction
 from typing import cast
 
 from verifier.claims.execute.arithmetic import ARITHMETIC
+from verifier.claims.execute.arrays import ATTRIBUTES, finfo_constant
 from verifier.claims.execute.functions import Functions, opaque_note
 from verifier.claims.execute.scope import Scope
 from verifier.claims.execute.state import Frame, Mark, State, Visit
 from verifier.claims.execute.values import (
+    ARRAY,
     MUTABLE,
     NONE,
     NoneValue,
@@ -137,6 +139,11 @@ class Evaluator(Functions):
 
     def _field(self, node: ir.Field, state: State, frame: Frame) -> Alternatives:
         line = node.line
+        finfo = finfo_constant(node)
+        if finfo is not None:  # np.finfo(np.float64).eps: a named positive constant
+            var = finfo[0]
+            return [(state.with_condition(Condition(">", var, Num(Fraction(0)), f"{var.name} > 0",
+                                                    f"numpy constant (line {line})")), var)]
         member = self.scope.member_value(self, frame.module, node, lambda n: state.get(n) is not None, line)
         if member is not None:
             return [(state, member)]
@@ -152,6 +159,8 @@ class Evaluator(Functions):
                 result.append((after, Opaque(f"{base.name}.{node.name}", base.args)))
             elif isinstance(base, Unknown):
                 result.append((after, base))
+            elif isinstance(base, Seq) and base.kind is ARRAY and node.name in ATTRIBUTES:
+                result.append((after, self.array_call(ATTRIBUTES[node.name], [base], line)))
             else:
                 result.append((after, Unknown(f"the attribute .{node.name} at line {line} is not supported")))
         return result

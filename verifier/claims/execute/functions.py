@@ -5,6 +5,7 @@ from fractions import Fraction
 from typing import Mapping
 
 from verifier.claims.execute.arithmetic import MAX_REPEAT, Arithmetic, as_array
+from verifier.claims.execute.arrays import array_function
 from verifier.claims.execute.values import ARRAY, LIST, TUPLE, Seq, Stuck, Unknown, Value, as_expr, int_of
 from verifier.model.expr import PI, BinOp, Call, Expr, Num, Pow
 from verifier.model.functions import BARE_ONLY, CALL_SPELLINGS, FUNCTIONS, POWER, VARIADIC
@@ -86,6 +87,8 @@ class Functions(Arithmetic):
 
     def zeros(self, name: str, args: list[Value], owner: int) -> Value | None:
         """``zeros(n)`` / ``ones(n)`` with a constant n: an array of the frame ``owner``; else None."""
+        if name in ("eye", "identity"):
+            return array_function(self, name, args, 0)
         count = int_of(args[0]) if name in ("zeros", "ones") and len(args) == 1 else None
         if count is None or not 0 <= count <= MAX_REPEAT:
             return None
@@ -121,6 +124,9 @@ class Functions(Arithmetic):
                 value = self.math_value(name, [expr], line)
                 items.append(value if value is not None else Unknown(f"{name} at line {line}"))
             return Seq(tuple(items), ARRAY, self.new_ident(), 0)
+        found = array_function(self, name, args, line)
+        if found is not None:
+            return found
         return Unknown(f"{name}(...) of a tuple, list or array at line {line} is not supported")
 
     def _cross(self, left: Seq, right: Seq, line: int) -> Value:

@@ -1,11 +1,13 @@
 """The executor: runs IR functions statement by statement, path by path."""
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from fractions import Fraction
 
+from verifier.claims.execute.arrays import replaced_slice, slice_positions
 from verifier.claims.execute.calls import OUTPUT_KINDS, CallEvaluator
 from verifier.claims.execute.expressions import unsupported_reason
+from verifier.claims.execute.sequences import Shape, parameter_sequence
 from verifier.claims.execute.state import Frame, Outcome, State, Status, Visit
 from verifier.claims.execute.values import (
     LIST,
@@ -30,17 +32,21 @@ class Executor(CallEvaluator):
     """Runs functions symbolically; one executor per claim (it collects the claim's dependencies)."""
 
     def run_function(self, function: ir.Function, args: Sequence[Value] | None = None,
-                     conditions: tuple[Condition, ...] = ()) -> list[Outcome]:
+                     conditions: tuple[Condition, ...] = (), shapes: Mapping[str, Shape] | None = None
+                     ) -> list[Outcome]:
         """Execute ``function`` at the top level: parameters are variables named after them unless ``args``
-        gives values.  Returns the outcomes of every path (RETURN, RAISE, STUCK, or NEXT for falling off the
-        end); the values assigned at ``marks`` are collected in ``visits``."""
+        gives values (a parameter with a shape in ``shapes`` is an array of variables ``q[0]``, ...).
+        Returns the outcomes of every path (RETURN, RAISE, STUCK, or NEXT for falling off the end); the values assigned at ``marks`` are collected in ``visits``."""
         self.depend(function.module)
         frame = Frame(function.module, function, 0, (function.key,), self.new_ident())
         if args is None:
             state = State((), conditions)
             for param in function.parameters:
                 if param.binding not in (ir.Binding.VARIADIC, ir.Binding.VARIADIC_KEYWORD):
-                    state = state.bind(param.name, Var(param.name))
+                    shape = (shapes or {}).get(param.name)
+                    value = (parameter_sequence(param.name, shape, iter(self.new_ident, -1), frame.ident)
+                             if shape else Var(param.name))
+                    state = state.bind(param.name, value)
             for param in function.parameters:
                 if param.binding in (ir.Binding.VARIADIC, ir.Binding.VARIADIC_KEYWORD):
                     state = state.bind(param.name, Unknown(f"the *args/**kwargs parameter {param.name} is "
@@ -220,6 +226,18 @@ class Executor(CallEvaluator):
     def _assign_element(self, target: ir.ToElement, value: Value, state: State, frame: Frame) -> State:
         line = target.line
         current = state.get(target.name)
+        part = target.indices[0]
+        if isinstance(part, ir.Slice) and isinstance(current, Seq) and current.kind in MUTABLE:  # v[1:] = w
+            bounds = [None if b is None else self.constant_index(b, state, frame) for b in
+                      (part.lower, part.upper, part.step)]
+            positions = slice_positions(len(current.items), bounds)
+            if positions is None or any(b is None and p is not None for b, p in
+                                        zip(bounds, (part.lower, part.upper, part.step))):
+                raise Stuck(f"assignment to a slice with non-constant bounds or step 0 at line {line}")
+            updated = replaced_slice(current, positions, value, line)
+            if isinstance(updated, Unknown):
+                raise Stuck(updated.reason)
+            return self._replace_list(state, current, updated, frame, line)
         index = self.constant_index(target.indices[0], state, frame)
         if isinstance(current, Seq) and current.kind in MUTABLE and index is not None:
             items = list(current.items)

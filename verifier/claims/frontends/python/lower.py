@@ -214,6 +214,11 @@ class Lowering:
         return ir.Unsupported(f"assignment to {type(node).__name__}", line, column)
 
     def _target_index(self, node: cst.Subscript) -> ir.Expr:
+        if len(node.slice) == 1 and isinstance(node.slice[0].slice, cst.Slice):  # v[1:] = w
+            line, column = self._at(node)
+            part = node.slice[0].slice
+            bounds = [self.expr(b) if b is not None else None for b in (part.lower, part.upper, part.step)]
+            return ir.Slice(self.expr(node.value), bounds[0], bounds[1], bounds[2], line, column)
         if len(node.slice) != 1 or not isinstance(node.slice[0].slice, cst.Index):
             line, column = self._at(node)
             return ir.Unsupported("a subscript that is not one index", line, column)
