@@ -14,7 +14,7 @@ from typing import Any, Sequence
 import flint
 
 from verifier.algebra.groebner_division import Context, Monom, Reducer, Terms, divide
-from verifier.algebra.groebner_flint import Trace, spoly_multipliers
+from verifier.algebra.groebner_flint import TAIL_REDUCED, Trace, spoly_multipliers
 
 # A recipe: the polynomial equals sum(multiplier * source); source >= 0 is a recorded polynomial, source
 # < 0 the input generator ~source.
@@ -78,9 +78,12 @@ class TraceLift:
         trace = self.trace
         one = self.ctx.one
         i, j = trace.origins[k]
-        if j < 0:
-            poly: dict[Monom, Any] = dict(self.generators[i])
-            base: Recipe = [(~i, {(0,) * trace.ctx.nvars(): one})]
+        if j == TAIL_REDUCED:
+            poly: dict[Monom, Any] = dict(self._terms(i))
+            base: Recipe = [(i, {(0,) * trace.ctx.nvars(): one})]
+        elif j < 0:
+            poly = dict(self.generators[i])
+            base = [(~i, {(0,) * trace.ctx.nvars(): one})]
         else:
             ti, tj = self._terms(i), self._terms(j)
             ui, uj = spoly_multipliers(ti[0][0], tj[0][0])
