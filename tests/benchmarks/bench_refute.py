@@ -6,7 +6,8 @@ Each row is a pair of claims of the same size, one true and one false (a sign or
 written to a temporary Python project and extracted once; the decision (verifier.algebra.decide.decide,
 in this process) is timed for each, medians of N runs, and the ratio refuted / proved is printed.  The
 matrix-product kernel row also reports extraction and the whole command line run (a fresh interpreter,
-as a user runs it).  Nothing is asserted; the figures are printed.
+as a user runs it).  First, for the shipped corpora: the refuted claims' share of all decision time and
+the mean refuted decision against the mean proved one.  Nothing is asserted; the figures are printed.
 
 Identities (common practice): the Lagrange identity, the Binet-Cauchy identity
 (sum a_i c_i)(sum b_j d_j) - (sum a_i d_i)(sum b_j c_j) = sum_{i<j} (a_i b_j - a_j b_i)(c_i d_j - c_j d_i),
@@ -16,6 +17,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import resource
 import statistics
 import subprocess
 import sys
@@ -89,23 +91,52 @@ def decision_seconds(claim, repeat: int) -> tuple[float, str]:
     return statistics.median(times), verdict
 
 
-def command_line_seconds(folder: Path) -> tuple[float, str]:
+def command_line_seconds(folder: Path) -> tuple[float, float, str]:
+    """Wall seconds, CPU seconds of the command and the processes it waited for, verdicts."""
+    before = resource.getrusage(resource.RUSAGE_CHILDREN)
     start = time.perf_counter()
     result = subprocess.run([sys.executable, "-m", "verifier", "check", "--no-cache", "--format", "json", "."],
                             cwd=folder, capture_output=True, text=True)
     elapsed = time.perf_counter() - start
+    after = resource.getrusage(resource.RUSAGE_CHILDREN)
+    cpu = (after.ru_utime + after.ru_stime) - (before.ru_utime + before.ru_stime)
     try:
         verdicts = [v["verdict"] for v in json.loads(result.stdout)["claims"]]
     except (ValueError, KeyError):
         verdicts = [f"exit {result.returncode}: {result.stderr[-200:]}"]
-    return elapsed, ",".join(verdicts)
+    return elapsed, cpu, ",".join(verdicts)
+
+
+CHECKOUT = Path(__file__).resolve().parents[2]
+CORPORA = ("fixtures/acceptance", "fixtures/py_acceptance", "fixtures/demo")
+
+
+def corpus_shares(repeat: int) -> None:
+    """Per corpus: the refuted claims' share of all decision time, and the mean decision of a refuted claim
+    against that of a proved one (CPU seconds, decided in this process, medians of ``repeat`` runs)."""
+    print(f"{'corpus':24} {'claims':>6} {'refuted share':>14} {'mean refuted / mean proved':>27}")
+    for corpus in CORPORA:
+        folder = CHECKOUT / corpus
+        found = find_claims([str(folder)], cwd=str(folder), cache=False, in_process=True)
+        spent: dict[str, list[float]] = {}
+        for claim in found.claims:
+            seconds, verdict = decision_seconds(claim, repeat)
+            spent.setdefault(verdict, []).append(seconds)
+        total = sum(sum(v) for v in spent.values())
+        refuted, proved = spent.get("refuted", []), spent.get("proved", [])
+        share = sum(refuted) / total if total else 0.0
+        ratio = (statistics.mean(refuted) / statistics.mean(proved)) if refuted and proved else float("nan")
+        print(f"{corpus.split('/')[-1]:24} {len(found.claims):6d} {share:13.0%} {ratio:26.2f}x")
 
 
 def main() -> None:
     parser = argparse.ArgumentParser()
     parser.add_argument("--repeat", type=int, default=3)
     parser.add_argument("--no-cli", action="store_true", help="skip the command line runs")
+    parser.add_argument("--no-corpora", action="store_true", help="skip the shares over the shipped corpora")
     args = parser.parse_args()
+    if not args.no_corpora:
+        corpus_shares(args.repeat)
     print(f"{'row':58} {'proved s':>9} {'refuted s':>9} {'ratio':>7}  (decision only, CPU, goal <= 2x)")
     with tempfile.TemporaryDirectory() as tmp:
         for index, (name, make) in enumerate(ROWS):
@@ -124,9 +155,9 @@ def main() -> None:
                 print(f"  extraction (in process, CPU): proved {p_extract:.2f} s, refuted {r_extract:.2f} s")
                 if not args.no_cli:
                     for label, folder, goal in (("proved", p_folder, 3), ("refuted", r_folder, 1)):
-                        wall, verdicts = command_line_seconds(folder)
-                        print(f"  idealcheck check, {label} kernel: {wall:.2f} s wall (goal < {goal} s), "
-                              f"verdict {verdicts}")
+                        wall, cpu, verdicts = command_line_seconds(folder)
+                        print(f"  idealcheck check, {label} kernel: {wall:.2f} s wall, {cpu:.2f} s CPU "
+                              f"(goal < {goal} s), verdict {verdicts}")
 
 
 if __name__ == "__main__":

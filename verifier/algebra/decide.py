@@ -22,6 +22,7 @@ import time
 from dataclasses import dataclass
 from typing import Sequence
 
+from verifier.model.limits import decision_clock
 from verifier.algebra.clearing import cleared_membership
 from verifier.algebra.describe import describe_translation
 from verifier.algebra.groebner import (
@@ -72,7 +73,7 @@ def decide(claim: Claim, limits: Limits = Limits()) -> Verdict:
     if not claim.obligations:
         return Verdict(claim, "inconclusive", None, "the claim produced nothing to check", None, None, (),
                        round(time.monotonic() - start, 3))
-    deadline = start + limits.timeout
+    deadline = decision_clock() + limits.timeout  # CPU seconds: the verdict does not depend on load
     results: list[ObligationResult] = []
     for index, obligation in enumerate(claim.obligations):
         results.append(decide_obligation(obligation, deadline=deadline, seed=limits.seed + index,
@@ -114,7 +115,7 @@ def decide_obligation(obligation: Obligation, *, deadline: float, seed: int = 0,
 
 
 def _check_time(deadline: float) -> None:
-    if time.monotonic() > deadline:
+    if decision_clock() > deadline:
         raise _OutOfTime()
 
 

@@ -13,13 +13,13 @@ arithmetic), and only a point that passes that check is returned.  A residue of 
 from __future__ import annotations
 
 import random
-import time
 from fractions import Fraction
 from itertools import islice
 from typing import Mapping, Sequence
 
 from sympy.polys.rings import PolyElement
 
+from verifier.model.limits import decision_clock
 from verifier.algebra.evaluate import DomainError, NotEvaluable
 from verifier.algebra.modular import PRIME
 from verifier.algebra.witness_check import exact_check
@@ -94,7 +94,7 @@ def polynomial_witness(left: Expr, right: Expr, conditions: Sequence[Condition],
     rng = random.Random(seed)
     checks = 0
     for point in islice(rational_points(problem, rng, variable_bounds(problem)), _CANDIDATES):
-        if time.monotonic() > deadline or checks >= _EXACT_CHECKS:
+        if decision_clock() > deadline or checks >= _EXACT_CHECKS:
             return None
         residues = [_residue(point[name]) for name in problem.names]
         values = [r for r in residues if r is not None]
