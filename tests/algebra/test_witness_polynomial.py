@@ -87,3 +87,14 @@ def test_the_command_line_refutes_the_wrong_identity_and_proves_the_right_one(cl
     true_right = right.replace("2*(", "(", 1)  # the last term back to coefficient 1
     found = cli.verdicts(tmp_path, "identities.py", [f"{left} == {right}", f"{left} == {true_right}"])
     assert found == {f"{left} == {right}": "refuted", f"{left} == {true_right}": "proved"}
+
+
+def test_definitions_among_the_conditions_are_computed_from_the_free_variables() -> None:
+    # Strassen's first two products with the second deliberately wrong (common practice: the 2x2 scheme)
+    conditions = ("m1 == (a11 + a22)*(b11 + b22)", "m2 == (a21 + a22)*b22")
+    left, right = "m1 + m2", "(a11 + a22)*(b11 + b22) + (a21 + a22)*b11"
+    witness = cheap(left, right, *conditions)
+    assert witness is not None
+    confirm_witness(expr(left), expr(right), tuple(cond(c) for c in conditions), witness.values)
+    # circular or non-definition equations are left to the full search
+    assert cheap("x", "y + 1", "x == y*z", "y == x*z") is None
