@@ -23,6 +23,10 @@ def misbehave(claim: Claim, timeout: float) -> Verdict:
         raise ValueError("deliberate failure")
     if text.startswith("nap "):
         time.sleep(float(text.split()[1]))
+    if text.startswith("spin "):  # computes (uses CPU) for that many CPU seconds, ignoring its time limit
+        end = time.process_time() + float(text.split()[1])
+        while time.process_time() < end:
+            pass
     return Verdict(claim, "proved", "expansion", f"decided in process {os.getpid()}", None, None, (), 0.0)
 
 

@@ -5,13 +5,13 @@ fractions, straight from its printed values.  The false rewrites are classic mis
 """
 from __future__ import annotations
 
-import time
 from fractions import Fraction
 
 import mpmath
 import pytest
 from mpmath import mp, mpf
 
+from verifier.model.limits import decision_clock
 from verifier.algebra.evaluate import exact_value
 from verifier.model.verdict import Witness
 from verifier.algebra.witness import check_witness, differs_mod_p, find_witness, parse_value
@@ -23,7 +23,7 @@ F = Fraction
 
 def search(left: str, right: str, *conditions: str, seconds: float = 10.0, seed: int = 0) -> Witness | None:
     return find_witness(expr(left), expr(right), [cond(c) for c in conditions],
-                        deadline=time.monotonic() + seconds, seed=seed)
+                        deadline=decision_clock() + seconds, seed=seed)
 
 
 def values_of(witness: Witness) -> dict[str, str]:
@@ -175,8 +175,8 @@ def test_functions_with_domains():
 
 def test_opaque_calls_and_expired_deadline_give_nothing():
     opaque = Opaque("helper", (Var("x"),))
-    assert find_witness(opaque, Var("x"), [], deadline=time.monotonic() + 5) is None
-    assert find_witness(expr("x + 1"), expr("x"), [], deadline=time.monotonic() - 1) is None
+    assert find_witness(opaque, Var("x"), [], deadline=decision_clock() + 5) is None
+    assert find_witness(expr("x + 1"), expr("x"), [], deadline=decision_clock() - 1) is None
 
 
 def test_search_is_deterministic_for_a_seed():
@@ -191,7 +191,7 @@ def test_search_is_deterministic_for_a_seed():
 def test_check_witness_accepts_what_find_witness_returns():
     left, right = expr("2*s*c"), expr("s")
     conditions = [cond("s**2 + c**2 == 1"), cond("s > 0.3"), cond("c > 0.1")]
-    w = find_witness(left, right, conditions, deadline=time.monotonic() + 10)
+    w = find_witness(left, right, conditions, deadline=decision_clock() + 10)
     assert w is not None
     assert check_witness(left, right, conditions, values_of(w)) == w
 
@@ -334,7 +334,7 @@ def test_unknown_functions_are_declined_not_raised():
     from verifier.model.expr import Call
 
     odd = Call("gamma", (Var("x"),))  # not one of the known functions
-    assert find_witness(odd, Var("x"), [], deadline=time.monotonic() + 2) is None
+    assert find_witness(odd, Var("x"), [], deadline=decision_clock() + 2) is None
     assert check_witness(odd, Var("x"), [], {"x": "1"}) is None
     assert differs_mod_p(odd, Var("x")) is None
 

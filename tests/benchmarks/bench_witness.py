@@ -13,6 +13,7 @@ import statistics
 import time
 from fractions import Fraction
 
+from verifier.model.limits import decision_clock
 from verifier.algebra.evaluate import numeric_value, variables
 from verifier.algebra.witness import differs_mod_p, find_witness
 from verifier.claims.language import parse_conditions, parse_expression
@@ -54,7 +55,7 @@ def main() -> None:
         found = None
         for _ in range(args.repeat):
             start = time.perf_counter()
-            found = find_witness(left, right, conditions, deadline=time.monotonic() + 30)
+            found = find_witness(left, right, conditions, deadline=decision_clock() + 30)
             times.append(time.perf_counter() - start)
         label = f"{left_text} == {right_text}" + (f" given {given}" if given else "")
         print(f"{label[:70]:70} {'yes' if found else 'no':>6} {statistics.median(times) / baseline:10.0f}")

@@ -30,7 +30,7 @@ def test_a_sleeping_worker_is_killed_and_the_others_are_still_reported() -> None
     verdicts = run(claims, options)
     assert [v.claim.id for v in verdicts] == [c.id for c in claims]
     assert [v.verdict for v in verdicts] == ["proved", "inconclusive", "proved"]
-    assert verdicts[1].reason == "time limit of 0.5 s exceeded"
+    assert verdicts[1].reason.startswith("time limit of 0.5 s exceeded")  # by the wall-clock safety net
 
 
 def test_the_memory_limit_is_enforced_in_the_worker() -> None:

@@ -1,8 +1,11 @@
 """The decision procedure: a claim's obligations -> proved / refuted / inconclusive, with evidence.
 
 For each obligation ``left == right`` under its conditions:
-1. without conditions, a random evaluation modulo a large prime refutes most false claims at once;
-2. the translation gives the difference f and the generators G (conditions and auxiliary equations);
+1. the translation gives the difference f and the generators G (conditions and auxiliary equations);
+2. refutation first: f (in the claim's own variables, no equation among the conditions) evaluated modulo a
+   prime at candidate points says where to look, the exact check on the claim decides
+   (``witness_polynomial.py``); without conditions, a random evaluation modulo a large prime shows most
+   other false claims and the full witness search runs before any Groebner basis;
 3. f in the ideal of G -> proved, with cofactors c such that f = sum c_i g_i (denominators cleared
    first, then a Groebner basis of G; method: expansion when no generator is needed, saturation when an
    inverse variable is, else ideal); f**k in it for a small k -> proved (radical);
@@ -19,6 +22,7 @@ import time
 from dataclasses import dataclass
 from typing import Sequence
 
+from verifier.model.limits import decision_clock
 from verifier.algebra.clearing import cleared_membership
 from verifier.algebra.describe import describe_translation
 from verifier.algebra.groebner import (
@@ -38,6 +42,7 @@ from verifier.algebra.sign_search import (
 )
 from verifier.algebra.translate import Translation, TranslationError, translate
 from verifier.algebra.witness import differs_mod_p, find_witness
+from verifier.algebra.witness_polynomial import polynomial_witness
 from verifier.model.certificate import Certificate, IdealCertificate
 from verifier.model.claim import Claim, Obligation
 from verifier.model.expr import has_opaque
@@ -68,7 +73,7 @@ def decide(claim: Claim, limits: Limits = Limits()) -> Verdict:
     if not claim.obligations:
         return Verdict(claim, "inconclusive", None, "the claim produced nothing to check", None, None, (),
                        round(time.monotonic() - start, 3))
-    deadline = start + limits.timeout
+    deadline = decision_clock() + limits.timeout  # CPU seconds: the verdict does not depend on load
     results: list[ObligationResult] = []
     for index, obligation in enumerate(claim.obligations):
         results.append(decide_obligation(obligation, deadline=deadline, seed=limits.seed + index,
@@ -110,21 +115,36 @@ def decide_obligation(obligation: Obligation, *, deadline: float, seed: int = 0,
 
 
 def _check_time(deadline: float) -> None:
-    if time.monotonic() > deadline:
+    if decision_clock() > deadline:
         raise _OutOfTime()
 
 
 def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
     label = ob.label
     notes = ob.notes
+    early: Translation | None = None
+    untranslatable: Exception | None = None
+    try:
+        early = translate(ob)
+    except (TranslationError, RecursionError) as exc:
+        untranslatable = exc  # raised below, after the witness search on the expressions had its chance
+    if early is not None:
+        # refutation first and cheap: the difference polynomial, screened modulo a prime, checked exactly
+        witness = polynomial_witness(ob.left, ob.right, ob.conditions, early.difference, deadline=deadline,
+                                     seed=seed)
+        if witness is not None:
+            cnf, assumed, plain = _normal_form_text(ob, deadline, early)
+            return ObligationResult(label, "refuted", None, _refuted_reason(notes, plain), cnf, witness, assumed)
     if not ob.conditions and differs_mod_p(ob.left, ob.right, seed=seed) is True:
         # false as rational functions: look for a witness first, then the counter-normal-form if affordable
         witness = find_witness(ob.left, ob.right, ob.conditions, deadline=deadline, seed=seed)
         if witness is not None:
-            cnf, assumed, plain = _normal_form_text(ob, deadline)
+            cnf, assumed, plain = _normal_form_text(ob, deadline, early)
             return ObligationResult(label, "refuted", None, _refuted_reason(notes, plain), cnf, witness, assumed)
-    _check_time(deadline)
-    tr = translate(ob)
+    if untranslatable is not None:
+        raise untranslatable
+    assert early is not None
+    tr = early
     _check_time(deadline)
     generators = [g.poly for g in tr.generators]
     f = tr.difference
@@ -228,11 +248,12 @@ def _describe(tr: Translation, basis: Sequence, deadline: float) -> str | None:
         return None
 
 
-def _normal_form_text(ob: Obligation, deadline: float) -> tuple[str, tuple[str, ...], str | None]:
+def _normal_form_text(ob: Obligation, deadline: float, translated: Translation | None = None
+                      ) -> tuple[str, tuple[str, ...], str | None]:
     """The counter-normal-form (and its plain description) for a claim already known to be false, within
-    what time is left."""
+    what time is left (``translated``: the obligation's translation when it is already at hand)."""
     try:
-        tr = translate(ob)
+        tr = translated if translated is not None else translate(ob)
         generators = [g.poly for g in tr.generators]
         basis = groebner_basis(generators, track_cofactors=False, deadline=deadline).basis if generators else ()
         _, normal_form = reduce(tr.difference, basis, deadline=deadline) if basis else ((), tr.difference)

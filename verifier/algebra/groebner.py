@@ -89,7 +89,7 @@ def groebner_basis(
 
     The basis is monic, inter-reduced and sorted by leading monomial, largest first.  With
     ``track_cofactors`` every basis element comes with its cofactors over ``generators`` (lifted on first
-    use).  Raises :class:`GroebnerTimeout` once ``time.monotonic()`` passes ``deadline``; the clock is
+    use).  Raises :class:`GroebnerTimeout` once ``decision_clock()`` (CPU seconds) passes ``deadline``; the clock is
     read between two reductions, each of which runs in FLINT without interruption.
     """
     gens = list(generators)

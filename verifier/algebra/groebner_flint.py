@@ -10,13 +10,13 @@ reduction gives the recorded polynomial.
 from __future__ import annotations
 
 import heapq
-import time
 from dataclasses import dataclass
 from operator import ge, sub
 from typing import Any, Sequence
 
 import flint
 
+from verifier.model.limits import decision_clock
 from verifier.algebra.groebner_division import GroebnerTimeout, Monom, ascending_key_function
 
 FLINT_ORDERING = {"grevlex": "degrevlex", "lex": "lex", "grlex": "deglex"}
@@ -99,7 +99,7 @@ class _Run:
         self.newer: dict[int, int] = {}
 
     def check_deadline(self) -> None:
-        if self.deadline is not None and time.monotonic() > self.deadline:
+        if self.deadline is not None and decision_clock() > self.deadline:
             raise GroebnerTimeout("Groebner basis computation passed its deadline")
 
     def reduce(self, p: Any, sugar: int, origin: Origin) -> int | None:

@@ -5,7 +5,6 @@ minimum-norm Gauss-Newton steps, so that under- and over-determined systems (dep
 """
 from __future__ import annotations
 
-import time
 from fractions import Fraction
 from typing import Mapping, Sequence, Union
 
@@ -14,6 +13,7 @@ from mpmath import mp, mpf
 # `mpmath.matrix` is a class built at run time on the context, so it cannot be an annotation: use its base
 from mpmath.matrices.matrices import _matrix as Matrix
 
+from verifier.model.limits import decision_clock
 from verifier.algebra.evaluate import numeric_value, tiny, to_mpf
 from verifier.model.claim import Condition
 
@@ -97,7 +97,7 @@ def newton(equations: Sequence[Condition], start: Mapping[str, Real], unknowns: 
         eps = tiny(prec)
         history: list[mpf] = []
         for _ in range(iterations + polish):
-            if deadline is not None and time.monotonic() > deadline:
+            if deadline is not None and decision_clock() > deadline:
                 return None
             try:
                 res = residuals(equations, point, prec)

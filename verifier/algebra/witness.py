@@ -8,7 +8,6 @@ A claim is refuted only with a witness returned from here, and only a checked wi
 from __future__ import annotations
 
 import random
-import time
 from fractions import Fraction
 from itertools import islice
 from typing import Iterator, Mapping, Sequence
@@ -16,6 +15,7 @@ from typing import Iterator, Mapping, Sequence
 import mpmath
 from mpmath import mp, mpf
 
+from verifier.model.limits import decision_clock
 from verifier.algebra.evaluate import DomainError, NotEvaluable, exact_value, numeric_value
 from verifier.algebra.modular import differs_mod_p  # noqa: F401  (re-exported: part of the witness API)
 from verifier.algebra.newton import newton, scale
@@ -163,7 +163,7 @@ def _numeric_solutions(problem: WitnessProblem, rng: random.Random, tries: int, 
     variable per equation (the others fixed at random rationals), and every other try minimum-norm steps
     on all the equations' variables.  A root that is a small fraction is offered exactly first."""
     for attempt in range(tries):
-        if time.monotonic() > deadline:
+        if decision_clock() > deadline:
             return
         unknowns = _choose_unknowns(problem, rng)
         # fixed values mostly of size about 1, where equations such as unit norms have real solutions
@@ -251,8 +251,8 @@ def _candidates(problem: WitnessProblem, rng: random.Random, deadline: float) ->
 def find_witness(left: Expr, right: Expr, conditions: Sequence[Condition], *, deadline: float,
                  seed: int = 0) -> Witness | None:
     """A checked real point where every condition holds and ``left != right``, or None (none found before
-    ``deadline`` (time.monotonic()), or an opaque call is involved)."""
-    if time.monotonic() > deadline:
+    ``deadline`` (``decision_clock()``, CPU seconds), or an opaque call is involved)."""
+    if decision_clock() > deadline:
         return None
     try:
         problem = build_problem(left, right, conditions)
@@ -262,7 +262,7 @@ def find_witness(left: Expr, right: Expr, conditions: Sequence[Condition], *, de
         return None
     rng = random.Random(seed)
     candidates = _candidates(problem, rng, deadline)
-    while time.monotonic() <= deadline:
+    while decision_clock() <= deadline:
         try:
             point = next(candidates)
         except StopIteration:

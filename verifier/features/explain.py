@@ -9,7 +9,6 @@ witness).  ``report/explain_text.py`` turns an ``Explanation`` into text.
 from __future__ import annotations
 
 import os
-import time
 from fractions import Fraction
 from pathlib import Path
 from typing import Any, Sequence
@@ -18,6 +17,7 @@ from sympy import QQ, Symbol
 from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
+from verifier.model.limits import decision_clock
 from verifier.algebra.decide import Limits, decide
 from verifier.algebra.describe import describe_difference
 from verifier.algebra.groebner import GroebnerTimeout, groebner_basis, reduce
@@ -280,7 +280,7 @@ def explain_claim(
     if claim.problem is not None:
         return ClaimExplanation(claim, verdict, ())
     results: Sequence[ObligationResult | None] = verdict.obligations or (None,) * len(claim.obligations)
-    deadline = time.monotonic() + timeout
+    deadline = decision_clock() + timeout
     explained = tuple(
         explain_obligation(ob, res, deadline=deadline, accuracy=accuracy)
         for ob, res in zip(claim.obligations, results)

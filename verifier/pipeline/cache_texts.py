@@ -10,9 +10,9 @@ compare a fresh and a cached verdict text for text.
 """
 from __future__ import annotations
 
-import time
 from dataclasses import replace
 
+from verifier.model.limits import decision_clock
 from verifier.model.certificate import (
     Certificate,
     ConjugateCertificate,
@@ -102,7 +102,7 @@ def refuted_texts(obligation: Obligation, result: ObligationResult, timeout: flo
     assumptions computed again, within ``timeout`` seconds."""
     from verifier.algebra.decide import _normal_form_text, _refuted_reason  # decide's own wording
 
-    cnf, assumed, plain = _normal_form_text(obligation, time.monotonic() + timeout)
+    cnf, assumed, plain = _normal_form_text(obligation, decision_clock() + timeout)
     return replace(result, method=None, reason=_refuted_reason(obligation.notes, plain), counter_normal_form=cnf,
                    assumed=tuple(assumed), certificate=None, vacuous=False, limit=None)
 

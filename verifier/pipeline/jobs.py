@@ -11,6 +11,7 @@ import time
 from collections.abc import Callable
 from typing import Any
 
+from verifier.model.limits import decision_clock
 from verifier.model.claim import Claim, ExtractionContext, FileProblem, Location, Problem
 from verifier.model.verdict import Limit, Verdict, VerdictName
 from verifier.pipeline.workers import Job, PoolSettings, memory_limit_reason
@@ -62,6 +63,7 @@ def decide_guarded(claim: Claim, timeout: float, memory_mb: int, decider: str = 
     marked so (``limit="time"``), whatever its reason says, and is therefore never cached.
     """
     start = time.monotonic()
+    cpu_start = decision_clock()
     try:
         verdict = _resolve(decider)(claim, timeout)
     except MemoryError:
@@ -71,7 +73,8 @@ def decide_guarded(claim: Claim, timeout: float, memory_mb: int, decider: str = 
     except Exception as exc:  # an engine bug is reported on its claim, never as a crash of the run
         reason = f"internal error in the decision procedure: {type(exc).__name__}: {exc}"
         return limit_verdict(claim, reason, time.monotonic() - start, verdict="error")
-    if verdict.limit is None and verdict.verdict == "inconclusive" and time.monotonic() - start >= timeout:
+    if (verdict.limit is None and verdict.verdict == "inconclusive"
+            and decision_clock() - cpu_start >= timeout):  # CPU seconds, as the limit counts them
         from dataclasses import replace
 
         verdict = replace(verdict, limit="time")

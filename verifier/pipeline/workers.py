@@ -2,7 +2,9 @@
 
 Reading the claims of a file (including the symbolic execution of Python functions) and deciding a claim
 are jobs.  Each job runs in a worker process that has an address-space limit (``RLIMIT_AS``) and is
-killed when it overruns its time limit by more than a grace period; a job whose worker dies or overruns
+killed when its CPU time overruns the job's time limit by more than a grace period (read from
+``/proc/PID/stat``; wall time where that is not available), or when its wall time passes
+``WALL_SAFETY_FACTOR`` times the limit (a job blocked in a wait): a busy machine does not change verdicts; a job whose worker dies or overruns
 gets a result from ``on_limit`` naming the limit, and the remaining jobs still run (a new worker replaces
 the dead one).  Results come back keyed by the job's index, whatever the number of workers.
 
@@ -28,6 +30,7 @@ from dataclasses import dataclass
 from multiprocessing.connection import Connection, wait
 from typing import Any
 
+from verifier.model.limits import WALL_SAFETY_FACTOR
 from verifier.model.verdict import Limit
 
 # Seconds a worker may run past the job's own time limit before it is killed: ``decide`` checks its
@@ -143,6 +146,7 @@ class _Worker:
     conn: Connection
     task: tuple[int, Job] | None = None
     started: float = 0.0
+    cpu_started: float | None = None  # the worker's CPU seconds when it was given its task
 
 
 class _Pool:
@@ -218,6 +222,33 @@ def _died_reason(exitcode: int | None, memory_mb: int) -> tuple[Limit | None, st
         # limit inside native code (allocation failure) or been chosen by the kernel's out-of-memory killer.
         return "memory", f"{memory_limit_reason(memory_mb)} (the worker process ended with signal {-exitcode})"
     return None, f"the worker process ended unexpectedly (exit status {exitcode})"
+
+
+_CLOCK_TICKS = os.sysconf("SC_CLK_TCK") if hasattr(os, "sysconf") and "SC_CLK_TCK" in os.sysconf_names else 100
+
+
+def process_cpu_seconds(pid: int | None) -> float | None:
+    """User plus system CPU seconds of process ``pid`` (Linux ``/proc``), None where they cannot be read."""
+    if pid is None:
+        return None
+    try:
+        with open(f"/proc/{pid}/stat", "rb") as handle:
+            fields = handle.read().rsplit(b")", 1)[1].split()
+        return (int(fields[11]) + int(fields[12])) / _CLOCK_TICKS  # utime, stime (fields 14 and 15)
+    except (OSError, IndexError, ValueError):
+        return None
+
+
+def _left(worker: _Worker, grace: float, now: float) -> float:
+    """Seconds left before the worker overruns its task: CPU seconds against the time limit, wall seconds
+    against the safety net (wall seconds against the limit where CPU time cannot be read)."""
+    assert worker.task is not None
+    seconds = worker.task[1].seconds
+    wall_left = worker.started + seconds * WALL_SAFETY_FACTOR + grace - now
+    cpu_now = process_cpu_seconds(worker.process.pid) if worker.cpu_started is not None else None
+    if cpu_now is None or worker.cpu_started is None:
+        return min(wall_left, worker.started + seconds + grace - now)
+    return min(wall_left, seconds + grace - (cpu_now - worker.cpu_started))
 
 
 def time_limit_reason(timeout: float) -> str:
@@ -300,6 +331,7 @@ def _hand_out(pool: _Pool, queue: list[tuple[int, Job]], results: dict[int, Any]
                 continue
             worker.task = (index, job)
             worker.started = time.monotonic()
+            worker.cpu_started = process_cpu_seconds(worker.process.pid)
             try:
                 worker.conn.send_bytes(data)
             except (OSError, ValueError):  # the worker died before taking work: its pipe reports it
@@ -312,7 +344,8 @@ def _collect(pool: _Pool, queue: list[tuple[int, Job]], results: dict[int, Any],
     if not busy:
         return
     now = time.monotonic()
-    wait_for = max(0.0, min(w.started + w.task[1].seconds + settings.kill_grace for w in busy if w.task) - now)
+    # CPU time grows at most as fast as wall time: what is left of the CPU budget is a safe wait
+    wait_for = max(0.005, min(_left(w, settings.kill_grace, now) for w in busy))
     ready = wait([w.conn for w in busy], timeout=wait_for)
     now = time.monotonic()
     for worker in busy:
@@ -347,8 +380,10 @@ def _collect(pool: _Pool, queue: list[tuple[int, Job]], results: dict[int, Any],
                     on_done()
                     continue
                 reason = "the worker process answered out of turn"
-        elif now - worker.started >= job.seconds + settings.kill_grace:
+        elif _left(worker, settings.kill_grace, now) <= 0:
             limit, reason = "time", time_limit_reason(job.seconds)
+            if now - worker.started >= job.seconds * WALL_SAFETY_FACTOR + settings.kill_grace:
+                reason += f" (wall-clock safety net of {job.seconds * WALL_SAFETY_FACTOR:g} s)"
         else:
             continue
         results[index] = on_limit(index, job, limit, reason, now - worker.started)
