@@ -13,7 +13,7 @@ import mpmath
 import pytest
 from mpmath import cos, pi, sin, sqrt, tan
 
-from verifier.algebra.angles import NESTED_PI_VALUES, PI_VALUES, RootSum
+from verifier.algebra.angles import DOUBLE_ANGLE_VALUES, NESTED_PI_VALUES, PI_VALUES, RootSum
 
 # claim text -> LEFT - RIGHT in mpmath at x
 PROVED = {
@@ -35,6 +35,9 @@ PROVED = {
     "sin(pi/8)**2 == (2 - sqrt(2))/4": lambda x: sin(pi / 8) ** 2 - (2 - sqrt(2)) / 4,
     "sin(pi/10) == (sqrt(5) - 1)/4": lambda x: sin(pi / 10) - (sqrt(5) - 1) / 4,
     "cos(2*pi/5) == (sqrt(5) - 1)/4": lambda x: cos(2 * pi / 5) - (sqrt(5) - 1) / 4,
+    "cos(11*pi/8) == -sqrt(1/2 - sqrt(2)/4)": lambda x: cos(11 * pi / 8) + sqrt(mpmath.mpf(1) / 2 - sqrt(2) / 4),
+    "sin(x + 8*pi/5) == (sqrt(5) - 1)*sin(x)/4 - sqrt(sqrt(5)/8 + 5/8)*cos(x)":
+        lambda x: sin(x + 8 * pi / 5) - (sqrt(5) - 1) * sin(x) / 4 + sqrt(sqrt(5) / 8 + mpmath.mpf(5) / 8) * cos(x),
     "sin(x + pi/5) == sin(x)*(1 + sqrt(5))/4 + cos(x)*sqrt(10 - 2*sqrt(5))/4":
         lambda x: sin(x + pi / 5) - sin(x) * (1 + sqrt(5)) / 4 - cos(x) * sqrt(10 - 2 * sqrt(5)) / 4,
 }
@@ -74,6 +77,9 @@ def test_the_nested_table_agrees_with_mpmath(n: int) -> None:
                                                                       mpmath.sin(mpmath.pi / n))):
             value = _value(root_sum) if shape == "value" else mpmath.sqrt(_value(root_sum))
             assert shape in ("value", "root") and abs(value - exact) < mpmath.mpf(10) ** -45
+        shape, root_sum, _ = DOUBLE_ANGLE_VALUES[n]
+        value = _value(root_sum) if shape == "value" else mpmath.sqrt(_value(root_sum))
+        assert abs(value - mpmath.sin(2 * mpmath.pi / n)) < mpmath.mpf(10) ** -45
 
 
 def test_exact_values_at_pi_over_n_end_to_end(cli, tmp_path: Path) -> None:

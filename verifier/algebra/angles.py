@@ -50,6 +50,14 @@ NESTED_PI_VALUES: dict[int, tuple[tuple[str, RootSum, str], tuple[str, RootSum, 
          ("value", ((-_QUARTER, ()), (_QUARTER, (5,))), "(sqrt(5) - 1)/4")),
 }
 
+# sin(2*pi/n) for the nested entries: products of two different roots (sin(pi/5)*sin(2*pi/5) = sqrt(5)/4)
+# are only known through it.  Common practice, from memory; the tests check each against mpmath.
+DOUBLE_ANGLE_VALUES: dict[int, tuple[str, RootSum, str]] = {
+    5: ("root", ((Fraction(5, 8), ()), (_EIGHTH, (5,))), "sqrt(10 + 2*sqrt(5))/4"),
+    8: ("value", ((_HALF, (2,)),), "sqrt(2)/2"),
+    10: ("root", ((Fraction(5, 8), ()), (-_EIGHTH, (5,))), "sqrt(10 - 2*sqrt(5))/4"),
+}
+
 
 def pi_values(n: int) -> Iterator[tuple[str, str, RootSum, str]]:
     """(function, "value" or "root", sum, text) for the exact values of cos and sin at pi/n, if known."""
@@ -57,6 +65,9 @@ def pi_values(n: int) -> Iterator[tuple[str, str, RootSum, str]]:
         yield function, "value", value, text
     for function, (shape, nested, text) in zip(("cos", "sin"), NESTED_PI_VALUES.get(n, ())):
         yield function, shape, nested, text
+    if n in DOUBLE_ANGLE_VALUES:  # 2*sin*cos = sin(2*pi/n): ties two roots together with the sign known
+        shape, double, text = DOUBLE_ANGLE_VALUES[n]
+        yield "2*sin*cos", shape, double, text
 
 
 def scaled(text: str, scale: int, step: int = 1) -> str:

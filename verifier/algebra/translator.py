@@ -389,8 +389,8 @@ class Translator:
                 for function, shape, value, text in pi_values(scale):
                     exact = self._root_sum(value)
                     exact = self.sqrt(exact) if shape == "root" else exact  # may extend the ring: then lift
-                    self.add_generator(self.lift(c if function == "cos" else s) - self.lift(exact), "trig",
-                                       f"{function}({base_text}) == {text}")
+                    atom = {"cos": self.lift(c), "sin": self.lift(s)}.get(function, 2 * self.lift(c) * self.lift(s))
+                    self.add_generator(atom - self.lift(exact), "trig", f"{function}({base_text}) == {text}")
         return self.lift(c), self.lift(s)
 
     def _root_sum(self, value: RootSum) -> PolyElement:
