@@ -554,6 +554,74 @@ def conic(draw: Draw, meant_true: bool) -> Case:
     return claim(draw, "conic", left, right, conditions, sample, meant_true)
 
 
+@st.composite
+def pi_nested(draw: Draw, meant_true: bool) -> Case:
+    """Exact values at k*pi/n for n = 5, 8, 10 (nested roots; sympy's own radicals) and shifts by pi/5."""
+    n = draw(st.sampled_from([5, 8, 10]))
+    angle = sympy.Rational(draw(st.integers(-2 * n, 2 * n)), n) * PI
+    function = draw(st.sampled_from([sympy.sin, sympy.cos]))
+    if draw(st.booleans()):
+        left, right = function(angle, evaluate=False), function(angle)
+        sample = free_sampler([])
+    else:
+        left = function(sympy.Add(X, angle, evaluate=False), evaluate=False)
+        right = sympy.expand(sympy.expand_trig(function(X + angle)))
+        sample = free_sampler(["x"])
+    if not meant_true:
+        wrong = [right + sympy.Rational(1, 2), right - 1] + ([-right] if right != 0 else [])
+        right = draw(st.sampled_from(wrong))
+    return claim(draw, "pi_nested", left, right, (), sample, meant_true)
+
+
+@st.composite
+def real_only(draw: Draw, meant_true: bool) -> Case:
+    """Reasoning true only over the reals: exp one-to-one, the zero of sin inside (-pi, pi), sign hypotheses
+    c/P > 0, P**3 >= 0, exp(P) >= 1, and square roots whose domains pin a point."""
+    kind = draw(st.sampled_from(["exp", "sin", "sign", "domain"]))
+    a, b = small_int(draw), small_int(draw, nonzero=False)
+    if kind == "exp":
+        conditions = [Condition(sympy.exp(a * X + b), "==", sympy.exp(Y))]
+        right = a * X + b + (0 if meant_true else 1)
+
+        def sample(rng: random.Random) -> dict[str, mpmath.mpf]:
+            x = uniform(rng)
+            return as_mpf({"x": x, "y": a * x + b})
+
+        return claim(draw, "real_only", Y, right, conditions, sample, meant_true)
+    if kind == "sin":
+        high = draw(st.sampled_from([1, 2, 3])) if meant_true else 4
+        conditions = [Condition(sympy.sin(X), "==", sympy.Integer(0)), Condition(X, ">", sympy.Integer(-1)),
+                      Condition(X, "<", sympy.Integer(high))]
+
+        def sample(rng: random.Random) -> dict[str, mpmath.mpf]:
+            with mpmath.workdps(50):
+                return {"x": mpmath.pi if not meant_true and rng.random() < 0.5 else mpmath.mpf(0),
+                        "y": as_mpf({"y": uniform(rng)})["y"]}
+
+        return claim(draw, "real_only", X * Y + a * X, sympy.Integer(0), conditions, sample, meant_true)
+    if kind == "sign":
+        shifted = X - b
+        hypothesis = draw(st.sampled_from([Condition(abs(a) / shifted, ">", sympy.Integer(0)),
+                                           Condition(shifted**3, ">=", sympy.Integer(0)),
+                                           Condition(sympy.exp(shifted), ">=", sympy.Integer(1))]))
+        if not meant_true:
+            hypothesis = Condition(shifted**2, ">=", sympy.Integer(0))
+
+        def sample(rng: random.Random) -> dict[str, mpmath.mpf]:
+            x = uniform(rng, 0, 3) + b if meant_true else uniform(rng)
+            return as_mpf({"x": x if x != b else x + 1})
+
+        left = sympy.sqrt(sympy.expand(shifted**2))
+        return claim(draw, "real_only", left, sympy.expand(shifted), [hypothesis], sample, meant_true)
+    left = sympy.sqrt(abs(a) * (X - Y)) + sympy.sqrt(abs(a) * (Y - X))
+
+    def sample(rng: random.Random) -> dict[str, mpmath.mpf]:
+        y = uniform(rng)
+        return as_mpf({"x": y, "y": y})
+
+    return claim(draw, "real_only", left, sympy.Integer(0 if meant_true else 1), (), sample, meant_true)
+
+
 FAMILIES: dict[str, Callable[[bool], st.SearchStrategy[Case]]] = {
     "poly_expand": poly_expand,
     "horner": horner,
@@ -570,4 +638,6 @@ FAMILIES: dict[str, Callable[[bool], st.SearchStrategy[Case]]] = {
     "radical_subst": radical_subst,
     "large_angle": large_angle,
     "conic": conic,
+    "pi_nested": pi_nested,
+    "real_only": real_only,
 }

@@ -36,6 +36,39 @@ PI_VALUES: dict[int, tuple[tuple[RootSum, str], tuple[RootSum, str]]] = {
          (((_QUARTER, (2, 3)), (-_QUARTER, (2,))), "(sqrt(6) - sqrt(2))/4")),
 }
 
+_EIGHTH = Fraction(1, 8)
+
+# Values that need a nested root: (cos(pi/n), sin(pi/n)), each either ("value", RootSum) or ("root",
+# RootSum), the latter meaning the principal square root of that sum (sin(pi/8) = sqrt((2 - sqrt(2))/4)).
+# Common practice (the regular pentagon and octagon; from memory, the tests check each against mpmath).
+NESTED_PI_VALUES: dict[int, tuple[tuple[str, RootSum, str], tuple[str, RootSum, str]]] = {
+    5: (("value", ((_QUARTER, ()), (_QUARTER, (5,))), "(1 + sqrt(5))/4"),
+        ("root", ((Fraction(5, 8), ()), (-_EIGHTH, (5,))), "sqrt(10 - 2*sqrt(5))/4")),
+    8: (("root", ((_HALF, ()), (_QUARTER, (2,))), "sqrt(2 + sqrt(2))/2"),
+        ("root", ((_HALF, ()), (-_QUARTER, (2,))), "sqrt(2 - sqrt(2))/2")),
+    10: (("root", ((Fraction(5, 8), ()), (_EIGHTH, (5,))), "sqrt(10 + 2*sqrt(5))/4"),
+         ("value", ((-_QUARTER, ()), (_QUARTER, (5,))), "(sqrt(5) - 1)/4")),
+}
+
+# sin(2*pi/n) for the nested entries: products of two different roots (sin(pi/5)*sin(2*pi/5) = sqrt(5)/4)
+# are only known through it.  Common practice, from memory; the tests check each against mpmath.
+DOUBLE_ANGLE_VALUES: dict[int, tuple[str, RootSum, str]] = {
+    5: ("root", ((Fraction(5, 8), ()), (_EIGHTH, (5,))), "sqrt(10 + 2*sqrt(5))/4"),
+    8: ("value", ((_HALF, (2,)),), "sqrt(2)/2"),
+    10: ("root", ((Fraction(5, 8), ()), (-_EIGHTH, (5,))), "sqrt(10 - 2*sqrt(5))/4"),
+}
+
+
+def pi_values(n: int) -> Iterator[tuple[str, str, RootSum, str]]:
+    """(function, "value" or "root", sum, text) for the exact values of cos and sin at pi/n, if known."""
+    for function, (value, text) in zip(("cos", "sin"), PI_VALUES.get(n, ())):
+        yield function, "value", value, text
+    for function, (shape, nested, text) in zip(("cos", "sin"), NESTED_PI_VALUES.get(n, ())):
+        yield function, shape, nested, text
+    if n in DOUBLE_ANGLE_VALUES:  # 2*sin*cos = sin(2*pi/n): ties two roots together with the sign known
+        shape, double, text = DOUBLE_ANGLE_VALUES[n]
+        yield "2*sin*cos", shape, double, text
+
 
 def scaled(text: str, scale: int, step: int = 1) -> str:
     text = text if step == 1 else f"{step}*{parenthesized(text)}"

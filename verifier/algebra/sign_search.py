@@ -260,6 +260,18 @@ def _positive_factor_squares(tr: Translation, f: PolyElement) -> list[tuple[Frac
     return None
 
 
+def _positive_basis_squares(basis: GroebnerResult, f: PolyElement) -> list[tuple[Fraction, PolyElement]] | None:
+    """A basis element b == sum(d*l**2) + c with c > 0 has no real zero (sin(x) == 2 leaves cos(x)**2 + 3):
+    then f**2 + sum((d/c)*(f*l)**2) == f**2*b/c lies in the ideal, so the claim holds vacuously."""
+    for b in basis.basis:
+        for q in (b, -b):
+            found = quadratic_squares(q, constant_last=True)
+            if found and found[-1][1] == f.ring.one and found[-1][0] > 0:
+                constant = found[-1][0]
+                return [(weight / constant, f * linear) for weight, linear in found[:-1]]
+    return None
+
+
 def find_real_square(tr: Translation, basis: GroebnerResult, *,
                      deadline: float | None) -> RealSquareCertificate | None:
     """f**2 + P in the ideal with P >= 0 by its sign pattern: then f**2 == -P <= 0, so f == 0 over the
@@ -283,7 +295,7 @@ def find_real_square(tr: Translation, basis: GroebnerResult, *,
                 p = candidate
                 break
         if found is None:
-            found = _positive_factor_squares(tr, f)
+            found = _positive_factor_squares(tr, f) or _positive_basis_squares(basis, f)
             if found is None:
                 return None
             p = sum((f.ring(w.numerator) / w.denominator * q**2 for w, q in found), f.ring.zero)

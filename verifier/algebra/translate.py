@@ -22,6 +22,7 @@ from verifier.algebra.translator import (
     Translator,
 )
 from verifier.model.claim import Condition, Obligation
+from verifier.algebra.real_conditions import with_real_consequences
 from verifier.model.explanation import AuxVariable
 from verifier.model.expr import Expr, Num, Var, substitute, variables
 
@@ -119,7 +120,7 @@ def _positive_variables(conditions: Sequence[Condition]) -> set[str]:
     return out
 
 
-def _two_sided_bounds(signs: list[tuple[PolyElement, bool]], conditions: list[Condition]
+def _two_sided_bounds(signs: list[tuple[PolyElement, bool]], texts: list[str]
                       ) -> list[tuple[PolyElement, str]]:
     """``S >= 0`` and ``-c*S >= 0`` (c > 0) mean ``S == 0`` over the reals: the equation joins the ideal
     (``x == 1`` given ``x >= 1, x <= 1``; a branch ``x >= 0`` on a path that also has ``x <= 0``)."""
@@ -134,13 +135,13 @@ def _two_sided_bounds(signs: list[tuple[PolyElement, bool]], conditions: list[Co
                 key = tuple(sorted(first.monic().terms()))
                 if key not in seen:
                     seen.add(key)
-                    found.append((first, f"{conditions[i].text} and {conditions[j].text}"))
+                    found.append((first, f"{texts[i]} and {texts[j]}"))
     return found
 
 
 def translate(obligation: Obligation) -> Translation:
     """Translate one obligation; raises TranslationError for what cannot be represented."""
-    obligation = resolve_by_cases(obligation)
+    obligation = with_real_consequences(resolve_by_cases(obligation))
     substituted = _substitute_constants(obligation)
     if substituted is not obligation:
         try:
@@ -187,10 +188,13 @@ def _translate(obligation: Obligation) -> Translation:
                     t.inverse(diff)
         else:
             raise TranslationError(f"unknown relation {cond.relation!r}")
-    for poly, meaning in _two_sided_bounds(signs, sign_conditions):
-        t.add_generator(poly, "equation", meaning)
     left = t.value(obligation.left)
     right = t.value(obligation.right)
+    # with the domains of square roots: sqrt(x - y) + sqrt(y - x) needs x - y >= 0 and y - x >= 0
+    bounds = signs + [(t.lift(p), strict) for p, strict in t.domain_signs]
+    texts = [c.text for c in sign_conditions] + [f"{t.printed(p)} >= 0 (domain)" for p, _ in t.domain_signs]
+    for poly, meaning in _two_sided_bounds([(t.lift(p), strict) for p, strict in bounds], texts):
+        t.add_generator(poly, "equation", meaning)
     # the final ring: auxiliary variables first (larger in the order), then the original variables
     aux_names = [a.name for a in t.aux]
     if not t.variables and not aux_names:

@@ -31,7 +31,7 @@ from sympy.polys.orderings import grevlex
 from sympy.polys.rings import PolyElement, PolyRing
 
 from verifier.algebra import logarithms
-from verifier.algebra.angles import (MAX_ANGLE_MULTIPLE, MIN_ANGLE_STEP, PI_VALUES, RootSum, has_scaled_call,
+from verifier.algebra.angles import (MAX_ANGLE_MULTIPLE, MIN_ANGLE_STEP, RootSum, pi_values, has_scaled_call,
                                      multiple_angle, scaled, scaled_calls)
 from verifier.algebra.polytext import format_poly, parenthesized, poly_key
 from verifier.algebra.radicands import split_constant_radicand
@@ -207,10 +207,14 @@ class Translator:
         else:
             content, primitive = u.primitive()
             content_value = Fraction(int(content.numerator), int(content.denominator))
+            if content_value < 0:  # the content takes the sign of the leading term: keep it positive
+                content_value, primitive = -content_value, -primitive
             root = rational_sqrt(content_value) if content_value > 0 else None
-            if root is not None and content_value != 1:
-                radical = self.sqrt(self.lift(primitive))
-                return self.const(root) * radical
+            if content_value != 1:
+                # sqrt(c*p) = sqrt(c)*sqrt(p), c > 0 (p >= 0 on the domain): 10 - 2*sqrt(5) shares sqrt(5 - sqrt(5))
+                factor = self.const(root) if root is not None else self.sqrt(self.const(content_value))
+                radical = self.sqrt(self.lift(primitive))  # may extend the ring: lift both after it
+                return self.lift(factor) * self.lift(radical)
         key = ("sqrt", poly_key(u))
         if key in self._atoms:
             return self.gen(self._atoms[key])
@@ -379,25 +383,25 @@ class Translator:
             self._atoms[pair_key] = ""
             c, s = self.lift(c), self.lift(s)
             self.add_generator(s**2 + c**2 - 1, "trig", f"sin({base_text})**2 + cos({base_text})**2 == 1")
-            if step == 1 and scale in PI_VALUES and self._is_pi(key):
+            if step == 1 and self._is_pi(key):
                 # exact values at pi/scale: sin(pi) = 0, cos(pi/3) = 1/2, sin(pi/4) = sqrt(2)/2 (with the
-                # principal root, so that the sign is known), ...
-                for function, (value, text) in zip(("cos", "sin"), PI_VALUES[scale]):
-                    atom = c if function == "cos" else s
-                    self.add_generator(self._pinned(atom, value), "trig", f"{function}({base_text}) == {text}")
+                # principal root, so that the sign is known), sin(pi/8) = sqrt((2 - sqrt(2))/4) ...
+                for function, shape, value, text in pi_values(scale):
+                    exact = self._root_sum(value)
+                    exact = self.sqrt(exact) if shape == "root" else exact  # may extend the ring: then lift
+                    atom = {"cos": self.lift(c), "sin": self.lift(s)}.get(function, 2 * self.lift(c) * self.lift(s))
+                    self.add_generator(atom - self.lift(exact), "trig", f"{function}({base_text}) == {text}")
         return self.lift(c), self.lift(s)
 
-    def _pinned(self, atom: PolyElement, value: RootSum) -> PolyElement:
-        """m*(atom - value) with m the common denominator of value; its square roots of primes are the
-        radical variables sqrt(p) that the claim's own sqrt(p) shares."""
-        denominator = math.lcm(1, *(coefficient.denominator for coefficient, _ in value))
-        total = self.lift(atom) * denominator
+    def _root_sum(self, value: RootSum) -> PolyElement:
+        """value as a polynomial; its sqrt(p) are the radical variables that the claim's own sqrt(p) shares."""
+        total = self.const(0)
         for coefficient, primes in value:
-            term = self.const(coefficient * denominator)
+            term = self.const(coefficient)
             for prime in primes:
                 radical = self.sqrt(self.const(prime))  # may extend the ring: compute before lifting
                 term = self.lift(term) * self.lift(radical)
-            total = self.lift(total) - self.lift(term)
+            total = self.lift(total) + self.lift(term)
         return self.lift(total)
 
     def exponential(self, arg: PolyElement) -> PolyElement:
