@@ -54,15 +54,24 @@ def run_on_ir(function: t.Function, resolve: Callable[[str], t.Function | None],
     if functions is None:
         return None
     top = functions.pop("")
+    if args is not None and any(p.kind is not ir.ParameterKind.VALUE for p in top.parameters):
+        return None  # `same as` passes the inputs only: the kernel runner binds them
     executor = Executor(KernelScope(functions), unroll_limit=unroll_limit, inline_depth=inline_depth)
     ir_args: list[IrValue] | None = None if args is None else [a for a in args if isinstance(a, _EXPRESSIONS)]
     results: Results = []
     for outcome in executor.run_function(top, ir_args):
         if outcome.status is Status.STUCK:
             raise Stuck(outcome.reason, outcome.line)
-        if outcome.status is not Status.RETURN or outcome.value is None:
-            raise Stuck(f"a path of {function.name} ends without returning a value", function.line)
-        results.append((tuple(_flatten(outcome.value)), outcome.state.conditions))
+        values: list[Value] = []
+        if function.returns_value or function.result_name is not None:
+            if outcome.status is not Status.RETURN or outcome.value is None:
+                raise Stuck(f"a path of {function.name} ends without returning a value", function.line)
+            values = _flatten(outcome.value)
+        elif outcome.status not in (Status.RETURN, Status.NEXT):
+            raise Stuck(f"a path of {function.name} ends without a result", function.line)
+        for _, output in outcome.outputs:  # the out-parameters, in their order
+            values.extend(_flatten(output))
+        results.append((tuple(values), outcome.state.conditions))
     inlined.extend(note for note in executor.inlined if note not in inlined)
     return results
 

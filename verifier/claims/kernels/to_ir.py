@@ -37,7 +37,7 @@ def convert_function(function: t.Function, resolve: Callable[[str], t.Function |
             continue
         try:
             converter = _Converter(current)
-            converted[key] = converter.function()
+            converted[key] = converter.function(top=key == "")
         except NotConvertible:
             return None
         for name in converter.called:
@@ -55,21 +55,41 @@ class _Converter:
         self.source = function
         self.called: list[str] = []
         self.maybe_int = _maybe_int_names(function)
+        self.pointers: set[str] = set()  # scalar pointer parameters: ``*p`` is the parameter's value
+        self.outputs: set[str] = set()  # parameters the function writes for its caller
 
-    def function(self) -> ir.Function:
+    def function(self, top: bool) -> ir.Function:
         fn = self.source
-        if not fn.returns_value:
+        if not fn.returns_value and not top:
             raise NotConvertible("no value returned")
-        for param in fn.params:
-            if param.kind != "real" or param.mode != "value" or param.size or param.struct or param.out_only:
-                raise NotConvertible(f"parameter {param.name}")
+        parameters = tuple(self.parameter(p, top) for p in fn.params)
         body = [self.statement(s) for s in fn.body]
         if fn.result_name is not None:  # Fortran: the result variable is returned at the end
             unset = ir.Unsupported(f"reading {fn.result_name} before it is set", fn.line)
             body = [ir.Assign((ir.ToLocal(fn.result_name, fn.line),), unset, fn.line)] + body
             body.append(ir.Return(ir.Name(fn.result_name, fn.line), fn.line))
-        parameters = tuple(ir.Parameter(p.name) for p in fn.params)
         return ir.Function(fn.name, parameters, tuple(body), fn.path, fn.line)
+
+    def parameter(self, param: t.Param, top: bool) -> ir.Parameter:
+        """A real scalar passed by value, or (at the top level) a real scalar out-parameter: ``*p`` of a pointer
+        reads and writes the parameter itself, as C++ references and Fortran ``intent(out)`` arguments do."""
+        if param.kind != "real" or param.size or param.struct:
+            raise NotConvertible(f"parameter {param.name}")
+        if param.mode == "value" and not param.out_only:
+            return ir.Parameter(param.name)
+        if not top:
+            raise NotConvertible(f"parameter {param.name}")
+        if param.mode == "pointer":
+            self.pointers.add(param.name)
+        if param.const:
+            return ir.Parameter(param.name)
+        self.outputs.add(param.name)
+        if param.mode == "out" or param.out_only:
+            return ir.Parameter(param.name, ir.ParameterKind.OUT)
+        # the kernel runner reports such a parameter on the paths that change it: every path must write it
+        if not _written_on_every_path(self.source.body, param.name):
+            raise NotConvertible(f"parameter {param.name} is not written on every path")
+        return ir.Parameter(param.name, ir.ParameterKind.INOUT)
 
     # -- statements
 
@@ -88,9 +108,7 @@ class _Converter:
                 value = self.value(s.init)
             return ir.Assign((ir.ToLocal(s.name, s.line),), value, s.line)
         if isinstance(s, t.Assign):
-            if not isinstance(s.target, t.Name):
-                raise NotConvertible("assignment to a place")
-            return ir.Assign((ir.ToLocal(s.target.name, s.line),), self.value(s.value), s.line)
+            return ir.Assign((self.target(s.target),), self.value(s.value), s.line)
         if isinstance(s, t.Destructure):
             targets = tuple(ir.ToLocal(name, s.line) for name in s.targets)
             return ir.Assign((ir.Unpack(targets, s.line),), self.value(s.value, top=True), s.line)
@@ -100,13 +118,32 @@ class _Converter:
             return self.loop(s)
         if isinstance(s, t.Return):
             if s.value is None:
-                if self.source.result_name is None:
+                if self.source.result_name is not None:
+                    return ir.Return(ir.Name(self.source.result_name, s.line), s.line)
+                if self.source.returns_value:
                     raise NotConvertible("a return without a value")
-                return ir.Return(ir.Name(self.source.result_name, s.line), s.line)
+                return ir.Return(None, s.line)
             return ir.Return(self.value(s.value, top=True), s.line)
         if isinstance(s, t.Stop):
             return ir.Unsupported(s.construct, s.line)
         raise NotConvertible(type(s).__name__)
+
+    def target(self, node: t.Node) -> ir.Target:
+        if isinstance(node, t.Deref):
+            name = self.pointee(node)
+            if name is None:
+                raise NotConvertible("assignment through a pointer")
+            return ir.ToOut(name, node.line)
+        if isinstance(node, t.Name) and node.name not in self.pointers:
+            if node.name in self.outputs:
+                return ir.ToOut(node.name, node.line)
+            return ir.ToLocal(node.name, node.line)
+        raise NotConvertible("assignment to a place")
+
+    def pointee(self, node: t.Deref) -> str | None:
+        """``p`` of ``*p`` for a scalar pointer parameter ``p``."""
+        operand = node.operand
+        return operand.name if isinstance(operand, t.Name) and operand.name in self.pointers else None
 
     def loop(self, s: t.For) -> ir.CountedLoop:
         # the kernel runner leaves the counter one step past the end; the IR leaves it at the last value
@@ -137,7 +174,14 @@ class _Converter:
         if isinstance(node, t.Lit):
             return Num(node.value)
         if isinstance(node, t.Name):
+            if node.name in self.pointers:
+                raise NotConvertible("a pointer used as a value")
             return ir.Name(node.name, node.line)
+        if isinstance(node, t.Deref):
+            name = self.pointee(node)
+            if name is None:
+                raise NotConvertible("a dereference")
+            return ir.Name(name, node.line)
         if isinstance(node, t.Negate):
             return ir.Unary("-", self.value(node.operand), node.line)
         if isinstance(node, t.Binary):
@@ -250,4 +294,22 @@ def _reassigns(statements: tuple[t.Statement, ...], name: str) -> bool:
             return True
         if isinstance(s, t.For) and _reassigns(s.body, name):
             return True
+    return False
+
+
+def _written_on_every_path(statements: tuple[t.Statement, ...], name: str) -> bool:
+    """Whether a statement of the body itself (not a branch) writes ``name`` or ``*name``, and no path
+    returns early (only a last ``return`` statement)."""
+    def returns(items: tuple[t.Statement, ...]) -> bool:
+        return any(isinstance(s, t.Return) or (isinstance(s, t.If) and (returns(s.then) or returns(s.otherwise)))
+                   or (isinstance(s, t.For) and returns(s.body)) for s in items)
+
+    if returns(statements[:-1]) or (statements and not isinstance(statements[-1], t.Return)
+                                    and returns(statements[-1:])):
+        return False
+    for s in statements:
+        if isinstance(s, t.Assign):
+            target = s.target.operand if isinstance(s.target, t.Deref) else s.target
+            if isinstance(target, t.Name) and target.name == name:
+                return True
     return False
