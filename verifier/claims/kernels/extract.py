@@ -16,6 +16,7 @@ from verifier.claims.comments import CommentClaim
 from verifier.claims.expression import error_claim, expression_claims
 from verifier.claims.kernels import tree as t
 from verifier.claims.kernels.library import KernelFile, KernelLibrary
+from verifier.claims.kernels.ir_run import run_on_ir
 from verifier.claims.kernels.locate import StatementSite, walk
 from verifier.claims.kernels.parse import GrammarMissing, language_of
 from verifier.claims.kernels.run import Agg, Runner, Stuck, Unknown, Value, as_real
@@ -292,6 +293,9 @@ def _parameter_value(function: t.Function, name: str) -> Value:
 
 def _run(runner: Runner, function: t.Function, args: list[Value] | None = None) -> list:
     try:
+        on_ir = run_on_ir(function, runner.resolve, runner.unroll_limit, runner.inline_depth, args, runner.inlined)
+        if on_ir is not None:
+            return on_ir
         return [(outcome.results, outcome.conditions) for outcome in runner.run(function, args)]
     except Stuck as stuck:
         raise ClaimProblem("inconclusive", _reason(stuck, function)) from None
