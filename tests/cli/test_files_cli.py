@@ -18,7 +18,7 @@ from typing import TYPE_CHECKING
 import pytest
 
 from first_run_project import CYRILLIC_COMMENT, FALSE_PY, TRUE_PY, json_report, scratch_project, write
-from verifier.pipeline.decoding import decode_source
+from verifier.claims.decoding import decode_source
 
 if TYPE_CHECKING:
     from conftest import Cli, GitRepo

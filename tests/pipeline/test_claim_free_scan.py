@@ -12,7 +12,7 @@ import sys
 from pathlib import Path
 
 from conftest import write_file
-from verifier.pipeline.decoding import decode_if_claimed
+from verifier.claims.decoding import decode_if_claimed
 
 HEAVY = ("sympy", "libcst", "tree_sitter", "verifier.algebra", "verifier.claims.python")
 

@@ -32,7 +32,7 @@ from typing import Literal
 from verifier.model.claim import FileProblem, Location
 from verifier.model.paths import relative_path  # re-exported: discovery names files this way
 from verifier.model.skipped import SkipKind, Skipped
-from verifier.pipeline.decoding import MARKER, Decoded, decode_if_claimed
+from verifier.claims.decoding import MARKER, Decoded, decode_if_claimed
 from verifier.pipeline.git_files import (  # re-exported: the git side of discovery
     DiscoveryError,
     run_git,

@@ -11,7 +11,7 @@ import stat
 
 from verifier.model.claim import FileProblem, Location
 from verifier.model.skipped import Skipped
-from verifier.pipeline.decoding import Decoded, decode_if_claimed, decode_source
+from verifier.claims.decoding import Decoded, decode_if_claimed, decode_source
 
 DEFAULT_MAX_FILE_BYTES = 10 * 1024 * 1024  # config: max_file_kb
 # Open flags that keep a read from blocking (FIFOs, terminals) or following a link planted after the check.

@@ -4,6 +4,7 @@ from __future__ import annotations
 import os
 from typing import Any
 
+from verifier.claims.decoding import read_helper_text
 from verifier.claims.kernels import tree as t
 from verifier.claims.kernels.fixed_form import is_fixed_form, to_free_form
 from verifier.claims.kernels.locate import FunctionSite, SourceIndex
@@ -86,10 +87,10 @@ class KernelLibrary:
             language = language_of(path)
             kernel = None
             if language is not None:
+                text = read_helper_text(path)
                 try:
-                    with open(path, encoding="utf-8") as handle:
-                        kernel = KernelFile(path, handle.read(), language)
-                except (OSError, UnicodeDecodeError, ValueError):
+                    kernel = KernelFile(path, text, language) if text is not None else None
+                except ValueError:
                     kernel = None
             self.files[path] = kernel
         return self.files[path]

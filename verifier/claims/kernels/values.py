@@ -9,6 +9,7 @@ import re
 from collections.abc import Sequence
 from typing import TYPE_CHECKING
 
+from verifier.claims.decoding import read_helper_text
 from verifier.claims.kernels.run import Agg, SymInt, Unknown, Value, as_real, flatten
 from verifier.claims.language import ParsedClaim
 from verifier.model.claim import Condition, ExtractionContext, Obligation
@@ -169,13 +170,12 @@ def python_reference(path: str, name: str, args: list[Value], context: Extractio
     # (libcst, as above)
     from verifier.claims.frontends.python.scope import PythonScope
 
+    text = read_helper_text(path)
+    if text is None:
+        raise ClaimProblem("error", f"cannot read {path}")
     try:
-        with open(path, encoding="utf-8") as handle:
-            text = handle.read()
         module = parse_module_text(path, text)
-    except OSError:
-        raise ClaimProblem("error", f"cannot read {path}") from None
-    except (cst.ParserSyntaxError, RecursionError, UnicodeDecodeError):
+    except (cst.ParserSyntaxError, RecursionError):
         raise ClaimProblem("error", f"cannot parse {path} as Python") from None
     node = module.functions.get(name)
     if node is None:

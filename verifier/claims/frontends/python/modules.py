@@ -11,6 +11,7 @@ from typing import Iterable, Sequence
 import libcst as cst
 from libcst.metadata import CodeRange, MetadataWrapper, PositionProvider
 
+from verifier.claims.decoding import read_helper_text
 from verifier.claims.frontends.python.fallbacks import (
     dotted,
     Binding,
@@ -364,11 +365,10 @@ class ModuleLoader:
         if key in self._cache:
             return self._cache[key]
         self._cache[key] = None  # guards against import cycles while parsing
+        text = read_helper_text(path)
         try:
-            with open(path, encoding="utf-8") as handle:
-                text = handle.read()
-            info = parse_module_text(normalize_rel(path), text)
-        except (OSError, UnicodeDecodeError, cst.ParserSyntaxError, RecursionError):
+            info = parse_module_text(normalize_rel(path), text) if text is not None else None
+        except (cst.ParserSyntaxError, RecursionError):
             info = None
         self._cache[key] = info
         if info is not None:

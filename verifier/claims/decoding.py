@@ -205,3 +205,14 @@ def _decode_with_fallback(data: bytes, path: str) -> Decoded:
         if group_start is not None:  # the claim is dropped: its marker no longer opens a comment
             texts[group_start] = texts[group_start].replace("idealcheck:", " " * len("idealcheck:"), 1)
     return Decoded("".join(texts), tuple(problems), note=FALLBACK_NOTE)
+
+
+def read_helper_text(path: str) -> str | None:
+    """The text of a file a claim reads besides its own (an imported module, a kernel of another file),
+    decoded by the same rules as a scanned file; None when it cannot be read or is binary."""
+    try:
+        with open(path, "rb") as handle:
+            data = handle.read()
+    except OSError:
+        return None
+    return decode_source(data, path).text
