@@ -33,7 +33,7 @@ from verifier.algebra.witness_points import (
     small_rational,
     variable_bounds,
 )
-from verifier.algebra.witness_problem import Real, WitnessProblem, build_problem
+from verifier.algebra.witness_problem import Real, WitnessProblem, searchable_problem
 from verifier.model.claim import Condition
 from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold, variables
 from verifier.model.verdict import Witness
@@ -254,10 +254,7 @@ def find_witness(left: Expr, right: Expr, conditions: Sequence[Condition], *, de
     ``deadline`` (``decision_clock()``, CPU seconds), or an opaque call is involved)."""
     if decision_clock() > deadline:
         return None
-    try:
-        problem = build_problem(left, right, conditions)
-    except (ArithmeticError, ValueError, TypeError):
-        return None
+    problem = searchable_problem(left, right, conditions)
     if problem is None:
         return None
     rng = random.Random(seed)

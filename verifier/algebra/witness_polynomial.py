@@ -25,7 +25,7 @@ from verifier.algebra.evaluate import DomainError, NotEvaluable, exact_value
 from verifier.algebra.modular import PRIME
 from verifier.algebra.witness_check import exact_check
 from verifier.algebra.witness_points import rational_points, variable_bounds
-from verifier.algebra.witness_problem import WitnessProblem, build_problem
+from verifier.algebra.witness_problem import WitnessProblem, searchable_problem
 from verifier.model.claim import Condition
 from verifier.model.expr import Expr, Var, variables
 from verifier.model.verdict import Witness
@@ -86,10 +86,7 @@ def polynomial_witness(left: Expr, right: Expr, conditions: Sequence[Condition],
     order = definitions(conditions)
     if order is None:
         return None
-    try:
-        problem = build_problem(left, right, conditions)
-    except (ArithmeticError, ValueError, TypeError):
-        return None
+    problem = searchable_problem(left, right, conditions)
     if problem is None:
         return None
     terms = sparse_terms(difference, problem.names)

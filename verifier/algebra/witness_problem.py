@@ -64,6 +64,15 @@ def _difference(condition: Condition) -> Expr:
     return BinOp("-", condition.left, condition.right)
 
 
+def searchable_problem(left: Expr, right: Expr, conditions: Sequence[Condition]) -> WitnessProblem | None:
+    """The problem a witness search runs on, or None also when it cannot be built (an exponent or a
+    constant the exact evaluator cannot handle): the search then finds nothing, it never fails."""
+    try:
+        return build_problem(left, right, conditions)
+    except (ArithmeticError, ValueError, TypeError):
+        return None
+
+
 def build_problem(left: Expr, right: Expr, conditions: Sequence[Condition]) -> WitnessProblem | None:
     """The problem, or None when an opaque call is involved (no witness can be checked then)."""
     exprs = [left, right] + [e for c in conditions for e in (c.left, c.right)]
