@@ -103,8 +103,8 @@ def verdict_lines(verdict: Verdict, *, color: bool = False) -> list[str]:
         if verdict.cached:
             method_text += " (from cache, certificate re-checked)" if verdict.verdict == "proved" else " (from cache)"
         lines.append(f"{INDENT}method: {method_text}")
-    elif verdict.cached:
-        lines.append(f"{INDENT}from cache (witness re-checked)")
+    elif verdict.cached:  # only a refutation carries evidence to re-check; other results are kept as they were
+        lines.append(f"{INDENT}from cache (witness re-checked)" if verdict.witness is not None else f"{INDENT}from cache")
     if verdict.reason:
         lines.append(f"{INDENT}reason: {verdict.reason}")
     several = len(verdict.obligations) > 1
