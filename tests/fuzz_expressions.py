@@ -196,7 +196,8 @@ def trig_angles(draw: Draw, meant_true: bool) -> Case:
     return claim(draw, "trig_angles", left, right, (), free_sampler(["t", "u"]), meant_true)
 
 
-def _circle_sampler(rng: random.Random) -> dict[str, mpmath.mpf]:
+def circle_sampler(rng: random.Random) -> dict[str, mpmath.mpf]:
+    """x, y, t at random and (s, c) = (sin t, cos t) on the unit circle (also the kernel families')."""
     point = as_mpf({"x": uniform(rng), "y": uniform(rng), "t": uniform(rng)})
     with mpmath.workdps(50):
         point["s"], point["c"] = mpmath.sin(point["t"]), mpmath.cos(point["t"])
@@ -220,7 +221,7 @@ def trig_circle(draw: Draw, meant_true: bool) -> Case:
         _, right = sympy.reduced(sympy.expand(left), [S**2 + C**2 - 1], S, C)
     if not meant_true:
         right = perturb(draw, right, [S, C, X])
-    return claim(draw, "trig_circle", left, right, conditions, _circle_sampler, meant_true,
+    return claim(draw, "trig_circle", left, right, conditions, circle_sampler, meant_true,
                  conditions_shown=named)
 
 

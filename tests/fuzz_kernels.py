@@ -17,7 +17,7 @@ import mpmath
 import sympy
 from hypothesis import strategies as st
 
-from fuzz_expressions import Draw, X, Y, decimal_text, perturb, polynomial, small_int
+from fuzz_expressions import Draw, X, Y, circle_sampler, decimal_text, perturb, polynomial, small_int
 from fuzz_oracle import Case, Condition, as_mpf, free_sampler, uniform
 
 A, B = sympy.symbols("a b")
@@ -209,13 +209,6 @@ def same_as(draw: Draw, meant_true: bool) -> KernelCase:
     return KernelCase(case, "python", snippet, 4)
 
 
-def _unit_circle_sampler(rng: random.Random) -> dict[str, mpmath.mpf]:
-    point = as_mpf({"x": uniform(rng), "y": uniform(rng), "t": uniform(rng)})
-    with mpmath.workdps(50):
-        point["c"], point["s"] = mpmath.cos(point["t"]), mpmath.sin(point["t"])
-    return point
-
-
 @st.composite
 def rotation(draw: Draw, meant_true: bool) -> KernelCase:
     """A C rotation by (c, s) whose squared length is claimed under ``c**2 + s**2 == 1``."""
@@ -229,7 +222,7 @@ def rotation(draw: Draw, meant_true: bool) -> KernelCase:
     C, S = sympy.symbols("c s")
     computed = (C * X - S * Y) ** 2 + (S * X + sign * C * Y) ** 2
     case = Case("kernel_rotation_c", snippet.splitlines()[0], computed, claimed,
-                (Condition(C**2 + S**2, "==", sympy.Integer(1)),), _unit_circle_sampler, meant_true)
+                (Condition(C**2 + S**2, "==", sympy.Integer(1)),), circle_sampler, meant_true)
     return KernelCase(case, "c", snippet, 0)
 
 
