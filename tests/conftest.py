@@ -85,6 +85,20 @@ def cli() -> Cli:
     return Cli()
 
 
+@pytest.fixture(scope="session", autouse=True)
+def _user_cache_home(tmp_path_factory: pytest.TempPathFactory) -> Iterable[Path]:
+    """The per-user cache folder (where the extraction cache's signing secret is made) inside the test's
+    temporary folders, so that tests never write to the home folder; fresh processes inherit it."""
+    folder = tmp_path_factory.mktemp("user-cache")
+    previous = os.environ.get("XDG_CACHE_HOME")
+    os.environ["XDG_CACHE_HOME"] = str(folder)
+    yield folder
+    if previous is None:
+        os.environ.pop("XDG_CACHE_HOME", None)
+    else:
+        os.environ["XDG_CACHE_HOME"] = previous
+
+
 def git_env(extra: Mapping[str, str] | None = None) -> dict[str, str]:
     """The environment git runs in: a fixed identity, no system configuration, and this environment's
     scripts first on PATH (hooks call ``idealcheck``)."""

@@ -19,6 +19,8 @@ import re
 import tokenize
 from dataclasses import dataclass
 
+from verifier.claims.file_reads import read_bytes
+
 from verifier.model.claim import FileProblem, Location
 from verifier.model.skipped import Skipped
 
@@ -210,9 +212,7 @@ def _decode_with_fallback(data: bytes, path: str) -> Decoded:
 def read_helper_text(path: str) -> str | None:
     """The text of a file a claim reads besides its own (an imported module, a kernel of another file),
     decoded by the same rules as a scanned file; None when it cannot be read or is binary."""
-    try:
-        with open(path, "rb") as handle:
-            data = handle.read()
-    except OSError:
+    data = read_bytes(path)  # recorded: the extraction cache keys on what was read
+    if data is None:
         return None
     return decode_source(data, path).text

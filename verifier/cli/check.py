@@ -46,6 +46,7 @@ from verifier.report.sarif import render_sarif_failure
 
 if TYPE_CHECKING:
     from verifier.cli.options import Subparsers
+    from verifier.pipeline.extraction_cache import CacheNote
 
 
 def _shard(text: str) -> tuple[int, int]:
@@ -141,12 +142,15 @@ def _run_check(args: argparse.Namespace, stdout_format: Format, targets: list[Ou
     )
     texts: dict[str, str] = {}
     stale: list[StaleEntry] = []
+    notes: list[CacheNote] = []
     try:
-        result = check_run(request, texts_out=texts, stale_out=stale)
+        result = check_run(request, texts_out=texts, stale_out=stale, notes_out=notes)
     except DiscoveryError as exc:
         raise UsageError(str(exc)) from exc
     verdicts, skipped = list(result.verdicts), result.skipped
     warn_stale(stale)
+    for note in notes:
+        print(f"note: {shown(note.message())}", file=sys.stderr)
     if not args.quiet:
         _warn_near_misses(texts)
     root = repository_root(str(cwd)) or str(config.root)

@@ -9,12 +9,15 @@ from __future__ import annotations
 import pickle
 import time
 from collections.abc import Callable
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from verifier.model.limits import decision_clock
 from verifier.model.claim import Claim, ExtractionContext, FileProblem, Location, Problem
 from verifier.model.verdict import Limit, Verdict, VerdictName
 from verifier.pipeline.workers import Job, PoolSettings, memory_limit_reason
+
+if TYPE_CHECKING:  # the record of reads is only a type here
+    from verifier.claims.file_reads import Observation
 
 DEFAULT_DECIDER = "verifier.pipeline.runner:decide_with_engine"
 TOO_DEEP = "the claim is nested too deeply to handle"
@@ -136,19 +139,31 @@ def _short(text: str) -> str:
 
 def extract_guarded(path: str, text: str, context: ExtractionContext, memory_mb: int) -> list[Claim]:
     """Every claim of one file; a failure becomes one ``error`` (or limit) pseudo-claim for the file."""
+    return extract_recorded(path, text, context, memory_mb)[0]
+
+
+def extract_recorded(path: str, text: str, context: ExtractionContext,
+                     memory_mb: int) -> tuple[list[Claim], list[Observation] | None]:
+    """``extract_guarded`` and every look at other files the reading made (``claims.file_reads``), for the
+    extraction cache; None instead of the looks when the reading failed or a claim could not be passed
+    back (such a result depends on the limits, so it is not cached)."""
     from verifier.claims import extract
+    from verifier.claims.file_reads import recording
 
     where = Location(path, 1, 1)
     try:
-        return _sendable(extract(path, text, context))
+        with recording() as reads:
+            claims = extract(path, text, context)
+        sendable = _sendable(claims)
+        return sendable, (reads if sendable is claims else None)
     except MemoryError:
         message = f"{memory_limit_reason(memory_mb)} while reading the claims of this file"
-        return [file_problem_claim(FileProblem(where, message), "inconclusive")]
+        return [file_problem_claim(FileProblem(where, message), "inconclusive")], None
     except RecursionError:
-        return [file_problem_claim(FileProblem(where, "the file is nested too deeply to read"))]
+        return [file_problem_claim(FileProblem(where, "the file is nested too deeply to read"))], None
     except Exception as exc:  # a bug in the extractor must not hide the other files
         message = f"internal error while reading claims: {type(exc).__name__}: {exc}"
-        return [file_problem_claim(FileProblem(where, message))]
+        return [file_problem_claim(FileProblem(where, message))], None
 
 
 # ---------------------------------------------------------------- dispatch
@@ -161,6 +176,9 @@ def perform(job: Job, settings: PoolSettings) -> Any:
     if job.kind == "extract":
         path, text, context = job.payload
         return extract_guarded(path, text, context, settings.memory_mb)
+    if job.kind == "extract_recorded":
+        path, text, context = job.payload
+        return extract_recorded(path, text, context, settings.memory_mb)
     if job.kind == "call":  # a named function of a higher layer (accuracy sampling), like the decider
         function, args = job.payload
         try:
@@ -181,4 +199,5 @@ def unsendable(job: Job, result: Any, exc: BaseException, settings: PoolSettings
     if job.kind == "call":
         return ("error", why)
     path = job.payload[0]
-    return [file_problem_claim(FileProblem(Location(path, 1, 1), why))]
+    claims = [file_problem_claim(FileProblem(Location(path, 1, 1), why))]
+    return (claims, None) if job.kind == "extract_recorded" else claims

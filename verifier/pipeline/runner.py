@@ -31,6 +31,7 @@ from verifier.pipeline.jobs import (  # re-exported: the runner's public names
     cached_or_decided,
     decide_guarded,
     extract_guarded,
+    extract_recorded,
     file_problem_claim,
     limit_verdict,
     perform,
@@ -51,6 +52,7 @@ from verifier.pipeline.reading import DEFAULT_MAX_FILE_BYTES
 
 if TYPE_CHECKING:  # the config module is only a type here; workers need not import it
     from verifier.pipeline.config import Config
+    from verifier.pipeline.extraction_cache import CacheNote, ExtractionCache
 
 CLAIM_MARKER = "idealcheck:"
 
@@ -96,22 +98,20 @@ def reading_seconds(text: str, timeout: float) -> float:
 
 
 def collect_claims(discovery: Any, context: Any, *, extract: Callable[..., list[Claim]] | None = None,
-                   options: RunOptions | None = None) -> list[Claim]:
+                   options: RunOptions | None = None, cache: ExtractionCache | None = None) -> list[Claim]:
     """Every claim in the files of ``discovery`` (a ``discover.Discovery``), plus pseudo-claims for its problems.
 
     With ``options`` (and not ``in_process``) each file is read in a worker process under the time and
     memory limits; a file whose reading fails or overruns becomes one pseudo-claim saying so, and the
-    other files are still read.  ``extract`` (in this process) is for tests.
+    other files are still read.  ``extract`` (in this process) is for tests.  With ``cache`` a file
+    whose entry is still valid is not read at all, and every completed reading is stored.
     """
     claims: list[Claim] = [file_problem_claim(p) for p in discovery.problems]
     claims += [file_problem_claim(p, text="(claim could not be read)") for p in discovery.claim_line_problems]
     files = [source for source in discovery.files if source.holds_claims()]  # no marker, no claims: not parsed
-    if extract is not None or options is None or options.in_process:
+    if extract is not None:
         for source in files:
             path = str(source.path)
-            if extract is None:
-                claims.extend(extract_guarded(path, source.text, context, 0))
-                continue
             try:
                 claims.extend(extract(path, source.text, context))
             except RecursionError:
@@ -120,9 +120,32 @@ def collect_claims(discovery: Any, context: Any, *, extract: Callable[..., list[
                 message = f"internal error while reading claims: {type(exc).__name__}: {exc}"
                 claims.append(file_problem_claim(FileProblem(Location(path, 1, 1), message)))
         return claims
-    jobs = [Job("extract", (str(f.path), f.text, context), reading_seconds(f.text, options.timeout)) for f in files]
+    found: dict[int, list[Claim]] = {}
+    if cache is not None:
+        for index, source in enumerate(files):
+            hit = cache.load(str(source.path), source.text, context)
+            if hit is not None:
+                found[index] = hit
+    todo = [(index, source) for index, source in enumerate(files) if index not in found]
+    if options is None or options.in_process:
+        done = [extract_recorded(str(source.path), source.text, context, 0) for _index, source in todo]
+    else:
+        done = _extract_in_workers([source for _index, source in todo], context, options)
+    for (index, source), (read, reads) in zip(todo, done):
+        found[index] = read
+        if cache is not None and reads is not None:
+            cache.store(str(source.path), source.text, context, read, reads)
+    for index in range(len(files)):
+        claims.extend(found[index])
+    return claims
 
-    def on_limit(index: int, job: Job, limit: Limit | None, reason: str, seconds: float) -> list[Claim]:
+
+def _extract_in_workers(files: list[Any], context: Any, options: RunOptions) -> list[tuple[list[Claim], Any]]:
+    """(claims, reads or None) of each file, read in worker processes under the limits."""
+    jobs = [Job("extract_recorded", (str(f.path), f.text, context), reading_seconds(f.text, options.timeout))
+            for f in files]
+
+    def on_limit(index: int, job: Job, limit: Limit | None, reason: str, seconds: float) -> tuple[list[Claim], None]:
         path = job.payload[0]
         if limit == "time":
             reason = (f"time limit of {job.seconds:g} s exceeded while reading the claims of this file "
@@ -130,12 +153,10 @@ def collect_claims(discovery: Any, context: Any, *, extract: Callable[..., list[
         else:
             reason += " while reading the claims of this file"
         return [file_problem_claim(FileProblem(Location(path, 1, 1), reason),
-                                   "inconclusive" if limit is not None else "error")]
+                                   "inconclusive" if limit is not None else "error")], None
 
-    found = run_jobs(jobs, options.pool(), on_limit, perform=perform, unsendable=unsendable)
-    for index in range(len(jobs)):
-        claims.extend(found[index])
-    return claims
+    results = run_jobs(jobs, options.pool(), on_limit, perform=perform, unsendable=unsendable)
+    return [results[index] for index in range(len(jobs))]
 
 
 # ---------------------------------------------------------------- selection
@@ -317,10 +338,12 @@ def _under(path: str, directory: str) -> bool:
 
 
 def gather_claims(request: CheckRequest, *, stale_out: list[StaleEntry] | None = None,
+                  notes_out: list[CacheNote] | None = None,
                   ) -> tuple[list[Claim], dict[str, str], tuple[Skipped, ...]]:
     """The selected claims of a request (changed-only filters and shard applied), the texts read and
     what was left out unread.  With a baseline, its accepted verdicts are attached before any selection,
-    and its entries that match no claim found go to ``stale_out``.
+    and its entries that match no claim found go to ``stale_out``; extraction-cache entries that could
+    not be used go to ``notes_out``.
 
     File arguments (as a hook passes them) select the claims whose dependencies include one of those
     files, so the project root is scanned too: a claim elsewhere that inlines a function of a changed
@@ -349,7 +372,11 @@ def gather_claims(request: CheckRequest, *, stale_out: list[StaleEntry] | None =
     roots = tuple(dict.fromkeys(directories + [root] if files or not directories else directories))
     context = ExtractionContext(named_conditions=config.conditions, roots=roots)
     texts = {normalize_path(str(f.path)): f.text for f in discovery.files if f.text is not None}
-    claims = with_file_notes(collect_claims(discovery, context, options=request.options), dict(discovery.notes))
+    cache = extraction_cache(request)
+    claims = collect_claims(discovery, context, options=request.options, cache=cache)
+    if cache is not None and notes_out is not None:
+        notes_out.extend(cache.notes)
+    claims = with_file_notes(claims, dict(discovery.notes))
     unique: dict[str, Claim] = {}
     for claim in claims:
         unique.setdefault(claim.id, claim)
@@ -371,6 +398,16 @@ def gather_claims(request: CheckRequest, *, stale_out: list[StaleEntry] | None =
         claims = [c for c in claims if depends_on(c, changed)]
     claims = select_shard(claims, request.shard)
     return claims, texts, discovery.skipped
+
+
+def extraction_cache(request: CheckRequest) -> ExtractionCache | None:
+    """The extraction cache beside the result cache (None with ``--no-cache`` or without a secret)."""
+    if request.cache_dir is None:
+        return None
+    from verifier.pipeline.extraction_cache import open_extraction_cache
+
+    cache = open_extraction_cache(os.path.join(request.cwd, request.cache_dir))
+    return cache if cache.usable else None
 
 
 def with_file_notes(claims: list[Claim], notes: dict[str, str]) -> list[Claim]:
@@ -428,13 +465,14 @@ def with_cache(request: CheckRequest) -> tuple[RunOptions, tuple[Skipped, ...]]:
 
 
 def check_run(request: CheckRequest, *, texts_out: dict[str, str] | None = None,
-              stale_out: list[StaleEntry] | None = None) -> RunResult:
+              stale_out: list[StaleEntry] | None = None, notes_out: list[CacheNote] | None = None) -> RunResult:
     """Run a whole check: the verdicts (in the order the claims were found) and what was not read.
 
     ``texts_out``, when given, receives the texts of the files read (the command line warns about
-    misspelt claim markers in them); ``stale_out`` the baseline's stale entries."""
+    misspelt claim markers in them); ``stale_out`` the baseline's stale entries; ``notes_out`` the
+    extraction-cache entries that could not be used."""
     allow_long_integers()
-    claims, texts, skipped = gather_claims(request, stale_out=stale_out)
+    claims, texts, skipped = gather_claims(request, stale_out=stale_out, notes_out=notes_out)
     if texts_out is not None:
         texts_out.update(texts)
     options, refused = with_cache(request)

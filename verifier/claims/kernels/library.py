@@ -5,6 +5,7 @@ import os
 from typing import Any
 
 from verifier.claims.decoding import read_helper_text
+from verifier.claims.file_reads import read_bytes, walk_files
 from verifier.claims.kernels import tree as t
 from verifier.claims.kernels.fixed_form import is_fixed_form, to_free_form
 from verifier.claims.kernels.locate import FunctionSite, SourceIndex
@@ -122,27 +123,17 @@ class KernelLibrary:
         for path in self._files():
             if path == home.path or language_of(path) not in wanted:
                 continue
-            try:
-                with open(path, encoding="utf-8", errors="replace") as handle:
-                    if name in handle.read():
-                        out.append(path)
-            except OSError:
-                continue
+            data = read_bytes(path)
+            if data is not None and name in data.decode("utf-8", errors="replace"):
+                out.append(path)
         return out
 
     def _files(self) -> list[str]:
         if self._listing is None:
             listing: list[str] = []
             for root in self.roots:
-                if os.path.isfile(root):
-                    listing.append(root)
-                    continue
-                for directory, dirs, names in os.walk(root):
-                    dirs[:] = sorted(d for d in dirs if d not in _SKIPPED_DIRS and not d.startswith("."))
-                    for name in sorted(names):
-                        if language_of(name) is not None:
-                            listing.append(os.path.normpath(os.path.join(directory, name)).replace(os.sep, "/"))
-                    if len(listing) > MAX_SEARCHED_FILES:
-                        break
+                found = walk_files(root, lambda name: language_of(name) is not None, _SKIPPED_DIRS,
+                                   MAX_SEARCHED_FILES - len(listing))  # the cap counts every root
+                listing += [os.path.normpath(path).replace(os.sep, "/") for path in found]
             self._listing = {"all": listing}
         return self._listing["all"]

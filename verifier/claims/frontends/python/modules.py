@@ -12,6 +12,7 @@ import libcst as cst
 from libcst.metadata import CodeRange, MetadataWrapper, PositionProvider
 
 from verifier.claims.decoding import read_helper_text
+from verifier.claims.file_reads import is_file
 from verifier.claims.frontends.python.fallbacks import (
     dotted,
     Binding,
@@ -408,9 +409,9 @@ class ModuleLoader:
         parts = [p for p in dotted.split(".") if p]
         stem = os.path.join(base, *parts) if parts else base
         for candidate in (stem + ".py", os.path.join(stem, "__init__.py")):
-            if parts and os.path.isfile(candidate):
+            if parts and is_file(candidate):
                 return self._load_file(candidate)
-            if not parts and candidate.endswith("__init__.py") and os.path.isfile(candidate):
+            if not parts and candidate.endswith("__init__.py") and is_file(candidate):
                 return self._load_file(candidate)
         return None
 
