@@ -99,15 +99,24 @@ def result_to_json(result: ObligationResult) -> dict[str, Any]:
 # ---------------------------------------------------------------- re-checking what was read
 
 
-def _proof_holds(claim: Claim, index: int, result: ObligationResult) -> bool:
+def _proof_translation(claim: Claim, index: int, result: ObligationResult) -> Any:
+    """The obligation's translation when the result's certificate belongs to it and re-checks (as
+    ``algebra.decide.certificate_matches`` decides), else None; translated once, and the texts are
+    derived from the same translation."""
     # the algebra (sympy) loads only when a cached proof is re-checked: keeps `idealcheck --help` fast
-    from verifier.algebra.decide import certificate_matches
+    from verifier.algebra.facts import claim_facts
+    from verifier.algebra.kernel.tie import certificate_fits
+    from verifier.algebra.translate import TranslationError, translate
 
-    single = replace(claim, obligations=(claim.obligations[index],))
+    if claim.problem is not None or result.verdict != "proved" or result.certificate is None:
+        return None
     try:
-        return bool(certificate_matches(single, (result,)))
+        tr = translate(claim.obligations[index])
+        return tr if certificate_fits(result.certificate, claim_facts(tr)) else None
+    except (TranslationError, RecursionError):
+        return None
     except Exception:  # a malformed certificate that slipped through the shape checks: not a proof
-        return False
+        return None
 
 
 def _rechecked_refutation(claim: Claim, index: int, result: ObligationResult) -> ObligationResult | None:
@@ -150,9 +159,10 @@ def accept(
         if result.label != obligation.label:
             return None
         if result.verdict == "proved":
-            if not _proof_holds(claim, index, result):
+            translation = _proof_translation(claim, index, result)
+            if translation is None:
                 return None
-            texts = proved_texts(obligation, result)
+            texts = proved_texts(obligation, result, translation)
             if texts is None:
                 return None
             result = texts

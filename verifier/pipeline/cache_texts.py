@@ -11,6 +11,7 @@ compare a fresh and a cached verdict text for text.
 from __future__ import annotations
 
 from dataclasses import replace
+from typing import Any
 
 from verifier.model.limits import decision_clock
 from verifier.model.certificate import (
@@ -60,9 +61,10 @@ def _all_divisible_by_target(cert: IdealCertificate) -> bool:
     return all(not c.rem(target) for c in cofactors)
 
 
-def proved_texts(obligation: Obligation, result: ObligationResult) -> ObligationResult | None:
-    """The proved result with method, reason, assumptions and "vacuous" derived again; None if the claim
-    no longer translates (then the entry is not used)."""
+def proved_texts(obligation: Obligation, result: ObligationResult, tr: Any = None) -> ObligationResult | None:
+    """The proved result with method, reason, assumptions and "vacuous" derived again from ``tr``, the
+    obligation's translation (translated here when not given); None if the claim no longer translates
+    (then the entry is not used)."""
     # sympy loads only when cached results are read back: keeps `idealcheck --help` fast
     from verifier.algebra.translate import TranslationError, translate
 
@@ -70,7 +72,7 @@ def proved_texts(obligation: Obligation, result: ObligationResult) -> Obligation
     if cert is None:
         return None
     try:
-        tr = translate(obligation)
+        tr = translate(obligation) if tr is None else tr
     except (TranslationError, RecursionError):
         return None
     method: Method
