@@ -273,3 +273,16 @@ def test_the_walk_lists_what_os_walk_lists(tmp_path: Path) -> None:
         found = walk_files(str(tmp_path), lambda n: not n.endswith(".txt"), {"build"}, 100)
     assert found == expected
     assert {r.kind for r in reads} == {"isfile", "folder"}
+
+
+def test_changing_a_named_condition_set_reads_the_file_again(git_repo, cli, secret) -> None:
+    # under c**2 + s**2 == 1 the claim holds; under c**2 == 1 alone, c = s = 1 gives 2 != 1 (schoolbook)
+    root = git_repo.path
+    config = '[tool.idealcheck.conditions]\nunit = {{ vars = ["c", "s"], given = ["{given}"] }}\n'
+    write_file(root, "pyproject.toml", config.format(given="c**2 + s**2 == 1"))
+    write_file(root, "rot.py", "# idealcheck: c**2 + s**2 == 1 given unit\n")
+    first = cli("check", "--format", "json", "--in-process", ".", cwd=root)
+    assert _verdicts(first.out) == {"rot.py:1:3": "proved"}, first
+    write_file(root, "pyproject.toml", config.format(given="c**2 == 1"))
+    second = cli("check", "--format", "json", "--in-process", ".", cwd=root)
+    assert _verdicts(second.out) == {"rot.py:1:3": "refuted"}, second

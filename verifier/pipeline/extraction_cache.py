@@ -86,7 +86,10 @@ def tool_fingerprint() -> str:
     files = [p for layer in _CODE for p in (_VERIFIER / layer).rglob("*.py")] + [_VERIFIER / p for p in _OWN]
     for path in sorted(files):
         digest.update(str(path.relative_to(_VERIFIER)).encode("utf-8", "surrogateescape") + b"\0")
-        digest.update(hashlib.sha256(path.read_bytes()).digest())
+        try:
+            digest.update(hashlib.sha256(path.read_bytes()).digest())
+        except OSError:  # an unreadable source file still counts: by its name and this marker
+            digest.update(b"unreadable\0")
     return digest.hexdigest()
 
 
@@ -150,6 +153,7 @@ class ExtractionCache:
     stats: ExtractionStats = field(default_factory=ExtractionStats)
     notes: list[CacheNote] = field(default_factory=list)
     refused: str | None = None  # why the folder must not be used (a symbolic link, someone else's)
+    _looked: dict[Observation, bool] = field(default_factory=dict)  # each look redone once per run
 
     def __post_init__(self) -> None:
         self.refused = directory_refusal(self.directory)
@@ -202,9 +206,14 @@ class ExtractionCache:
             raise CodecError("the entry is not an extraction record")
         if document["key"] != key or document["path"] != path:
             raise CodecError("the entry is of another file")
-        if not all(still_true(read) for read in _reads_from_json(document["reads"])):
+        if not all(self._still_true(read) for read in _reads_from_json(document["reads"])):
             return None  # a file it read has changed since: an ordinary miss
         return claims_from_json(document["claims"])
+
+    def _still_true(self, read: Observation) -> bool:
+        if read not in self._looked:  # a helper module imported by many files is hashed once
+            self._looked[read] = still_true(read)
+        return self._looked[read]
 
     def store(self, path: str, text: str, context: ExtractionContext, claims: list[Claim],
               reads: list[Observation]) -> None:
