@@ -9,6 +9,7 @@ squares is zero only when every square is, and a sum of squares plus a positive 
 from __future__ import annotations
 
 import dataclasses
+import json
 
 import mpmath
 import pytest
@@ -20,7 +21,7 @@ from sympy.polys.rings import ring
 from certificate_samples import claim_of
 from verifier.algebra.decide import Limits, decide
 from verifier.algebra.facts import claim_facts
-from verifier.algebra.kernel.checkers import check
+from verifier.algebra.kernel.checkers import check, positive_factor_ok
 from verifier.algebra.kernel.codec import certificate_from_json, to_json
 from verifier.algebra.kernel.tie import certificate_fits
 from verifier.algebra.squares import sum_of_squares
@@ -30,6 +31,7 @@ from verifier.model.certificate import ConjugateCertificate, LemmaChainCertifica
 TRUE = [
     "sqrt(3 - 2*sqrt(2)) == sqrt(2) - 1",
     "sqrt(7 - 4*sqrt(3)) == 2 - sqrt(3)",
+    "sqrt(5 - 2*sqrt(6)) == sqrt(3) - sqrt(2)",  # (sqrt(3) - sqrt(2))**2 == 5 - 2*sqrt(6)
     "sqrt(a + b + 2*sqrt(a*b)) == sqrt(a) + sqrt(b) given a >= 0, b >= 0",
     "sqrt(4*g**4*u) == 2*g**2*sqrt(u)",  # a real-code shape: a squared factor out of the root
     "sqrt(x**2) == x given x >= y**2",  # x >= y**2 >= 0
@@ -46,6 +48,7 @@ TRUE = [
 FALSE = [
     "sqrt(3 - 2*sqrt(2)) == 1 - sqrt(2)",  # the principal root is positive
     "sqrt(7 - 4*sqrt(3)) == sqrt(3) - 2",
+    "sqrt(5 - 2*sqrt(6)) == sqrt(2) - sqrt(3)",
     "sqrt(a + b - 2*sqrt(a*b)) == sqrt(a) - sqrt(b) given a >= 0, b >= 0",  # a = 0, b = 1
     "sqrt(a + b + 2*sqrt(a*b)) == sqrt(a) - sqrt(b) given a >= 0, b >= 0",
     "sqrt(x**2) == -x given x >= y**2",
@@ -61,6 +64,7 @@ def test_the_constant_identities_hold_at_50_digits() -> None:
     with mpmath.workdps(50):
         assert abs(mpmath.sqrt(3 - 2 * mpmath.sqrt(2)) - (mpmath.sqrt(2) - 1)) < mpmath.mpf(10) ** -45
         assert abs(mpmath.sqrt(7 - 4 * mpmath.sqrt(3)) - (2 - mpmath.sqrt(3))) < mpmath.mpf(10) ** -45
+        assert abs(mpmath.sqrt(5 - 2 * mpmath.sqrt(6)) - (mpmath.sqrt(3) - mpmath.sqrt(2))) < mpmath.mpf(10) ** -45
         a, b = mpmath.mpf(2) / 7, mpmath.mpf(13) / 3
         assert abs(mpmath.sqrt(a + b + 2 * mpmath.sqrt(a * b)) - mpmath.sqrt(a) - mpmath.sqrt(b)) < \
             mpmath.mpf(10) ** -45
@@ -118,3 +122,27 @@ def test_higher_degree_sums_of_squares_expand_back() -> None:
     assert sum_of_squares(x**4 - 1) is None
     assert sum_of_squares(x**2 - y**4) is None
     assert sum_of_squares(x**3 + y**4) is None
+
+
+def test_a_proof_in_steps_is_read_back_from_the_cache_with_the_same_texts(cli, tmp_path) -> None:
+    texts = ["sqrt(a + b + 2*sqrt(a*b)) == sqrt(a) + sqrt(b) given a >= 0, b >= 0", "x == 0 given x**4 + 1 == 0"]
+    (tmp_path / "steps.py").write_text("".join(f"# idealcheck: {t}\n" for t in texts))
+    first = json.loads(cli("check", "--format", "json", "steps.py", cwd=tmp_path).out)["claims"]
+    second = json.loads(cli("check", "--format", "json", "steps.py", cwd=tmp_path).out)["claims"]
+    assert [c["verdict"] for c in first] == [c["verdict"] for c in second] == ["proved", "proved"]
+    assert [(c["method"], c["reason"]) for c in first] == [(c["method"], c["reason"]) for c in second]
+    assert "vacuously" in second[1]["reason"]
+    shown = cli("explain", "steps.py:1", cwd=tmp_path).out
+    assert "lemmas proved first" in shown
+
+
+def test_a_factor_is_positive_by_a_constant_or_by_roots_of_positive_constants() -> None:
+    R, r, s, x = ring("r,s,x", QQ, grevlex)
+    everything = {0, 1, 2}
+    assert positive_factor_ok(r + 1, [], everything)
+    assert not positive_factor_ok(r + x, [], everything)  # both may be 0
+    assert positive_factor_ok(r + s, [r**2 - 2, s**2 - 3], everything)  # sqrt(2) + sqrt(3) > 0
+    assert not positive_factor_ok(r + s, [r**2 - x, s**2 - x], everything)  # x may be 0
+    assert not positive_factor_ok(r + s, [r**2 + 2], everything)  # no real r: nothing to lean on
+    assert not positive_factor_ok(r - s + 3, [r**2 - 2, s**2 - 3], everything)  # a negative term
+    assert not positive_factor_ok(r, [r**2 - 2], {1, 2})  # r itself not known to be >= 0

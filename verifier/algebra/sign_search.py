@@ -23,7 +23,12 @@ from sympy.polys.rings import PolyElement
 
 from verifier.algebra.facts import nonnegative_symbols
 from verifier.algebra.groebner import GroebnerResult, membership_cofactors, reduce
-from verifier.algebra.kernel.checkers import contradicts, shift_contradicts, shifted_negation
+from verifier.algebra.kernel.checkers import (
+    contradicts,
+    positive_factor_ok,
+    shift_contradicts,
+    shifted_negation,
+)
 from verifier.algebra.kernel.polynomial import fraction_text, poly_to_data, sign_pattern_ok
 from verifier.algebra.squares import quadratic_squares
 from verifier.algebra.translate import Translation
@@ -124,7 +129,7 @@ def _nonnegative_form(value: PolyElement, tr: Translation, basis: GroebnerResult
             continue
         a, b = split
         for factor in (a * ring.gens[index] - b, b - a * ring.gens[index]):
-            if not (sign_pattern_ok(factor, positive_index) and factor.coeff(1) > 0):
+            if not positive_factor_ok(factor, [g.poly for g in tr.generators], positive_index):
                 continue
             found = _pattern_form(p * factor, tr, basis, positive_index, deadline)
             if found is not None:

@@ -78,6 +78,26 @@ def _without(p: PolyElement, index: int) -> PolyElement:
     return ring(terms) if terms else ring.zero
 
 
+def strictly_positive_symbols(generators: list[PolyElement], positive: set[int]) -> set[int]:
+    """Symbols r >= 0 with r**2 - c among the generators for a constant c > 0: then r > 0 (sqrt(2))."""
+    found = set()
+    for g in generators:
+        for index in positive:
+            rest = g - g.ring.gens[index] ** 2
+            if rest.is_ground and rest and rest.LC < 0:
+                found.add(index)
+    return found
+
+
+def positive_factor_ok(factor: PolyElement, generators: list[PolyElement], positive: set[int]) -> bool:
+    """M > 0 wherever the generators vanish and the ``positive`` symbols are >= 0: every term is >= 0 (its
+    sign pattern) and one is > 0 (a positive constant, or a product of strictly positive roots)."""
+    if not sign_pattern_ok(factor, positive):
+        return False
+    strict = strictly_positive_symbols(generators, positive)
+    return any(all(i in strict for i, e in enumerate(monom) if e) for monom, _ in factor.terms())
+
+
 def check_conjugate(cert: ConjugateCertificate) -> Premises:
     """(0) target - form is in the ideal; (1) target*multiplier is in the ideal, hence form*multiplier
     too; (2) form + multiplier == 2*A*root and form - multiplier == 2*B with A, B free of root; (3)
@@ -106,7 +126,7 @@ def check_conjugate(cert: ConjugateCertificate) -> Premises:
     p = data_to_poly(cert.nonnegative, ring)
     _require(isinstance(cert.positive_factor, tuple), "the factor M is polynomial data")
     factor = data_to_poly(cert.positive_factor, ring) if cert.positive_factor else ring.one
-    _require(sign_pattern_ok(factor, positive) and factor.coeff(1) > 0, "the factor M may be zero or negative")
+    _require(positive_factor_ok(factor, generators, positive), "the factor M may be zero or negative")
     rest = -a * b * factor - p
     _require(isinstance(cert.hypotheses, tuple), "the hypotheses are a tuple")
     used = []
