@@ -33,6 +33,8 @@ TRUE = [
     "sqrt(7 - 4*sqrt(3)) == 2 - sqrt(3)",
     "sqrt(5 - 2*sqrt(6)) == sqrt(3) - sqrt(2)",  # (sqrt(3) - sqrt(2))**2 == 5 - 2*sqrt(6)
     "sqrt(a + b + 2*sqrt(a*b)) == sqrt(a) + sqrt(b) given a >= 0, b >= 0",
+    # (sqrt(a) - sqrt(b))**2 == a + b - 2*sqrt(a*b), and sqrt(a) >= sqrt(b) when a >= b (common practice)
+    "sqrt(a + b - 2*sqrt(a*b)) == sqrt(a) - sqrt(b) given a >= b, b >= 0",
     "sqrt(4*g**4*u) == 2*g**2*sqrt(u)",  # a real-code shape: a squared factor out of the root
     "sqrt(x**2) == x given x >= y**2",  # x >= y**2 >= 0
     "x == 0 given x**4 + y**4 == 0",
@@ -51,6 +53,7 @@ FALSE = [
     "sqrt(5 - 2*sqrt(6)) == sqrt(2) - sqrt(3)",
     "sqrt(a + b - 2*sqrt(a*b)) == sqrt(a) - sqrt(b) given a >= 0, b >= 0",  # a = 0, b = 1
     "sqrt(a + b + 2*sqrt(a*b)) == sqrt(a) - sqrt(b) given a >= 0, b >= 0",
+    "sqrt(a + b - 2*sqrt(a*b)) == sqrt(b) - sqrt(a) given a >= b, b >= 0",  # a = 1, b = 0
     "sqrt(x**2) == -x given x >= y**2",
     "sqrt(x**2) == x given x <= y**2",  # x = -1, y = 0
     "x == 1 given x**4 + y**4 == 0",
@@ -146,3 +149,17 @@ def test_a_factor_is_positive_by_a_constant_or_by_roots_of_positive_constants() 
     assert not positive_factor_ok(r + s, [r**2 + 2], everything)  # no real r: nothing to lean on
     assert not positive_factor_ok(r - s + 3, [r**2 - 2, s**2 - 3], everything)  # a negative term
     assert not positive_factor_ok(r, [r**2 - 2], {1, 2})  # r itself not known to be >= 0
+
+
+def test_a_factor_that_may_vanish_needs_value_plus_factor_nonnegative() -> None:
+    # sqrt(a) - sqrt(b) >= 0: times sqrt(a) + sqrt(b) it is a - b >= 0, and sqrt(a) + sqrt(b) is 0 only at
+    # a = b = 0, where sqrt(a) - sqrt(b) + (sqrt(a) + sqrt(b)) == 2*sqrt(a) >= 0 settles it
+    claim = claim_of("sqrt(a + b - 2*sqrt(a*b)) == sqrt(a) - sqrt(b) given a >= b, b >= 0")
+    cert = decide(claim, Limits(timeout=20)).obligations[0].certificate
+    assert isinstance(cert, LemmaChainCertificate)
+    final = cert.final
+    assert isinstance(final, ConjugateCertificate) and final.factor_may_vanish and final.positive_factor
+    assert check(cert) is not None
+    assert check(dataclasses.replace(cert, final=dataclasses.replace(final, factor_may_vanish=False))) is None
+    negated = tuple((c[1:] if c.startswith("-") else "-" + c, e) for c, e in final.positive_factor)
+    assert check(dataclasses.replace(cert, final=dataclasses.replace(final, positive_factor=negated))) is None

@@ -112,14 +112,14 @@ def _root_candidates(tr: Translation, positive: Sequence[str]
 
 def _nonnegative_form(value: PolyElement, tr: Translation, basis: GroebnerResult, positive_index: set[int],
                       deadline: float | None
-                      ) -> tuple[PolyElement, list[tuple[PolyElement, object]], PolyElement] | None:
-    """(P, [(S, lam)], M) with value*M == P + sum(lam*S) modulo the ideal, P of a nonnegative sign pattern,
-    S sign hypotheses (S >= 0), lam > 0 and M > 0 (a nonnegative sign pattern with a positive constant;
-    usually 1); or None."""
+                      ) -> tuple[PolyElement, list[tuple[PolyElement, object]], PolyElement, bool] | None:
+    """(P, [(S, lam)], M, vanishing) with value*M == P + sum(lam*S) modulo the ideal, P of a nonnegative
+    sign pattern, S sign hypotheses (S >= 0), lam > 0 and M > 0 (``positive_factor_ok``; usually 1), or, when
+    ``vanishing``, M >= 0 with value + M >= 0 by their sign patterns; or None."""
     ring = value.ring
     found = _pattern_form(value, tr, basis, positive_index, deadline)
     if found is not None:
-        return found[0], found[1], ring.one
+        return found[0], found[1], ring.one, False
     _, p = reduce(value, basis.basis, deadline=deadline) if basis.basis else ((), value)
     # p == a*s + b for a nonnegative root s: the conjugate M = +-(a*s - b) makes p*M == a**2*s**2 - b**2,
     # free of s once s**2 is reduced (sqrt(2) - 1 >= 0: (sqrt(2) - 1)*(sqrt(2) + 1) == 1)
@@ -129,11 +129,15 @@ def _nonnegative_form(value: PolyElement, tr: Translation, basis: GroebnerResult
             continue
         a, b = split
         for factor in (a * ring.gens[index] - b, b - a * ring.gens[index]):
-            if not positive_factor_ok(factor, [g.poly for g in tr.generators], positive_index):
+            if positive_factor_ok(factor, [g.poly for g in tr.generators], positive_index):
+                vanishing = False
+            elif sign_pattern_ok(factor, positive_index) and sign_pattern_ok(value + factor, positive_index):
+                vanishing = True
+            else:
                 continue
             found = _pattern_form(p * factor, tr, basis, positive_index, deadline)
             if found is not None:
-                return found[0], found[1], factor
+                return found[0], found[1], factor, vanishing
     return None
 
 
@@ -192,7 +196,7 @@ def find_sign_proof(tr: Translation, basis: GroebnerResult, *,
         nonnegative = _nonnegative_form(-a * b, tr, basis, positive_index, deadline)
         if nonnegative is None:
             continue
-        p, hypotheses, factor = nonnegative
+        p, hypotheses, factor, vanishing = nonnegative
         combination = -a * b * factor - p - sum((h * lam for h, lam in hypotheses), ring.zero)
         p_cofactors = membership_cofactors(combination, basis, deadline=deadline) if combination else \
             tuple(ring.zero for _ in tr.generators)
@@ -210,6 +214,7 @@ def find_sign_proof(tr: Translation, basis: GroebnerResult, *,
             form_cofactors=tuple(poly_to_data(c) for c in form_cofactors),
             hypotheses=tuple((poly_to_data(h), fraction_text(_fraction(lam))) for h, lam in hypotheses),
             positive_factor=() if factor == ring.one else poly_to_data(factor),
+            factor_may_vanish=vanishing,
         )
     return None
 

@@ -61,6 +61,10 @@ class ConjugateCertificate:
     # the ideal part is then ``-A*B*M - P - sum(lam*S)``, so -A*B >= 0 from M > 0 and P >= 0 (empty: M = 1;
     # sqrt(2) - 1 >= 0 is (sqrt(2) - 1)*(sqrt(2) + 1) == 1)
     positive_factor: PolyData = ()
+    # M only >= 0 (by its sign pattern), and -A*B + M has a nonnegative sign pattern: where M == 0 that gives
+    # -A*B >= 0 directly (sqrt(a) - sqrt(b) >= 0 from (sqrt(a) - sqrt(b))*(sqrt(a) + sqrt(b)) == a - b >= 0
+    # and sqrt(a) - sqrt(b) + (sqrt(a) + sqrt(b)) == 2*sqrt(a) >= 0)
+    factor_may_vanish: bool = False
 
 
 @dataclass(frozen=True)

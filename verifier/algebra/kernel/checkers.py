@@ -126,7 +126,12 @@ def check_conjugate(cert: ConjugateCertificate) -> Premises:
     p = data_to_poly(cert.nonnegative, ring)
     _require(isinstance(cert.positive_factor, tuple), "the factor M is polynomial data")
     factor = data_to_poly(cert.positive_factor, ring) if cert.positive_factor else ring.one
-    _require(positive_factor_ok(factor, generators, positive), "the factor M may be zero or negative")
+    if _strictness(cert.factor_may_vanish):
+        # value*M >= 0, M >= 0 and value + M >= 0 give value >= 0 (M > 0, or M == 0 and value >= -M == 0)
+        _require(bool(cert.positive_factor) and sign_pattern_ok(factor, positive), "the factor M may be negative")
+        _require(sign_pattern_ok(-a * b + factor, positive), "-A*B + M may be negative")
+    else:
+        _require(positive_factor_ok(factor, generators, positive), "the factor M may be zero or negative")
     rest = -a * b * factor - p
     _require(isinstance(cert.hypotheses, tuple), "the hypotheses are a tuple")
     used = []
