@@ -39,6 +39,8 @@ CLAIMS = {
     "sign_contradiction": ("x == 1 given a > b, a <= b", "x == 1 given a >= b, a <= b"),
     # r > 1 makes r*r > 1; r == 1 satisfies r >= 1 and r*r <= 1
     "shift_contradiction": ("y == 5 given r > 1, r*r <= 1", "y == 5 given r >= 1, r*r <= 1"),
+    # x**4 + y**4 is a sum of the squares of x**2 and y**2, zero only at 0; x**4 - y**4 vanishes at x = y = 1
+    "lemma_chain": ("x == 0 given x**4 + y**4 == 0", "x == 0 given x**4 - y**4 == 0"),
 }
 
 

@@ -50,13 +50,13 @@ def condition_text(draw: Draw, conditions: Sequence[Condition]) -> str:
 
 def claim(draw: Draw, family: str, left: sympy.Expr, right: sympy.Expr, conditions: Sequence[Condition],
           sampler: Sampler, meant_true: bool, left_text: str | None = None,
-          conditions_shown: str | None = None) -> Case:
+          conditions_shown: str | None = None, vacuous: bool = False) -> Case:
     if left_text is None and draw(st.booleans()):
         left, right = right, left  # either side may hold the rewritten form
     shown_left = left_text if left_text is not None else text(draw, left)
     shown_conditions = condition_text(draw, conditions) if conditions_shown is None else conditions_shown
     body = f"{shown_left} == {text(draw, right)}{shown_conditions}"
-    return Case(family, body, left, right, tuple(conditions), sampler, meant_true)
+    return Case(family, body, left, right, tuple(conditions), sampler, meant_true, vacuous=vacuous)
 
 
 def small_int(draw: Draw, low: int = -4, high: int = 4, nonzero: bool = True) -> int:
@@ -306,6 +306,9 @@ def sqrt_sign(draw: Draw, meant_true: bool) -> Case:
     elif kind == "product":
         left = sympy.sqrt(X) * sympy.sqrt(Y)
         right = sympy.sqrt(X * Y) if meant_true else sympy.sqrt(X + Y)
+        # both roots need x, y >= 0: a free sampler meets that a quarter of the time, too seldom to judge
+        return claim(draw, "sqrt_sign", left, right, conditions, free_sampler(["x", "y"], positive=["x", "y"]),
+                     meant_true)
     elif kind == "hypot":
         a, b, h = draw(st.sampled_from([(3, 4, 5), (5, 12, 13), (8, 15, 17), (7, 24, 25)]))
         left = sympy.sqrt((a * X) ** 2 + (b * X) ** 2, evaluate=False)
@@ -432,9 +435,25 @@ def nonzero(draw: Draw, meant_true: bool) -> Case:
 
 @st.composite
 def real_sos(draw: Draw, meant_true: bool) -> Case:
-    """A sum of squares that pins a point; false: a difference of squares, which does not."""
+    """A sum of squares that pins a point (of degree 2, or 4 with squared squares); conditions with no real
+    point (a sum of squares plus a positive constant; exp or sqrt equal to a negative number), true
+    vacuously; false: a difference of squares, a circle, a positive value, which have real points."""
     p, q = small_int(draw, -3, 3, nonzero=False), small_int(draw, -3, 3, nonzero=False)
     a, b = small_int(draw, -3, 3), small_int(draw, -3, 3)
+    kind = draw(st.sampled_from(["pinned", "pinned", "quartic", "empty"]))
+    if kind == "empty":
+        return _empty_conditions(draw, meant_true, p, q, a, b)
+    if kind == "quartic":
+        # ((x - p)**2)**2 + (y - q)**2 == 0 pins (p, q) too; false: minus the second square
+        sign = 1 if meant_true else -1
+        squares = (X - p) ** 4 + sign * (Y - q) ** 2
+        conditions = [Condition(draw(st.sampled_from([squares, sympy.expand(squares)])), "==", sympy.Integer(0))]
+
+        def on_curve(rng: random.Random) -> dict[str, mpmath.mpf]:
+            t = uniform(rng)
+            return as_mpf({"x": Fraction(p), "y": Fraction(q)} if meant_true else {"x": p + t, "y": q + t * t})
+
+        return claim(draw, "real_sos", a * X + b * Y, sympy.Integer(a * p + b * q), conditions, on_curve, meant_true)
     squares = (X - p) ** 2 + (Y - q) ** 2 if meant_true else (X - p) ** 2 - (Y - q) ** 2
     radicand = draw(st.sampled_from([squares, sympy.expand(squares)]))
     conditions = [Condition(radicand, "==", sympy.Integer(0))]
@@ -445,6 +464,40 @@ def real_sos(draw: Draw, meant_true: bool) -> Case:
         return as_mpf({"x": Fraction(p), "y": Fraction(q)} if meant_true else {"x": x, "y": y})
 
     return claim(draw, "real_sos", a * X + b * Y, sympy.Integer(a * p + b * q), conditions, sample, meant_true)
+
+
+def _empty_conditions(draw: Draw, meant_true: bool, p: int, q: int, a: int, b: int) -> Case:
+    """Conditions with no real point by construction, so any claim holds vacuously; the false twin moves the
+    constant to the other sign, which gives the conditions real points where the claim fails."""
+    k = draw(st.integers(1, 4))
+    shape = draw(st.sampled_from(["squares", "quartic", "exp", "sqrt"]))
+    right = sympy.Integer(a * p + b * q + 1)  # wrong at the point (p, q) itself
+    if shape in ("squares", "quartic"):
+        power = 2 if shape == "squares" else 4
+        sign = 1 if meant_true else -1
+        total = (X - p) ** power + (Y - q) ** 2 + sign * k**power
+        conditions = [Condition(draw(st.sampled_from([total, sympy.expand(total)])), "==", sympy.Integer(0))]
+
+        def sample(rng: random.Random) -> dict[str, mpmath.mpf]:
+            if meant_true:
+                return as_mpf({"x": p + uniform(rng), "y": q + uniform(rng)})
+            # (x - p)**power == k**power with y == q: x == p +- k, the side where a*x + b*y misses right
+            return as_mpf({"x": Fraction(p + k if a * k != 1 else p - k), "y": Fraction(q)})
+
+        return claim(draw, "real_sos", a * X + b * Y, right, conditions, sample, meant_true, vacuous=meant_true)
+    inner = a * X + b
+    function = sympy.exp(inner) if shape == "exp" else sympy.sqrt(inner, evaluate=False)
+    conditions = [Condition(function, "==", sympy.Integer(-k if meant_true else k))]
+
+    def at_value(rng: random.Random) -> dict[str, mpmath.mpf]:
+        with mpmath.workdps(50):
+            if meant_true:
+                return as_mpf({"x": uniform(rng), "y": uniform(rng)})
+            inside = mpmath.log(k) if shape == "exp" else mpmath.mpf(k * k)
+            return {"x": (inside - b) / a, "y": as_mpf({"y": uniform(rng)})["y"]}
+
+    # false twin: Y == a*x + b + 1 at a point where the condition holds and y is free
+    return claim(draw, "real_sos", Y, inner + 1, conditions, at_value, meant_true, vacuous=meant_true)
 
 
 @st.composite
@@ -609,7 +662,8 @@ def real_only(draw: Draw, meant_true: bool) -> Case:
             hypothesis = Condition(shifted**2, ">=", sympy.Integer(0))
 
         def sample(rng: random.Random) -> dict[str, mpmath.mpf]:
-            x = uniform(rng, 0, 3) + b if meant_true else uniform(rng)
+            # around the kink at x == b, so a false claim (no sign hypothesis) meets both sides of it
+            x = uniform(rng, 0, 3) + b if meant_true else uniform(rng) + b
             return as_mpf({"x": x if x != b else x + 1})
 
         left = sympy.sqrt(sympy.expand(shifted**2))

@@ -164,12 +164,12 @@ def test_the_entry_point_is_registered() -> None:
 
 
 def test_a_claim_accepted_by_its_expect_clause_is_skipped_and_a_changed_one_fails(tmp_path: Path) -> None:
-    # x == 5 under x**4 + 1 == 0: no real point, so undecided; under x - 5 == 0 it is proved
+    # x == 5 under Motzkin's polynomial plus 1 == 0: no real point, not a sum of squares, so undecided; under x - 5 == 0 it is proved
     project = tmp_path / "accepted"
     (project / "src").mkdir(parents=True)
     (project / "pyproject.toml").write_text("[project]\nname = 'accepted'\n")
     (project / "src" / "open.c").write_text(
-        "// idealcheck: x == 5 given x**4 + 1 == 0 expect inconclusive: no real point\n"
+        "// idealcheck: x == 5 given x**4*y**2 + x**2*y**4 - 3*x**2*y**2 + 2 == 0 expect inconclusive: no real point\n"
         "// idealcheck: y == 5 given y - 5 == 0 expect inconclusive: was undecided once\n")
     result = _pytest(project, "--idealcheck", "--idealcheck-no-cache")
     output = result.stdout + result.stderr

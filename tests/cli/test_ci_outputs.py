@@ -16,10 +16,10 @@ from verifier.cli.main import main
 
 SCHEMA = json.loads((Path(__file__).resolve().parents[1] / "data" / "sarif-schema-2.1.0.json").read_text())
 # The binomial square (common practice), the same without its cross term (false at a = b = 1), and x == 5
-# under x**4 + 1 == 0 (no real point: undecided).
+# under Motzkin's polynomial plus 1 == 0 (no real point, but not a sum of squares: undecided).
 TRUE_C = "// idealcheck: (a+b)**2 == a**2 + 2*a*b + b**2\n"
 FALSE_C = "int f(void);\n// idealcheck: (a+b)**2 == a**2 + b**2\n"
-OPEN_C = "// idealcheck: x == 5 given x**4 + 1 == 0\n"
+OPEN_C = "// idealcheck: x == 5 given x**4*y**2 + x**2*y**4 - 3*x**2*y**2 + 2 == 0\n"
 BROKEN_C = "// idealcheck: a == (b\n"
 
 
@@ -128,7 +128,7 @@ def test_junit_classifies_failures_errors_and_skips_with_stable_names(repo: Path
 
 
 def test_an_accepted_result_is_skipped_in_junit_and_suppressed_in_sarif(repo: Path, capsys) -> None:
-    Path("src/open.c").write_text("// idealcheck: x == 5 given x**4 + 1 == 0 expect inconclusive: no real point\n")
+    Path("src/open.c").write_text("// idealcheck: x == 5 given x**4*y**2 + x**2*y**4 - 3*x**2*y**2 + 2 == 0 expect inconclusive: no real point\n")
     _check(capsys, "--output", "junit=out.xml", "--output", "sarif=out.sarif")
     case = next(c for c in ET.parse("out.xml").getroot().iter("testcase") if c.get("classname") == "src/open.c")
     assert "accepted: expected inconclusive (no real point)" in case.find("skipped").get("message")

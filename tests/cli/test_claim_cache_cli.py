@@ -84,13 +84,14 @@ def test_a_change_in_an_inlined_helper_invalidates_the_claims_that_use_it(cli: C
 
 
 def test_a_cached_result_says_what_was_re_checked(cli: Cli, tmp_path: Path) -> None:
-    # the quartic condition has only x = y = 0 as real point (common practice), which the tool leaves open;
+    # Motzkin's polynomial plus 1 has no real zero but is no sum of squares (T. S. Motzkin 1967, from memory),
+    # which the tool leaves open;
     # the square is wrong at x = -1: its witness is re-checked when it comes from the cache
-    (tmp_path / "quartic.py").write_text("# idealcheck: x == 0 given x**4 + y**4 + x**2*y**2 == 0\n"
+    (tmp_path / "quartic.py").write_text("# idealcheck: x == 0 given x**4*y**2 + x**2*y**4 - 3*x**2*y**2 + 2 == 0\n"
                                         "# idealcheck: sqrt(x**2) == x\n", encoding="utf-8")
     cli("check", "-v", cwd=tmp_path)
     again = cli("check", "-v", cwd=tmp_path).out.split("\n")
-    open_claim = again.index("quartic.py:1:3: inconclusive: x == 0 given x**4 + y**4 + x**2*y**2 == 0")
+    open_claim = again.index("quartic.py:1:3: inconclusive: x == 0 given x**4*y**2 + x**2*y**4 - 3*x**2*y**2 + 2 == 0")
     refuted = again.index("quartic.py:2:3: refuted: sqrt(x**2) == x")
     assert again[open_claim + 1].strip() == "from cache"
     assert again[refuted + 1].strip() == "from cache (witness re-checked)"

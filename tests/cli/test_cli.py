@@ -16,7 +16,7 @@ if TYPE_CHECKING:
 # and a claim under a condition with no real solution (nothing to refute, nothing to prove).
 TRUE_C = "// idealcheck: (a+b)**2 == a**2 + 2*a*b + b**2\n"
 FALSE_C = "int f(void);\n// idealcheck: (a+b)**2 == a**2 + b**2\n"
-OPEN_JL = "# idealcheck: x == 5 given x**4 + 1 == 0\n"
+OPEN_JL = "# idealcheck: x == 5 given x**4*y**2 + x**2*y**4 - 3*x**2*y**2 + 2 == 0\n"
 
 
 @pytest.fixture()

@@ -3,8 +3,9 @@
 
 Claims are textbook identities (common practice): the binomial square, the same square without its
 cross term (false at a = b = 1), the cosine of a sum written with the wrong sign, and x == 5 under
-x**4 + 1 == 0, a condition with no real solution (no witness exists and 1 is not in the ideal, so the
-claim stays undecided).
+Motzkin's polynomial plus 1 equal to 0, a condition with no real solution that is not a sum of squares
+(T. S. Motzkin, "The arithmetic-geometric inequality", 1967, from memory), so no witness exists, 1 is not
+in the ideal and the claim stays undecided.
 """
 from __future__ import annotations
 
@@ -118,7 +119,7 @@ def test_an_expected_verdict_passes_and_a_changed_one_fails(project: Path, capsy
     for name in ("a_true.c", "b_false.c", "c_true.c"):
         (project / "src" / name).unlink()
     (project / "src" / "open.c").write_text(
-        "// idealcheck: x == 5 given x**4 + 1 == 0 expect inconclusive: no real point, kept as a known limit\n")
+        "// idealcheck: x == 5 given x**4*y**2 + x**2*y**4 - 3*x**2*y**2 + 2 == 0 expect inconclusive: no real point, kept as a known limit\n")
     status, out, _ = _run(capsys)
     assert status == 0, out
     assert "accepted: expected inconclusive (no real point, kept as a known limit)" in out
@@ -127,7 +128,7 @@ def test_an_expected_verdict_passes_and_a_changed_one_fails(project: Path, capsy
     junit = capsys.readouterr().out
     assert junit_status == 0 and "<skipped" in junit and "<failure" not in junit
     # the claim text is unchanged by the clause (its identity in CI names and the cache)
-    assert 'name="x == 5 given x**4 + 1 == 0"' in junit
+    assert 'name="x == 5 given x**4*y**2 + x**2*y**4 - 3*x**2*y**2 + 2 == 0"' in junit
     main(["check", "--jobs", "1", "--no-cache", "--format", "json"])
     (item,) = json.loads(capsys.readouterr().out)["claims"]
     assert item["expected"] == {"verdict": "inconclusive", "reason": "no real point, kept as a known limit",

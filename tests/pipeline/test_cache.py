@@ -183,10 +183,17 @@ def test_results_cut_short_by_a_limit_are_not_stored(tmp_path: Path, decided) ->
     assert cache.entry_path(TRUE, inconclusive=True).exists()
 
 
-# x = 5 under x**4 + 1 = 0: the condition has no real point, so there is nothing to refute or prove
-OPEN = Claim(id="k.c:4:1", location=Location("k.c", 4, 1), kind="expression", text="x == 5 given x**4 + 1 == 0",
-             obligations=(Obligation(x, Num(Fraction(5)), (Condition("==", BinOp("+", Pow(x, Fraction(4)), Num(Fraction(1))),
-                                                                     Num(Fraction(0)), "x**4 + 1 == 0"),)),),
+# x = 5 under Motzkin's polynomial x**4*y**2 + x**2*y**4 - 3*x**2*y**2 plus 2 == 0: no real point, but the
+# condition is not a sum of squares (T. S. Motzkin 1967, from memory), so there is nothing to refute or prove
+_y = Var("y")
+_MOTZKIN = BinOp("+", BinOp("-", BinOp("+", BinOp("*", Pow(x, Fraction(4)), Pow(_y, Fraction(2))),
+                                          BinOp("*", Pow(x, Fraction(2)), Pow(_y, Fraction(4)))),
+                            BinOp("*", Num(Fraction(3)), BinOp("*", Pow(x, Fraction(2)), Pow(_y, Fraction(2))))),
+                 Num(Fraction(2)))
+OPEN = Claim(id="k.c:4:1", location=Location("k.c", 4, 1), kind="expression",
+             text="x == 5 given x**4*y**2 + x**2*y**4 - 3*x**2*y**2 + 2 == 0",
+             obligations=(Obligation(x, Num(Fraction(5)), (Condition("==", _MOTZKIN, Num(Fraction(0)),
+                                                                     "x**4*y**2 + x**2*y**4 - 3*x**2*y**2 + 2 == 0"),)),),
              dependencies=("k.c",))
 
 

@@ -33,6 +33,7 @@ from verifier.algebra.groebner import (
 )
 from verifier.algebra.facts import claim_facts
 from verifier.algebra.kernel.polynomial import poly_to_data
+from verifier.algebra.lemmas import chain_is_vacuous, chain_reason, find_lemma_chain
 from verifier.algebra.kernel.tie import certificate_fits
 from verifier.algebra.sign_search import (
     find_real_square,
@@ -202,6 +203,9 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
                            "proved with the sign of a principal square root and the sign hypotheses: "
                            "(LEFT - RIGHT) times its conjugate lies in the ideal, and the conjugate "
                            "cannot vanish where LEFT - RIGHT does not")
+        chain = find_lemma_chain(tr, basis_result, deadline=deadline)
+        if chain is not None:
+            return _accept(tr, label, "sign", chain, chain_reason(chain), vacuous=chain_is_vacuous(chain))
     cnf = tr.printed(normal_form)
     witness = find_witness(ob.left, ob.right, ob.conditions, deadline=deadline, seed=seed)
     if witness is not None:

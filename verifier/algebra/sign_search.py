@@ -23,7 +23,12 @@ from sympy.polys.rings import PolyElement
 
 from verifier.algebra.facts import nonnegative_symbols
 from verifier.algebra.groebner import GroebnerResult, membership_cofactors, reduce
-from verifier.algebra.kernel.checkers import contradicts, shift_contradicts, shifted_negation
+from verifier.algebra.kernel.checkers import (
+    contradicts,
+    positive_factor_ok,
+    shift_contradicts,
+    shifted_negation,
+)
 from verifier.algebra.kernel.polynomial import fraction_text, poly_to_data, sign_pattern_ok
 from verifier.algebra.squares import quadratic_squares
 from verifier.algebra.translate import Translation
@@ -106,9 +111,39 @@ def _root_candidates(tr: Translation, positive: Sequence[str]
 
 
 def _nonnegative_form(value: PolyElement, tr: Translation, basis: GroebnerResult, positive_index: set[int],
-                      deadline: float | None) -> tuple[PolyElement, list[tuple[PolyElement, object]]] | None:
-    """(P, [(S, lam)]) with value == P + sum(lam*S) modulo the ideal, P of a nonnegative sign pattern,
-    S sign hypotheses (S >= 0) and lam > 0; or None."""
+                      deadline: float | None
+                      ) -> tuple[PolyElement, list[tuple[PolyElement, object]], PolyElement, bool] | None:
+    """(P, [(S, lam)], M, vanishing) with value*M == P + sum(lam*S) modulo the ideal, P of a nonnegative
+    sign pattern, S sign hypotheses (S >= 0), lam > 0 and M > 0 (``positive_factor_ok``; usually 1), or, when
+    ``vanishing``, M >= 0 with value + M >= 0 by their sign patterns; or None."""
+    ring = value.ring
+    found = _pattern_form(value, tr, basis, positive_index, deadline)
+    if found is not None:
+        return found[0], found[1], ring.one, False
+    _, p = reduce(value, basis.basis, deadline=deadline) if basis.basis else ((), value)
+    # p == a*s + b for a nonnegative root s: the conjugate M = +-(a*s - b) makes p*M == a**2*s**2 - b**2,
+    # free of s once s**2 is reduced (sqrt(2) - 1 >= 0: (sqrt(2) - 1)*(sqrt(2) + 1) == 1)
+    for index in sorted(positive_index):
+        split = _split_plain(p, index) if p.degree(index) == 1 else None
+        if split is None:
+            continue
+        a, b = split
+        for factor in (a * ring.gens[index] - b, b - a * ring.gens[index]):
+            if positive_factor_ok(factor, [g.poly for g in tr.generators], positive_index):
+                vanishing = False
+            elif sign_pattern_ok(factor, positive_index) and sign_pattern_ok(value + factor, positive_index):
+                vanishing = True
+            else:
+                continue
+            found = _pattern_form(p * factor, tr, basis, positive_index, deadline)
+            if found is not None:
+                return found[0], found[1], factor, vanishing
+    return None
+
+
+def _pattern_form(value: PolyElement, tr: Translation, basis: GroebnerResult, positive_index: set[int],
+                  deadline: float | None) -> tuple[PolyElement, list[tuple[PolyElement, object]]] | None:
+    """(P, [(S, lam)]) with value == P + sum(lam*S) modulo the ideal, P of a nonnegative sign pattern."""
     _, p = reduce(value, basis.basis, deadline=deadline) if basis.basis else ((), value)
     if sign_pattern_ok(p, positive_index):
         return p, []
@@ -116,12 +151,16 @@ def _nonnegative_form(value: PolyElement, tr: Translation, basis: GroebnerResult
         _, h = reduce(hypothesis, basis.basis, deadline=deadline) if basis.basis else ((), hypothesis)
         if not h or not p:
             continue
-        lam = p.LC / h.LC if p.LM == h.LM else None
-        if lam is None or lam <= 0:
-            continue
-        rest = p - h * lam
-        if sign_pattern_ok(rest, positive_index):
-            return rest, [(hypothesis, lam)]
+        # the weight that cancels one term of p, its leading one first (x - (x - y**2) == y**2)
+        ratios: list[object] = []
+        for monom, coeff in [(p.LM, p.LC)] + list(p.terms()):
+            other = h.get(monom)
+            if other and coeff / other > 0 and coeff / other not in ratios:
+                ratios.append(coeff / other)
+        for lam in ratios:
+            rest = p - h * lam
+            if sign_pattern_ok(rest, positive_index):
+                return rest, [(hypothesis, lam)]
     return None
 
 
@@ -157,8 +196,8 @@ def find_sign_proof(tr: Translation, basis: GroebnerResult, *,
         nonnegative = _nonnegative_form(-a * b, tr, basis, positive_index, deadline)
         if nonnegative is None:
             continue
-        p, hypotheses = nonnegative
-        combination = -a * b - p - sum((h * lam for h, lam in hypotheses), ring.zero)
+        p, hypotheses, factor, vanishing = nonnegative
+        combination = -a * b * factor - p - sum((h * lam for h, lam in hypotheses), ring.zero)
         p_cofactors = membership_cofactors(combination, basis, deadline=deadline) if combination else \
             tuple(ring.zero for _ in tr.generators)
         if p_cofactors is None:
@@ -174,6 +213,8 @@ def find_sign_proof(tr: Translation, basis: GroebnerResult, *,
             form=poly_to_data(form),
             form_cofactors=tuple(poly_to_data(c) for c in form_cofactors),
             hypotheses=tuple((poly_to_data(h), fraction_text(_fraction(lam))) for h, lam in hypotheses),
+            positive_factor=() if factor == ring.one else poly_to_data(factor),
+            factor_may_vanish=vanishing,
         )
     return None
 

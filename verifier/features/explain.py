@@ -9,6 +9,7 @@ witness).  ``report/explain_text.py`` turns an ``Explanation`` into text.
 from __future__ import annotations
 
 import os
+from dataclasses import replace
 from fractions import Fraction
 from pathlib import Path
 from typing import Any, Sequence
@@ -34,6 +35,7 @@ from verifier.model.certificate import (
     Certificate,
     ConjugateCertificate,
     IdealCertificate,
+    LemmaChainCertificate,
     PolyData,
     RealSquareCertificate,
     ShiftContradictionCertificate,
@@ -154,6 +156,13 @@ def _strictly(strict: bool) -> str:
 def _certificate_text(certificate: Certificate) -> CertificateText:
     """What the proof of each kind shows, with its polynomials printed."""
     ring = _certificate_ring(certificate)
+    if isinstance(certificate, LemmaChainCertificate):
+        # the steps' targets first, then what the last step shows (over the conditions and the lemmas)
+        lemmas = ", ".join(f"{_text(step.target, ring)} == 0" for step in certificate.lemmas)
+        last = _certificate_text(certificate.final)
+        note = f"lemmas proved first, then used as conditions: {lemmas}" + (f"; {last.sign_note}" if last.sign_note
+                                                                            else "")
+        return replace(last, sign_note=note)  # the last step's kind says which identity its terms expand
     if isinstance(certificate, IdealCertificate):
         return CertificateText(certificate.power, _terms(certificate.cofactors, certificate.generators, ring))
     if isinstance(certificate, ConjugateCertificate):

@@ -57,6 +57,14 @@ class ConjugateCertificate:
     form_cofactors: tuple[PolyData, ...]
     # sign hypotheses S >= 0 used with weights lam >= 0 (as fraction text)
     hypotheses: tuple[tuple[PolyData, str], ...] = ()
+    # M > 0 (positive coefficients, odd powers only of nonnegative symbols, a positive constant term):
+    # the ideal part is then ``-A*B*M - P - sum(lam*S)``, so -A*B >= 0 from M > 0 and P >= 0 (empty: M = 1;
+    # sqrt(2) - 1 >= 0 is (sqrt(2) - 1)*(sqrt(2) + 1) == 1)
+    positive_factor: PolyData = ()
+    # M only >= 0 (by its sign pattern), and -A*B + M has a nonnegative sign pattern: where M == 0 that gives
+    # -A*B >= 0 directly (sqrt(a) - sqrt(b) >= 0 from (sqrt(a) - sqrt(b))*(sqrt(a) + sqrt(b)) == a - b >= 0
+    # and sqrt(a) - sqrt(b) + (sqrt(a) + sqrt(b)) == 2*sqrt(a) >= 0)
+    factor_may_vanish: bool = False
 
 
 @dataclass(frozen=True)
@@ -122,10 +130,35 @@ class ShiftContradictionCertificate:
     nonnegative_symbols: tuple[str, ...]
 
 
+# The proofs a lemma chain may use as steps (no chain inside a chain, so the depth of the data stays fixed)
+LemmaProof = Union[IdealCertificate, ConjugateCertificate, RealSquareCertificate]
+
+
+@dataclass(frozen=True)
+class LemmaChainCertificate:
+    """Lemmas first, then the claim (``algebra/lemmas.py``).
+
+    Step i (``lemmas[i]``, then ``final``) is a certificate of its own kind over the same ``symbols`` whose
+    generators are the claim's ``generators`` followed by the targets of the lemmas before it: each proves
+    its target is 0 wherever the claim's conditions hold, given the earlier lemmas, so the lemma targets
+    may be used as equations afterwards.  ``final`` proves ``target``.  (``x == 0 given x**4 + y**4 == 0``:
+    the lemma x**2 by a real square, then x from x**2 by radical membership; ``sqrt(a + b + 2*sqrt(a*b))
+    == sqrt(a) + sqrt(b)``: the lemma sqrt(a*b) - sqrt(a)*sqrt(b), then the conjugate argument.)
+    """
+
+    kind: ClassVar[str] = "lemma_chain"
+    symbols: tuple[str, ...]
+    target: PolyData
+    generators: tuple[PolyData, ...]
+    lemmas: tuple[LemmaProof, ...]
+    final: LemmaProof
+
+
 Certificate = Union[
     IdealCertificate,
     ConjugateCertificate,
     RealSquareCertificate,
     SignContradictionCertificate,
     ShiftContradictionCertificate,
+    LemmaChainCertificate,
 ]

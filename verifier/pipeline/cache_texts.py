@@ -18,6 +18,7 @@ from verifier.model.certificate import (
     Certificate,
     ConjugateCertificate,
     IdealCertificate,
+    LemmaChainCertificate,
     RealSquareCertificate,
     ShiftContradictionCertificate,
     SignContradictionCertificate,
@@ -79,6 +80,11 @@ def proved_texts(obligation: Obligation, result: ObligationResult, tr: Any = Non
     vacuous = False
     if isinstance(cert, (SignContradictionCertificate, ShiftContradictionCertificate)):
         method, reason, vacuous = "sign", _REASONS["contradiction"], True
+    elif isinstance(cert, LemmaChainCertificate):
+        # the wording of the proof in steps lives beside its finder (sympy is loaded by now anyway)
+        from verifier.algebra.lemmas import chain_is_vacuous, chain_reason
+
+        method, reason, vacuous = "sign", chain_reason(cert), chain_is_vacuous(cert)
     elif isinstance(cert, RealSquareCertificate):
         method, reason = "sign", _REASONS["real_square"]
     elif isinstance(cert, ConjugateCertificate):

@@ -64,6 +64,14 @@ TAMPERINGS = [
     ("shift_contradiction", "shift", lambda s: "0"),
     ("shift_contradiction", "bound_strict", lambda strict: not strict),
     ("shift_contradiction", "variable", lambda v: "y"),
+    ("lemma_chain", "lemmas", lambda steps: ()),
+    ("lemma_chain", "lemmas", lambda steps: steps + steps),  # the second copy is over too few equations
+    ("lemma_chain", "lemmas", lambda steps: (dataclasses.replace(steps[0], remainder=bump(steps[0].remainder)),)
+     + steps[1:]),
+    ("lemma_chain", "final", lambda step: dataclasses.replace(step, cofactors=bump_first_nonempty(step.cofactors))),
+    # a step over the claim's equations alone may not use the lemma targets the chain claims to have proved
+    ("lemma_chain", "final", lambda step: dataclasses.replace(step, generators=step.generators[:2],
+                                                              cofactors=step.cofactors[:2])),
 ]
 
 

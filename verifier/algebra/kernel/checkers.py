@@ -29,6 +29,7 @@ from verifier.model.certificate import (
     Certificate,
     ConjugateCertificate,
     IdealCertificate,
+    LemmaChainCertificate,
     PolyData,
     RealSquareCertificate,
     ShiftContradictionCertificate,
@@ -77,11 +78,31 @@ def _without(p: PolyElement, index: int) -> PolyElement:
     return ring(terms) if terms else ring.zero
 
 
+def strictly_positive_symbols(generators: list[PolyElement], positive: set[int]) -> set[int]:
+    """Symbols r >= 0 with r**2 - c among the generators for a constant c > 0: then r > 0 (sqrt(2))."""
+    found = set()
+    for g in generators:
+        for index in positive:
+            rest = g - g.ring.gens[index] ** 2
+            if rest.is_ground and rest and rest.LC < 0:
+                found.add(index)
+    return found
+
+
+def positive_factor_ok(factor: PolyElement, generators: list[PolyElement], positive: set[int]) -> bool:
+    """M > 0 wherever the generators vanish and the ``positive`` symbols are >= 0: every term is >= 0 (its
+    sign pattern) and one is > 0 (a positive constant, or a product of strictly positive roots)."""
+    if not sign_pattern_ok(factor, positive):
+        return False
+    strict = strictly_positive_symbols(generators, positive)
+    return any(all(i in strict for i, e in enumerate(monom) if e) for monom, _ in factor.terms())
+
+
 def check_conjugate(cert: ConjugateCertificate) -> Premises:
     """(0) target - form is in the ideal; (1) target*multiplier is in the ideal, hence form*multiplier
     too; (2) form + multiplier == 2*A*root and form - multiplier == 2*B with A, B free of root; (3)
-    -A*B - P - sum(lam*S) is in the ideal, lam >= 0, and P has a nonnegative sign pattern.  Then
-    -A*B >= 0, which with (A*root)**2 == B**2 and root >= 0 leaves only A*root == -B, i.e. form == 0,
+    -A*B*M - P - sum(lam*S) is in the ideal, lam >= 0, P has a nonnegative sign pattern and M one with a
+    positive constant term (so M > 0; M = 1 when absent).  Then -A*B >= 0, which with (A*root)**2 == B**2 and root >= 0 leaves only A*root == -B, i.e. form == 0,
     and so target == 0."""
     symbols = cert.symbols
     ring = certificate_ring(symbols)
@@ -103,7 +124,15 @@ def check_conjugate(cert: ConjugateCertificate) -> Premises:
     a = _without(twice_ar, index) * rational(Fraction(1, 2))
     b = twice_b * rational(Fraction(1, 2))
     p = data_to_poly(cert.nonnegative, ring)
-    rest = -a * b - p
+    _require(isinstance(cert.positive_factor, tuple), "the factor M is polynomial data")
+    factor = data_to_poly(cert.positive_factor, ring) if cert.positive_factor else ring.one
+    if _strictness(cert.factor_may_vanish):
+        # value*M >= 0, M >= 0 and value + M >= 0 give value >= 0 (M > 0, or M == 0 and value >= -M == 0)
+        _require(bool(cert.positive_factor) and sign_pattern_ok(factor, positive), "the factor M may be negative")
+        _require(sign_pattern_ok(-a * b + factor, positive), "-A*B + M may be negative")
+    else:
+        _require(positive_factor_ok(factor, generators, positive), "the factor M may be zero or negative")
+    rest = -a * b * factor - p
     _require(isinstance(cert.hypotheses, tuple), "the hypotheses are a tuple")
     used = []
     for hypothesis_data, weight_text in cert.hypotheses:
@@ -112,7 +141,7 @@ def check_conjugate(cert: ConjugateCertificate) -> Premises:
         rest -= data_to_poly(hypothesis_data, ring) * rational(weight)
         used.append((hypothesis_data, False))
     _require(rest == combination(polys(cert.nonnegative_cofactors, ring), generators, ring),
-             "-A*B - P - sum(lam*S) is not in the ideal")
+             "-A*B*M - P - sum(lam*S) is not in the ideal")
     _require(sign_pattern_ok(p, positive), "P may be negative")
     return Premises(cert.nonnegative_symbols, tuple(used))
 
@@ -200,6 +229,35 @@ def check_shift_contradiction(cert: ShiftContradictionCertificate) -> Premises:
     return Premises(cert.nonnegative_symbols, ((cert.bound, bound_strict), (cert.other, other_strict)))
 
 
+MAX_LEMMAS = 16
+
+
+def check_lemma_chain(cert: LemmaChainCertificate) -> Premises:
+    """Each step is a valid certificate of a lemma kind over the same ring whose generators are the claim's
+    followed by the targets of the steps before it; the last step's target is the claim's.  By induction
+    every lemma target vanishes wherever the claim's conditions (and the steps' premises) hold."""
+    _require(isinstance(cert.lemmas, tuple) and 1 <= len(cert.lemmas) <= MAX_LEMMAS, "bad number of lemmas")
+    known = tuple(cert.generators)
+    certificate_ring(cert.symbols)
+    nonnegative: list[str] = []
+    hypotheses: list[tuple[PolyData, bool]] = []
+    for step in cert.lemmas + (cert.final,):
+        _require(type(step) in _LEMMA_KINDS, "a step of a kind a chain may not use")
+        _require(step.symbols == cert.symbols and step.generators == known, "a step over other equations")
+        premises = _LEMMA_KINDS[type(step)](step)
+        nonnegative += premises.nonnegative_symbols
+        hypotheses += premises.hypotheses
+        known = known + (step.target,)
+    _require(cert.final.target == cert.target, "the last step proves something else")
+    return Premises(tuple(dict.fromkeys(nonnegative)), tuple(dict.fromkeys(hypotheses)))
+
+
+_LEMMA_KINDS: dict[type, Callable[[Any], Premises]] = {
+    IdealCertificate: check_ideal,
+    ConjugateCertificate: check_conjugate,
+    RealSquareCertificate: check_real_square,
+}
+
 # The one table of proof kinds: a new certificate class gets its checker here.
 CHECKERS: dict[type, Callable[[Any], Premises]] = {
     IdealCertificate: check_ideal,
@@ -207,6 +265,7 @@ CHECKERS: dict[type, Callable[[Any], Premises]] = {
     RealSquareCertificate: check_real_square,
     SignContradictionCertificate: check_sign_contradiction,
     ShiftContradictionCertificate: check_shift_contradiction,
+    LemmaChainCertificate: check_lemma_chain,
 }
 
 
