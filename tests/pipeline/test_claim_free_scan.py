@@ -14,7 +14,7 @@ from pathlib import Path
 from conftest import write_file
 from verifier.claims.decoding import decode_if_claimed
 
-HEAVY = ("sympy", "libcst", "tree_sitter", "verifier.algebra", "verifier.claims.python")
+HEAVY = ("sympy", "libcst", "tree_sitter", "mpmath", "verifier.algebra", "verifier.claims.python")
 
 PROBE = (
     "import contextlib, io, json, sys\n"
