@@ -14,7 +14,7 @@ from typing import Any
 from verifier.model.limits import decision_clock
 from verifier.model.claim import Claim, ExtractionContext, FileProblem, Location, Problem
 from verifier.model.verdict import Limit, Verdict, VerdictName
-from verifier.pipeline.workers import Job, PoolSettings, memory_limit_reason
+from verifier.pipeline.job import Job, PoolSettings, memory_limit_reason
 
 DEFAULT_DECIDER = "verifier.pipeline.runner:decide_with_engine"
 TOO_DEEP = "the claim is nested too deeply to handle"
