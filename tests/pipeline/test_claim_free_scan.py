@@ -14,9 +14,10 @@ from pathlib import Path
 from conftest import write_file
 from verifier.claims.decoding import decode_if_claimed
 
-# the parsers and the algebra, mpmath (the high-precision evaluator), the worker pool's multiprocessing
+# the parsers and the algebra, mpmath (the high-precision evaluator), the worker pool's multiprocessing, the
+# other subcommands and their features
 HEAVY = ("sympy", "libcst", "tree_sitter", "mpmath", "multiprocessing", "verifier.algebra", "verifier.claims.python",
-         "verifier.pipeline.workers")
+         "verifier.pipeline.workers", "verifier.cli.audit", "verifier.cli.explain", "verifier.features")
 
 PROBE = (
     "import contextlib, io, json, sys\n"
