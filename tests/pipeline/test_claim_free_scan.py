@@ -14,17 +14,20 @@ from pathlib import Path
 from conftest import write_file
 from verifier.claims.decoding import decode_if_claimed
 
-HEAVY = ("sympy", "libcst", "tree_sitter", "verifier.algebra", "verifier.claims.python")
+# the parsers and the algebra, mpmath (the high-precision evaluator), the worker pool's multiprocessing, the
+# other subcommands and their features
+HEAVY = ("sympy", "libcst", "tree_sitter", "mpmath", "multiprocessing", "verifier.algebra", "verifier.claims.python",
+         "verifier.pipeline.workers", "verifier.cli.audit", "verifier.cli.explain", "verifier.features")
 
 PROBE = (
     "import contextlib, io, json, sys\n"
-    "from multiprocessing import forkserver\n"
     "from verifier.cli.main import main\n"
     "out = io.StringIO()\n"
     "with contextlib.redirect_stdout(out):\n"
     "    code = main(sys.argv[1:])\n"
     f"heavy = sorted(name for name in {HEAVY!r} if name in sys.modules)\n"
-    "server = getattr(forkserver._forkserver, '_forkserver_pid', None) is not None\n"
+    "forkserver = sys.modules.get('multiprocessing.forkserver')\n"
+    "server = forkserver is not None and getattr(forkserver._forkserver, '_forkserver_pid', None) is not None\n"
     "print(json.dumps({'code': code, 'heavy': heavy, 'server': server, 'report': json.loads(out.getvalue())}))\n"
 )
 

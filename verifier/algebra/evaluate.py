@@ -190,7 +190,7 @@ class _NumericValues:
     def pow(self, node: Pow, base: mpf) -> mpf:
         exponent = Fraction(node.exponent)
         if exponent.denominator == 2:
-            base = numeric_sqrt(base, self.at.radicand_eps)
+            base = numeric_sqrt(base, self.at)
         elif exponent.denominator != 1:
             raise ValueError(f"unsupported exponent {exponent}")
         k = exponent.numerator
@@ -233,7 +233,7 @@ def numeric_value(expr: Expr, values: Mapping[str, Real], prec_digits: int, *,
     """
     with mp.workdps(prec_digits):
         eps = tiny(prec_digits)
-        at = HighPrecision(eps, mpf(0) if strict_radicands else eps, _MAGNITUDE_LIMIT)
+        at = HighPrecision(mp, eps, mpf(0) if strict_radicands else eps, _MAGNITUDE_LIMIT)
         return +fold(expr, _NumericValues(values, at))
 
 

@@ -31,7 +31,9 @@ FALLBACK_NOTE = "this file is not UTF-8: lines that are not valid UTF-8 were rea
 PYTHON_SUFFIXES = (".py", ".pyw", ".pyi")
 # PEP 263's own pattern for a coding declaration, on one of the first two lines.
 _CODING = re.compile(rb"^[ \t\f]*#.*?coding[:=][ \t]*([-\w.]+)")
-_IDEAL = re.compile(rb"ideal", re.IGNORECASE)  # as ``near_miss`` looks for it (ASCII letters only)
+# ``near_miss`` looks for "ideal" in any case (ASCII letters only): ``bytes.lower`` folds exactly those,
+# and is several times faster than a case-insensitive search on every file of a scan
+_IDEAL = b"ideal"
 
 # Leading bytes of common binary formats that may hold no NUL byte early (compressed or short files).
 MAGIC_NUMBERS: tuple[tuple[bytes, str], ...] = (
@@ -52,6 +54,7 @@ MAGIC_NUMBERS: tuple[tuple[bytes, str], ...] = (
     (b"SQLite format 3\x00", "SQLite database"),
     (b"\x00asm", "WebAssembly module"),
 )
+_MAGIC_PREFIXES = tuple(magic for magic, _name in MAGIC_NUMBERS)  # one ``startswith`` for the common case
 
 
 @dataclass(frozen=True)
@@ -69,9 +72,8 @@ class Decoded:
 
 def binary_kind(data: bytes) -> str | None:
     """What binary format ``data`` is (a short description), or None when it may be text."""
-    for magic, name in MAGIC_NUMBERS:
-        if data.startswith(magic):
-            return name
+    if data.startswith(_MAGIC_PREFIXES):
+        return next(name for magic, name in MAGIC_NUMBERS if data.startswith(magic))
     # bzip2: "BZh", a block size digit, then the block magic (a text file may well start with "BZh")
     if len(data) >= 10 and data.startswith(b"BZh") and data[3:4].isdigit() and data[4:10] == b"1AY&SY":
         return "bzip2 data"
@@ -117,7 +119,7 @@ def needs_text(data: bytes, path: str) -> bool:
     """Whether the text of a (not binary) file is needed: its bytes hold the claim marker, or ``ideal`` in
     any case (a misspelt marker gets a warning), or it is a Python file with a coding declaration (in an
     encoding that is not ASCII-compatible the marker's bytes differ, and a bad declaration is an error)."""
-    if MARKER in data or _IDEAL.search(data) is not None:
+    if _IDEAL in data.lower():  # the marker, or a misspelling of it
         return True
     if not path.lower().endswith(PYTHON_SUFFIXES):
         return False

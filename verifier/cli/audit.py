@@ -36,10 +36,10 @@ if TYPE_CHECKING:
     from verifier.cli.options import Subparsers
 
 
-def register(subparsers: Subparsers) -> None:
+def register(subparsers: Subparsers, summary: str) -> None:
     parser = subparsers.add_parser(
         "audit",
-        help="check that every function of one module version equals the same-named function of another",
+        help=summary,
         description="Symbolically execute every function of OPTIMIZED that has a same-named function in "
                     "REFERENCE (files, or folders matched by relative module path) and decide whether both "
                     "return the same values for the same arguments (matched by position).",

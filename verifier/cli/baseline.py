@@ -29,10 +29,10 @@ if TYPE_CHECKING:
     from verifier.cli.options import Subparsers
 
 
-def register(subparsers: Subparsers) -> None:
+def register(subparsers: Subparsers, summary: str) -> None:
     parser = subparsers.add_parser(
         "baseline",
-        help="record the current inconclusive and error results as accepted",
+        help=summary,
         description="Check the claims under PATH (default: .) and write the baseline file: every claim that "
                     "is inconclusive or in error (refuted too with --accept-refuted) is accepted while its "
                     "verdict stays the same.  Reasons written into the file are kept while the verdict is "

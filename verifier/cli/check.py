@@ -56,10 +56,10 @@ def _shard(text: str) -> tuple[int, int]:
         raise argparse.ArgumentTypeError(str(exc)) from None
 
 
-def register(subparsers: Subparsers) -> None:
+def register(subparsers: Subparsers, summary: str) -> None:
     parser = subparsers.add_parser(
         "check",
-        help="decide every claim under the given paths",
+        help=summary,
         description="Find the idealcheck claims under PATH (default: .) and decide each one exactly.",
     )
     parser.add_argument("paths", nargs="*", metavar="PATH", help="files or folders (default: .); "

@@ -26,10 +26,10 @@ if TYPE_CHECKING:
     from verifier.cli.options import Subparsers
 
 
-def register(subparsers: Subparsers) -> None:
+def register(subparsers: Subparsers, summary: str) -> None:
     parser = subparsers.add_parser(
         "explain",
-        help="show the algebra behind the verdict of one claim",
+        help=summary,
         description="Decide the claim starting on FILE:LINE and show its condition ideal, reduced Groebner "
                     "basis, leading-term ideal, dimension, normal forms and the certificate or witness.",
     )

@@ -24,7 +24,7 @@ from verifier.model.accuracy import DEFAULT_RANGE, DEFAULT_SAMPLES, AccuracySett
 from verifier.model.verdict import Verdict
 from verifier.pipeline.config import MAX_ACCURACY_SAMPLES, Config, ConfigError, OnInconclusive, load_config
 from verifier.pipeline.runner import RunOptions
-from verifier.pipeline.workers import MAX_MEMORY_MB
+from verifier.pipeline.job import MAX_MEMORY_MB
 from verifier.report import FORMATS, Format
 
 if TYPE_CHECKING:

@@ -7,9 +7,11 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Callable, Literal, Sequence
+from typing import TYPE_CHECKING, Callable, Literal, Sequence
 
-from mpmath import mpf
+if TYPE_CHECKING:  # the table names mpmath's types; the evaluator hands it the context (see HighPrecision)
+    from mpmath import mpf
+    from mpmath.ctx_mp import MPContext
 
 
 class DomainError(ArithmeticError):
@@ -26,8 +28,14 @@ class NotRational(Exception):
 
 @dataclass(frozen=True)
 class HighPrecision:
-    """What the mpmath back end needs besides the arguments."""
+    """What the mpmath back end needs besides the arguments.
 
+    The table computes with the context it is handed (``mp.sin``, ``mp.mpf``), so that describing the
+    functions imports no numeric library: only the evaluator loads mpmath, and a run without claims never
+    does.
+    """
+
+    mp: MPContext  # mpmath's context at the working precision (``mpmath.mp`` inside ``workdps``)
     eps: mpf  # what counts as zero at the working precision
     radicand_eps: mpf  # how far below 0 a radicand may be and still count as 0 (rounding noise)
     magnitude_limit: int  # a value beyond 2**this is an overflow

@@ -3,7 +3,8 @@
 For each function: its canonical name, its number of arguments, how a claim may spell it (bare, or after
 ``math.``, ``np.`` or ``numpy.``) and what it computes in each evaluator:
 - exact: in rationals; raises ``NotRational`` where the value is irrational (or not known to be rational);
-- high precision: with mpmath at the working precision, ``HighPrecision`` saying what counts as 0;
+- high precision: with mpmath at the working precision, ``HighPrecision`` handing over the context and
+  saying what counts as 0;
 - IEEE double: with Python's math module (the operation a program performs);
 - modular: modulo a prime, where the function is a polynomial (else ``None``: not evaluable mod p).
 Every back end raises ``DomainError`` where the function is undefined: radicands are >= 0 (principal
@@ -16,10 +17,7 @@ from __future__ import annotations
 import math
 from fractions import Fraction
 from types import MappingProxyType
-from typing import Callable, Mapping, Sequence
-
-import mpmath
-from mpmath import mpf
+from typing import TYPE_CHECKING, Callable, Mapping, Sequence
 
 from verifier.model.function_types import (  # noqa: F401  (re-exported: the table's types)
     DomainError,
@@ -30,6 +28,9 @@ from verifier.model.function_types import (  # noqa: F401  (re-exported: the tab
     NotRational,
 )
 from verifier.model.real_functions import BARE_ONLY, REAL_ENTRIES, VARIADIC  # noqa: F401  (re-exported)
+
+if TYPE_CHECKING:  # computed with the context in ``HighPrecision.mp``: no import of mpmath here
+    from mpmath import mpf
 
 
 # ---------------------------------------------------------------- shared pieces of the semantics
@@ -79,13 +80,13 @@ def exact_sqrt(value: Fraction) -> Fraction:
     return root
 
 
-def numeric_sqrt(x: mpf, radicand_eps: mpf) -> mpf:
-    """The principal square root; a radicand within ``radicand_eps`` below 0 counts as 0."""
+def numeric_sqrt(x: mpf, at: HighPrecision) -> mpf:
+    """The principal square root; a radicand within ``at.radicand_eps`` below 0 counts as 0."""
     if x < 0:
-        if x < -radicand_eps or radicand_eps == 0:
+        if x < -at.radicand_eps or at.radicand_eps == 0:
             raise DomainError("square root of a negative number")
-        return mpf(0)
-    return mpmath.sqrt(x)
+        return at.mp.mpf(0)
+    return at.mp.sqrt(x)
 
 
 def ieee_fma(a: float, b: float, c: float) -> float:
@@ -115,22 +116,22 @@ def _exact_log(args: Sequence[Fraction]) -> Fraction:
 
 
 def _numeric_tan(args: Sequence[mpf], at: HighPrecision) -> mpf:
-    c = mpmath.cos(args[0])
+    c = at.mp.cos(args[0])
     if abs(c) <= at.eps:
         raise DomainError("tan where cos is 0")
-    return mpmath.sin(args[0]) / c
+    return at.mp.sin(args[0]) / c
 
 
 def _numeric_exp(args: Sequence[mpf], at: HighPrecision) -> mpf:
     if args[0] > at.magnitude_limit / 2:
         raise DomainError("overflow in exp")
-    return mpmath.exp(args[0])
+    return at.mp.exp(args[0])
 
 
 def _numeric_log(args: Sequence[mpf], at: HighPrecision) -> mpf:
     if args[0] <= at.eps:
         raise DomainError("logarithm of a non-positive number")
-    return mpmath.log(args[0])
+    return at.mp.log(args[0])
 
 
 def _not_rational(args: Sequence[Fraction]) -> Fraction:
@@ -142,11 +143,11 @@ def _not_rational(args: Sequence[Fraction]) -> Fraction:
 _ENTRIES = (
     Function("sqrt", 1, "algebraic", "the principal square root",
              exact=lambda a: exact_sqrt(a[0]),
-             high_precision=lambda a, at: numeric_sqrt(a[0], at.radicand_eps),
+             high_precision=lambda a, at: numeric_sqrt(a[0], at),
              ieee=lambda a: math.sqrt(a[0])),
     Function("hypot", 2, "algebraic", "sqrt(a**2 + b**2)",
              exact=lambda a: exact_sqrt(a[0] ** 2 + a[1] ** 2),
-             high_precision=lambda a, at: mpmath.sqrt(a[0] ** 2 + a[1] ** 2),
+             high_precision=lambda a, at: at.mp.sqrt(a[0] ** 2 + a[1] ** 2),
              ieee=lambda a: math.hypot(a[0], a[1])),
     Function("fma", 3, "algebraic", "a*b + c (rounded once in IEEE double)",
              exact=lambda a: a[0] * a[1] + a[2],
@@ -155,11 +156,11 @@ _ENTRIES = (
              modular=lambda a, p: (a[0] * a[1] + a[2]) % p),
     Function("sin", 1, "trigonometric", "the sine",
              exact=_known_at_zero(0),
-             high_precision=lambda a, at: mpmath.sin(a[0]),
+             high_precision=lambda a, at: at.mp.sin(a[0]),
              ieee=lambda a: math.sin(a[0])),
     Function("cos", 1, "trigonometric", "the cosine",
              exact=_known_at_zero(1),
-             high_precision=lambda a, at: mpmath.cos(a[0]),
+             high_precision=lambda a, at: at.mp.cos(a[0]),
              ieee=lambda a: math.cos(a[0])),
     Function("tan", 1, "trigonometric", "sin/cos (cos != 0)",
              exact=_known_at_zero(0),
@@ -183,7 +184,7 @@ FUNCTIONS: Mapping[str, Function] = MappingProxyType({entry.name: entry for entr
 CONSTANTS: Mapping[str, Function] = MappingProxyType({
     "pi": Function("pi", 0, "constant", "the number pi (an unknown constant to the algebra)",
                    exact=_not_rational,
-                   high_precision=lambda a, at: +mpmath.pi,
+                   high_precision=lambda a, at: +at.mp.pi,
                    ieee=lambda a: math.pi),
 })
 

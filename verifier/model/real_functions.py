@@ -18,15 +18,18 @@ from __future__ import annotations
 
 import math
 from fractions import Fraction
-from typing import Callable, Sequence
-
-import mpmath
-from mpmath import mpf
+from typing import TYPE_CHECKING, Callable, Sequence
 
 from verifier.model.function_types import DomainError, Function, HighPrecision, NotRational
 
+if TYPE_CHECKING:  # computed with the context in ``HighPrecision.mp``: no import of mpmath here
+    from mpmath import mpf
+    from mpmath.ctx_mp import MPContext
+
 ExactRule = Callable[[Sequence[Fraction]], Fraction]
-NumericRule = Callable[[Sequence[mpf], HighPrecision], mpf]
+NumericRule = Callable[[Sequence["mpf"], HighPrecision], "mpf"]
+# which function of the mpmath context computes a row (``lambda mp: mp.atan``)
+Pick = Callable[["MPContext"], Callable[["mpf"], "mpf"]]
 
 
 # ---------------------------------------------------------------- exact values
@@ -92,7 +95,7 @@ def _exact_copysign(args: Sequence[Fraction]) -> Fraction:
 
 def _away_from_integer(q: mpf, at: HighPrecision, what: str) -> None:
     """Refuse a value within rounding (``eps``, relative) of an integer, where ``what`` jumps."""
-    if abs(q - mpmath.nint(q)) <= at.eps * max(1, abs(q)):
+    if abs(q - at.mp.nint(q)) <= at.eps * max(1, abs(q)):
         raise DomainError(f"{what} at (or within rounding of) a jump")
 
 
@@ -106,8 +109,8 @@ def _numeric_round(kind: str) -> NumericRule:
         u = args[0]
         _away_from_integer(u, at, kind)
         if kind == "floor" or (kind == "trunc" and u >= 0):
-            return mpmath.floor(u)
-        return mpmath.ceil(u)
+            return at.mp.floor(u)
+        return at.mp.ceil(u)
 
     return value
 
@@ -120,7 +123,7 @@ def _numeric_quotient(kind: str) -> NumericRule:
         _numeric_divisor(b, at, kind)
         q = a / b
         _away_from_integer(q, at, kind)
-        whole = mpmath.floor(q) if kind != "fmod" or q >= 0 else mpmath.ceil(q)
+        whole = at.mp.floor(q) if kind != "fmod" or q >= 0 else at.mp.ceil(q)
         return whole if kind == "//" else a - b * whole
 
     return value
@@ -137,7 +140,7 @@ def _numeric_atan2(args: Sequence[mpf], at: HighPrecision) -> mpf:
     y, x = args
     if abs(y) <= at.eps and x <= at.eps:
         raise DomainError("atan2 at (or within rounding of) the origin or its jump on the negative x axis")
-    return mpmath.atan2(y, x)
+    return at.mp.atan2(y, x)
 
 
 def _within(u: mpf, low: int, high: int | None, at: HighPrecision, what: str) -> mpf:
@@ -145,34 +148,34 @@ def _within(u: mpf, low: int, high: int | None, at: HighPrecision, what: str) ->
     if u < low:
         if u < low - at.radicand_eps or at.radicand_eps == 0:
             raise DomainError(f"{what} of a number below {low}")
-        return mpf(low)
+        return at.mp.mpf(low)
     if high is not None and u > high:
         if u > high + at.radicand_eps or at.radicand_eps == 0:
             raise DomainError(f"{what} of a number above {high}")
-        return mpf(high)
+        return at.mp.mpf(high)
     return u
 
 
 def _numeric_atanh(args: Sequence[mpf], at: HighPrecision) -> mpf:
     if 1 - abs(args[0]) <= at.eps:
         raise DomainError("atanh of a number not strictly between -1 and 1")
-    return mpmath.atanh(args[0])
+    return at.mp.atanh(args[0])
 
 
 def _numeric_log1p(args: Sequence[mpf], at: HighPrecision) -> mpf:
     if 1 + args[0] <= at.eps:
         raise DomainError("log1p of a number not above -1")
-    return mpmath.log1p(args[0])
+    return at.mp.log1p(args[0])
 
 
-def _bounded_exponent(rule: Callable[[mpf], mpf], both_signs: bool) -> NumericRule:
+def _bounded_exponent(rule: Pick, both_signs: bool) -> NumericRule:
     """sinh, cosh, expm1: the exponential's overflow rule."""
 
     def value(args: Sequence[mpf], at: HighPrecision) -> mpf:
         u = abs(args[0]) if both_signs else args[0]
         if u > at.magnitude_limit / 2:
             raise DomainError("overflow in an exponential")
-        return rule(args[0])
+        return rule(at.mp)(args[0])
 
     return value
 
@@ -181,12 +184,12 @@ def _ieee_round(rule: Callable[[float], int]) -> Callable[[Sequence[float]], flo
     return lambda a: float(rule(a[0]))
 
 
-def _pi_over_180() -> mpf:
-    return mpmath.pi / 180
+def _pi_over_180(at: HighPrecision) -> mpf:
+    return at.mp.pi / 180
 
 
-def _one(rule: Callable[[mpf], mpf]) -> NumericRule:
-    return lambda a, at: rule(a[0])
+def _one(rule: Pick) -> NumericRule:
+    return lambda a, at: rule(at.mp)(a[0])
 
 
 # ---------------------------------------------------------------- the rows
@@ -196,55 +199,55 @@ _UNIT_INTERVAL = (lambda u: -1 <= u <= 1)
 REAL_ENTRIES: tuple[Function, ...] = (
     # inverse trigonometric: opaque to the algebra
     Function("atan", 1, "opaque", "the arctangent (principal value in (-pi/2, pi/2))",
-             exact=_rational_at(0, 0), high_precision=_one(mpmath.atan), ieee=lambda a: math.atan(a[0]),
+             exact=_rational_at(0, 0), high_precision=_one(lambda mp: mp.atan), ieee=lambda a: math.atan(a[0]),
              spellings=("arctan",)),
     Function("atan2", 2, "opaque", "the angle of the point (x, y) as atan2(y, x), in (-pi, pi]; not at (0, 0)",
              exact=_exact_atan2, high_precision=_numeric_atan2, ieee=lambda a: math.atan2(a[0], a[1]),
              spellings=("arctan2",)),
     Function("asin", 1, "opaque", "the arcsine (argument in [-1, 1])",
              exact=_rational_at(0, 0, _UNIT_INTERVAL, "asin"),
-             high_precision=lambda a, at: mpmath.asin(_within(a[0], -1, 1, at, "asin")),
+             high_precision=lambda a, at: at.mp.asin(_within(a[0], -1, 1, at, "asin")),
              ieee=lambda a: math.asin(a[0]), spellings=("arcsin",)),
     Function("acos", 1, "opaque", "the arccosine (argument in [-1, 1])",
              exact=_rational_at(1, 0, _UNIT_INTERVAL, "acos"),
-             high_precision=lambda a, at: mpmath.acos(_within(a[0], -1, 1, at, "acos")),
+             high_precision=lambda a, at: at.mp.acos(_within(a[0], -1, 1, at, "acos")),
              ieee=lambda a: math.acos(a[0]), spellings=("arccos",)),
     # hyperbolic: in terms of exp to the algebra; inverse hyperbolic: opaque
     Function("sinh", 1, "exponential", "(exp(u) - exp(-u))/2",
-             exact=_rational_at(0, 0), high_precision=_bounded_exponent(mpmath.sinh, True),
+             exact=_rational_at(0, 0), high_precision=_bounded_exponent(lambda mp: mp.sinh, True),
              ieee=lambda a: math.sinh(a[0])),
     Function("cosh", 1, "exponential", "(exp(u) + exp(-u))/2",
-             exact=_rational_at(0, 1), high_precision=_bounded_exponent(mpmath.cosh, True),
+             exact=_rational_at(0, 1), high_precision=_bounded_exponent(lambda mp: mp.cosh, True),
              ieee=lambda a: math.cosh(a[0])),
     Function("tanh", 1, "exponential", "sinh(u)/cosh(u)",
-             exact=_rational_at(0, 0), high_precision=_one(mpmath.tanh), ieee=lambda a: math.tanh(a[0])),
+             exact=_rational_at(0, 0), high_precision=_one(lambda mp: mp.tanh), ieee=lambda a: math.tanh(a[0])),
     Function("asinh", 1, "opaque", "the inverse hyperbolic sine",
-             exact=_rational_at(0, 0), high_precision=_one(mpmath.asinh), ieee=lambda a: math.asinh(a[0]),
+             exact=_rational_at(0, 0), high_precision=_one(lambda mp: mp.asinh), ieee=lambda a: math.asinh(a[0]),
              spellings=("arcsinh",)),
     Function("acosh", 1, "opaque", "the inverse hyperbolic cosine (argument >= 1)",
              exact=_rational_at(1, 0, lambda u: u >= 1, "acosh"),
-             high_precision=lambda a, at: mpmath.acosh(_within(a[0], 1, None, at, "acosh")),
+             high_precision=lambda a, at: at.mp.acosh(_within(a[0], 1, None, at, "acosh")),
              ieee=lambda a: math.acosh(a[0]), spellings=("arccosh",)),
     Function("atanh", 1, "opaque", "the inverse hyperbolic tangent (argument in (-1, 1))",
              exact=_rational_at(0, 0, lambda u: -1 < u < 1, "atanh"), high_precision=_numeric_atanh,
              ieee=lambda a: math.atanh(a[0]), spellings=("arctanh",)),
     Function("erf", 1, "opaque", "the error function",
-             exact=_rational_at(0, 0), high_precision=_one(mpmath.erf), ieee=lambda a: math.erf(a[0])),
+             exact=_rational_at(0, 0), high_precision=_one(lambda mp: mp.erf), ieee=lambda a: math.erf(a[0])),
     Function("erfc", 1, "opaque", "1 - erf(u)",
-             exact=_rational_at(0, 1), high_precision=_one(mpmath.erfc), ieee=lambda a: math.erfc(a[0])),
+             exact=_rational_at(0, 1), high_precision=_one(lambda mp: mp.erfc), ieee=lambda a: math.erfc(a[0])),
     # accurate near 0, exactly log(1 + u) and exp(u) - 1 to the algebra
     Function("log1p", 1, "logarithm", "log(1 + u) (u > -1)",
              exact=_rational_at(0, 0, lambda u: u > -1, "log1p"), high_precision=_numeric_log1p,
              ieee=lambda a: math.log1p(a[0])),
     Function("expm1", 1, "exponential", "exp(u) - 1",
-             exact=_rational_at(0, 0), high_precision=_bounded_exponent(mpmath.expm1, False),
+             exact=_rational_at(0, 0), high_precision=_bounded_exponent(lambda mp: mp.expm1, False),
              ieee=lambda a: math.expm1(a[0])),
     # angle units, in terms of pi to the algebra
     Function("radians", 1, "algebraic", "u*pi/180",
-             exact=_rational_at(0, 0), high_precision=lambda a, at: a[0] * _pi_over_180(),
+             exact=_rational_at(0, 0), high_precision=lambda a, at: a[0] * _pi_over_180(at),
              ieee=lambda a: math.radians(a[0]), spellings=("deg2rad",)),
     Function("degrees", 1, "algebraic", "u*180/pi",
-             exact=_rational_at(0, 0), high_precision=lambda a, at: a[0] / _pi_over_180(),
+             exact=_rational_at(0, 0), high_precision=lambda a, at: a[0] / _pi_over_180(at),
              ieee=lambda a: math.degrees(a[0]), spellings=("rad2deg",)),
     # abs is sqrt(u**2) to the algebra; min, max, rounding and remainders are opaque
     Function("abs", 1, "algebraic", "the absolute value",

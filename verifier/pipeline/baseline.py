@@ -26,7 +26,6 @@ from __future__ import annotations
 import dataclasses
 import json
 import os
-import tempfile
 from collections.abc import Sequence
 from dataclasses import dataclass
 from pathlib import Path
@@ -254,6 +253,10 @@ def baseline_text(entries: Sequence[BaselineEntry]) -> str:
 def write_baseline(path: Path, entries: Sequence[BaselineEntry]) -> None:
     """Write the file atomically (a new file renamed over the old one: a symbolic link planted at the
     path is replaced, never followed)."""
+    # function-level import: tempfile (with shutil, bz2, lzma, random) serves writing only, so a check
+    # that merely reads the baseline does not load it
+    import tempfile
+
     fd, temporary = tempfile.mkstemp(prefix=".idealcheck-baseline-", suffix=".tmp", dir=str(path.parent))
     try:
         with os.fdopen(fd, "w", encoding="utf-8") as out:

@@ -16,7 +16,7 @@ from verifier.claims.language import ClaimSyntaxError, parse_expression, parse_r
 from verifier.model.claim import NamedConditionSet
 from verifier.model.expr import Var
 from verifier.model.limits import DEFAULT_MEMORY_MB, DEFAULT_TIMEOUT_SECONDS
-from verifier.pipeline.workers import MAX_MEMORY_MB
+from verifier.pipeline.job import MAX_MEMORY_MB
 
 if sys.version_info >= (3, 11):
     import tomllib

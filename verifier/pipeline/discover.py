@@ -212,7 +212,16 @@ class _Walker:
 
     def entry(self, directory: Path, entry: os.DirEntry[str], path: str) -> None:
         try:
-            mode = entry.stat(follow_symlinks=False).st_mode
+            # the kind from the listing itself where the file system gives it (no stat call per file);
+            # the full mode only for what is neither folder, link nor regular file
+            if entry.is_dir(follow_symlinks=False):
+                mode = stat.S_IFDIR
+            elif entry.is_symlink():
+                mode = stat.S_IFLNK
+            elif entry.is_file(follow_symlinks=False):
+                mode = stat.S_IFREG
+            else:
+                mode = entry.stat(follow_symlinks=False).st_mode
         except OSError as exc:
             self.collector.skip(path, "unreadable", f"cannot read its metadata: {exc.strerror or exc}")
             return

@@ -14,7 +14,7 @@ from typing import TYPE_CHECKING, Any
 from verifier.model.limits import decision_clock
 from verifier.model.claim import Claim, ExtractionContext, FileProblem, Location, Problem
 from verifier.model.verdict import Limit, Verdict, VerdictName
-from verifier.pipeline.workers import Job, PoolSettings, memory_limit_reason
+from verifier.pipeline.job import Job, PoolSettings, memory_limit_reason
 
 if TYPE_CHECKING:  # the record of reads is only a type here
     from verifier.claims.file_reads import Observation

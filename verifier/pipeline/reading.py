@@ -90,12 +90,15 @@ def read_regular_bytes(absolute: str, path: str, max_bytes: int) -> BytesOutcome
         size = 0
         want = info.st_size + 1  # the whole file and the end in one read, unless it grows meanwhile
         while size <= max_bytes:  # the file may grow while it is read: never more than the cap
-            chunk = os.read(fd, min(want, max_bytes + 1 - size))
+            asked = min(want, max_bytes + 1 - size)
+            chunk = os.read(fd, asked)
             want = 1 << 20
             if not chunk:
                 break
             chunks.append(chunk)
             size += len(chunk)
+            if len(chunk) < asked and size == info.st_size:
+                break  # all of the size fstat gave and short of the byte past it: the end, without a read more
         if size > max_bytes:
             return None, None, too_large(path, size, max_bytes)
     except OSError as exc:

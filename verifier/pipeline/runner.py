@@ -38,15 +38,16 @@ from verifier.pipeline.jobs import (  # re-exported: the runner's public names
     problem_verdict,
     unsendable,
 )
-from verifier.pipeline.workers import (
+from verifier.pipeline.job import (
     KILL_GRACE_SECONDS,
     Job,
+    OnLimit,
+    Perform,
     PoolSettings,
+    Unsendable,
     allow_long_integers,
     memory_limit_reason,
-    run_jobs,
     time_limit_reason,
-    worker_context,
 )
 from verifier.pipeline.reading import DEFAULT_MAX_FILE_BYTES
 
@@ -95,6 +96,18 @@ def decide_with_engine(claim: Claim, timeout: float) -> Verdict:
 def reading_seconds(text: str, timeout: float) -> float:
     """The time limit of reading one file's claims: the claim timeout once per claim comment in it."""
     return timeout * max(1, text.count(CLAIM_MARKER))
+
+
+def run_in_workers(jobs: Sequence[Job], settings: PoolSettings, on_limit: OnLimit,
+                   on_done: Callable[[], None] = lambda: None, *, perform: Perform, unsendable: Unsendable) -> dict[int, Any]:
+    """``workers.run_jobs``, with the process pool loaded only when there is a job to run."""
+    if not jobs:
+        return {}
+    # function-level import: the process pool (multiprocessing, pickle, sockets) loads only once a file
+    # holds claims, so a run over files without any loads none of it
+    from verifier.pipeline.workers import run_jobs
+
+    return run_jobs(jobs, settings, on_limit, on_done, perform=perform, unsendable=unsendable)
 
 
 def collect_claims(discovery: Any, context: Any, *, extract: Callable[..., list[Claim]] | None = None,
@@ -155,7 +168,7 @@ def _extract_in_workers(files: list[Any], context: Any, options: RunOptions) -> 
         return [file_problem_claim(FileProblem(Location(path, 1, 1), reason),
                                    "inconclusive" if limit is not None else "error")], None
 
-    results = run_jobs(jobs, options.pool(), on_limit, perform=perform, unsendable=unsendable)
+    results = run_in_workers(jobs, options.pool(), on_limit, perform=perform, unsendable=unsendable)
     return [results[index] for index in range(len(jobs))]
 
 
@@ -251,7 +264,7 @@ def _decide_all(
         claim = job.payload[0]
         return limit_verdict(claim, reason, seconds, limit, "inconclusive" if limit is not None else "error"), False
 
-    done = run_jobs(jobs, options.pool(), on_limit, progress.step, perform=perform, unsendable=unsendable)
+    done = run_in_workers(jobs, options.pool(), on_limit, progress.step, perform=perform, unsendable=unsendable)
     for position, (index, _claim, _slot) in enumerate(pending):
         results[index] = done[position]
     return results
@@ -269,7 +282,7 @@ def run_limited(function: str, calls: Sequence[tuple[Any, ...]], options: RunOpt
         def on_limit(index: int, job: Job, limit: Limit | None, reason: str, seconds: float) -> Any:
             return ("limit", reason)
 
-        done = run_jobs(jobs, options.pool(), on_limit, perform=perform, unsendable=unsendable)
+        done = run_in_workers(jobs, options.pool(), on_limit, perform=perform, unsendable=unsendable)
         outcomes = [done[i] for i in range(len(jobs))]
     return [value if status == "ok" else fallback(args, value) for (status, value), args in zip(outcomes, calls)]
 
@@ -428,6 +441,9 @@ def warm_up_workers(options: RunOptions) -> None:
     (discovery calls this when it reads the first file holding claims)."""
     if options.in_process:
         return
+    # function-level import: the process pool (multiprocessing) loads only once a file holds claims
+    from verifier.pipeline.workers import worker_context
+
     ctx = worker_context()
     if ctx.get_start_method() == "forkserver":
         from multiprocessing import forkserver

@@ -14,6 +14,9 @@ is gone, no file descriptors are left) is retried, then started another way; whe
 all, the jobs left get ``on_limit`` results saying why.  Workers ignore Ctrl-C: the parent handles it,
 kills them and reports one interruption.
 
+The jobs, their settings and the limit messages are plain data in ``job.py``: the runner and the command
+line use them without loading this module's process machinery.
+
 Workers start from a ``forkserver`` that has already imported the algebra and the claim readers (cheap
 to start, and no fork of a parent that may hold threads); where that context is missing they are spawned.
 """
@@ -23,7 +26,6 @@ import multiprocessing
 import os
 import pickle
 import signal
-import sys
 import time
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
@@ -32,47 +34,22 @@ from typing import Any
 
 from verifier.model.limits import WALL_SAFETY_FACTOR
 from verifier.model.verdict import Limit
+from verifier.pipeline.job import (
+    Job,
+    OnLimit,
+    Perform,
+    PoolSettings,
+    Unsendable,
+    allow_long_integers,
+    memory_limit_reason,
+    time_limit_reason,
+)
 
-# Seconds a worker may run past the job's own time limit before it is killed: ``decide`` checks its
-# deadline itself and normally returns in time (with a more specific reason); the kill is for a single
-# long step (one huge expansion) that does not come back to a deadline check.
-KILL_GRACE_SECONDS = 0.25
-# Digits an integer may have when it is converted to or from text (Python's default is 4300).  Claims may
-# hold long exact constants; every conversion in a worker is bounded by the worker's limits, and a
-# constant past this many digits is reported on its claim.
-MAX_INTEGER_DIGITS = 100_000
 START_ATTEMPTS = 3
 DESCRIPTORS_PER_WORKER = 4  # pipe ends and sentinel here, the child's descriptor in the fork server
 DESCRIPTOR_RESERVE = 10  # for the fork server's own connections and the files the parent reads
 FORKSERVER_DESCRIPTORS = 24  # with fewer free, workers are spawned: a fork server short of them crashes
-# The largest memory limit the address-space limit can express (bytes in a signed 64-bit number).
-MAX_MEMORY_MB = (2**63 - 1) // (1024 * 1024)
 PRELOAD = ["verifier.pipeline.preload", "verifier.pipeline.workers", "verifier.algebra.decide", "verifier.claims"]
-
-
-@dataclass(frozen=True)
-class Job:
-    kind: str  # a key of the worker's job table (``jobs.JOB_KINDS``)
-    payload: tuple[Any, ...]
-    seconds: float  # time limit of the job (the worker is killed after it plus the grace period)
-
-
-@dataclass(frozen=True)
-class PoolSettings:
-    timeout: float  # seconds per claim, handed to the job
-    memory_mb: int
-    jobs: int | None
-    kill_grace: float
-    decider: str
-
-
-OnLimit = Callable[[int, Job, "Limit | None", str, float], Any]
-
-
-def allow_long_integers() -> None:
-    setter = getattr(sys, "set_int_max_str_digits", None)  # Python 3.10.7 and later
-    if setter is not None:
-        setter(MAX_INTEGER_DIGITS)
 
 
 def limit_memory(memory_mb: int) -> None:
@@ -93,10 +70,6 @@ def limit_memory(memory_mb: int) -> None:
 # ---------------------------------------------------------------- worker side
 
 
-# What a worker does with a job, and what it sends back when the result cannot be serialised; given by
-# the caller (``pipeline.jobs``) so that the pool knows nothing of the kinds of work it runs.
-Perform = Callable[[Job, PoolSettings], Any]
-Unsendable = Callable[[Job, Any, BaseException, PoolSettings], Any]
 
 
 def _worker_main(conn: Connection, settings: PoolSettings, perform: Perform, unsendable: Unsendable) -> None:
@@ -249,14 +222,6 @@ def _left(worker: _Worker, grace: float, now: float) -> float:
     if cpu_now is None or worker.cpu_started is None:
         return min(wall_left, worker.started + seconds + grace - now)
     return min(wall_left, seconds + grace - (cpu_now - worker.cpu_started))
-
-
-def time_limit_reason(timeout: float) -> str:
-    return f"time limit of {timeout:g} s exceeded"
-
-
-def memory_limit_reason(memory_mb: int) -> str:
-    return f"memory limit of {memory_mb} MB exceeded"
 
 
 def _free_descriptors() -> int | None:
