@@ -9,6 +9,7 @@ most of them, are never redone.
 """
 from __future__ import annotations
 
+from operator import ge
 from typing import Any, Sequence
 
 import flint
@@ -46,6 +47,7 @@ class TraceLift:
         self.final_vectors: dict[int, Vector] = {}
         self.recipes: dict[int, Recipe] = {}
         self.final_recipes: dict[int, Recipe] = {}
+        self.member_divisors: list[tuple[int, Reducer]] | None = None
 
     # -- recipes
 
@@ -176,36 +178,74 @@ class TraceLift:
         return vector
 
     def combine(self, quotients: Sequence[dict[Monom, Any]]) -> Vector:
-        """Cofactors of ``sum(quotients[i] * basis[i])``.
-
-        Reverse accumulation: one multiplier per recorded polynomial, pushed from the basis down to the
-        generators, instead of a whole cofactor vector per polynomial (measured about 2x faster on
-        cyclic-6, whose cofactors have tens of thousands of terms).
-        """
+        """Cofactors of ``sum(quotients[i] * basis[i])``."""
         total = self.zero_vector()
         pending: dict[int, Any] = {}
-
-        def push(src: int, value: Any) -> None:
-            if src < 0:
-                total[~src].iadd(value)
-            elif src in pending:
-                pending[src].iadd(value)
-            else:
-                pending[src] = value
-
         for position, q in enumerate(quotients):
             if q:
                 factor = self.poly(q)
                 for src, mult in self._final(position):
-                    push(src, self.poly(mult) * factor)
+                    _push(total, pending, src, self.poly(mult) * factor)
+        return self._accumulate(total, pending)
+
+    def _accumulate(self, total: Vector, pending: dict[int, Any]) -> Vector:
+        """Add to ``total`` the cofactors of ``sum(pending[k] * recorded polynomial k)``.
+
+        Reverse accumulation: one multiplier per recorded polynomial, pushed from the latest down to the
+        generators, instead of a whole cofactor vector per polynomial (measured about 2x faster on
+        cyclic-6, whose basis cofactors have tens of thousands of terms).
+        """
         for n in reversed(self._recipes_below(list(pending))):
             self.ctx.check_deadline()
             multiplier = pending.pop(n, None)
             if multiplier is None or multiplier.is_zero():
                 continue
             for src, mult in self.recipes[n]:
-                push(src, self.poly(mult) * multiplier)
+                _push(total, pending, src, self.poly(mult) * multiplier)
         return total
+
+    def _member_divisors(self) -> list[tuple[int, Reducer]]:
+        """Divisors for a membership lift, most preferred first: the input generators (their cofactors
+        are unit vectors), then the recorded polynomials by sugar (a low sugar means a short history to
+        lift), dropping any whose leading monomial is a multiple of a preferred one's (never chosen)."""
+        if self.member_divisors is None:
+            one = self.ctx.one
+            polys, sugar = self.trace.polys, self.trace.sugar
+            generators = [(~j, self.ctx.sorted_terms(g)) for j, g in enumerate(self.generators) if g]
+            candidates: list[tuple[int, Monom]] = [(src, terms[0][0]) for src, terms in generators]
+            candidates += [(k, polys[k].monomial(0))
+                           for k in sorted(range(len(polys)), key=lambda k: (sugar[k], k))]
+            leads: list[Monom] = []
+            chosen: list[int] = []
+            for src, lm in candidates:  # pruned on leading monomials before any term is converted
+                if not any(all(map(ge, lm, other)) for other in leads):
+                    leads.append(lm)
+                    chosen.append(src)
+            generator_terms = dict(generators)
+            kept = [(src, Reducer(generator_terms[src] if src < 0 else self._terms(src), one)) for src in chosen]
+            self.member_divisors = kept
+        return self.member_divisors
+
+    def member(self, poly: dict[Monom, Any]) -> Vector | None:
+        """Cofactors of ``poly`` over the input generators if it lies in the ideal, else None.
+
+        ``poly`` is divided by the generators and every recorded polynomial, preferring cheap ones.  The
+        recorded polynomials include a Groebner basis, so the remainder is zero exactly for members (a
+        term left over is divisible by no leading monomial of the basis).  The basis elements themselves
+        have large cofactors (cyclic-6: the lift of a small member through them has 90,000 terms, through
+        the generators and early polynomials 60), so they are used only where nothing cheaper divides.
+        """
+        self.ctx.check_deadline()
+        divisors = self._member_divisors()
+        quotients: list[dict[Monom, Any]] = [{} for _ in divisors]
+        if divide(self.ctx, poly, [r for _, r in divisors], quotients):
+            return None
+        total = self.zero_vector()
+        pending: dict[int, Any] = {}
+        for (src, _), q in zip(divisors, quotients):
+            if q:
+                _push(total, pending, src, self.poly(q))
+        return self._accumulate(total, pending)
 
     def zero_vector(self) -> Vector:
         return [self.qctx.from_dict({}) for _ in range(self.count)]
@@ -220,3 +260,13 @@ class TraceLift:
             if not part.is_zero():
                 total -= part * self.poly(generator)
         return total.is_zero()
+
+
+def _push(total: Vector, pending: dict[int, Any], src: int, value: Any) -> None:
+    """Add ``value`` times ``src`` (a generator if negative, else a recorded polynomial) to an accumulation."""
+    if src < 0:
+        total[~src].iadd(value)
+    elif src in pending:
+        pending[src].iadd(value)
+    else:
+        pending[src] = value
