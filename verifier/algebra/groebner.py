@@ -205,8 +205,8 @@ def membership_cofactors(
     """Cofactors ``c`` with ``f == sum(c[j] * generators[j])`` if ``f`` is in the ideal, else None.
 
     ``result`` must come from :func:`groebner_basis` with cofactor tracking on; ``generators`` are the ones
-    given there.  ``f`` is divided by the generators and the polynomials of the basis computation, cheapest
-    history first, and only the histories of the divisors used are lifted.
+    given there.  ``f`` is divided by the polynomials of the basis computation, shortest history first,
+    and only the histories of the divisors used are lifted.
     """
     if not result.tracked:
         raise ValueError("membership_cofactors needs a GroebnerResult computed with track_cofactors=True")
