@@ -33,7 +33,7 @@ __all__ = ["GroebnerResult", "GroebnerTimeout", "groebner_basis", "membership_co
 class _Lift(Protocol):
     deadline: float | None
 
-    def combine(self, quotients: Sequence[dict[Monom, Any]]) -> Vector: ...
+    def member(self, poly: dict[Monom, Any]) -> Vector | None: ...
 
     def element(self, position: int) -> Vector: ...
 
@@ -140,14 +140,8 @@ class _ThroughGrevlex:
             vector = self.elements[position] = self.grevlex.combine(quotients)
         return vector
 
-    def combine(self, quotients: Sequence[dict[Monom, Any]]) -> Vector:
-        total = self.grevlex.zero_vector()
-        for position, q in enumerate(quotients):
-            if q:
-                self.ctx.check_deadline()
-                factor = self.grevlex.poly(q)
-                total = [t + factor * e for t, e in zip(total, self.element(position))]
-        return total
+    def member(self, poly: dict[Monom, Any]) -> Vector | None:
+        return self.grevlex.member(poly)  # the same ideal: membership does not depend on the order
 
     def set_deadline(self, deadline: float | None) -> None:
         self.ctx.deadline = deadline
@@ -211,7 +205,8 @@ def membership_cofactors(
     """Cofactors ``c`` with ``f == sum(c[j] * generators[j])`` if ``f`` is in the ideal, else None.
 
     ``result`` must come from :func:`groebner_basis` with cofactor tracking on; ``generators`` are the ones
-    given there.  Only the basis elements the division of ``f`` uses are lifted.
+    given there.  ``f`` is divided by the polynomials of the basis computation, shortest history first,
+    and only the histories of the divisors used are lifted.
     """
     if not result.tracked:
         raise ValueError("membership_cofactors needs a GroebnerResult computed with track_cofactors=True")
@@ -219,14 +214,13 @@ def membership_cofactors(
     count = result.generator_count
     if not result.basis or result.lift is None:
         return None if f else tuple(ring.zero for _ in range(count))
-    quotients, remainder = reduce(f, result.basis, deadline=deadline)
-    if remainder:
-        return None
     lift = result.lift
     saved = lift.deadline
     lift.set_deadline(deadline)
     try:
-        vector = lift.combine([dict(q) for q in quotients])
+        vector = lift.member(dict(f))
+        if vector is None:
+            return None
         # cheap in FLINT, and a wrong lift must never leave here as a certificate
         if not lift.expands_to(dict(f), vector):
             raise RuntimeError("lifted cofactors do not expand to the member")

@@ -35,6 +35,7 @@ class Trace:
     polys: list[Any]  # fmpz_mpoly, primitive with positive leading coefficient
     origins: list[Origin]
     divisors: list[tuple[int, ...]]  # indices of the polynomials it was reduced by, in division order
+    sugar: list[int]  # sugar degree of each recorded polynomial (low sugar: a short history to lift)
     final: list[int]  # recorded polynomials whose reduced forms make the basis, largest lead first
     reduced: list[Any]  # the reduced basis (fmpz_mpoly, primitive), aligned with final
     unit: bool  # a nonzero constant was found: the basis is (1,)
@@ -224,7 +225,7 @@ def buchberger(generators: Sequence[dict[Monom, Any]], nvars: int, alias: str, d
         final, reduced = [len(run.polys) - 1], [ctx.from_dict({(0,) * nvars: 1})]
     else:
         final, reduced = _interreduce(run)
-    return Trace(ctx, run.polys, run.origins, run.divisors, final, reduced, unit)
+    return Trace(ctx, run.polys, run.origins, run.divisors, run.sugar, final, reduced, unit)
 
 
 def _interreduce(run: _Run) -> tuple[list[int], list[Any]]:
