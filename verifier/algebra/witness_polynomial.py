@@ -33,7 +33,7 @@ from sympy.polys.rings import PolyElement
 from verifier.model.limits import decision_clock
 from verifier.algebra.evaluate import DomainError, NotEvaluable, exact_value
 from verifier.algebra.modular import PRIME, NotModular
-from verifier.algebra.translate import Generator
+from verifier.algebra.translate import Generator, Translation
 from verifier.algebra.witness_check import exact_check
 from verifier.algebra.witness_points import Bound, bounded_point, random_rational, rational_points, \
     small_rational, variable_bounds
@@ -156,35 +156,70 @@ def _used(poly: PolyElement, symbols: Sequence[str]) -> set[str]:
     return used
 
 
+_AUXILIARY = "the difference involves"
+
+
+@dataclass(frozen=True)
+class _Prepared:
+    problem: WitnessProblem
+    screen: Screen
+    order: list[tuple[str, Expr]] | None  # the equations as definitions, when they all are
+    plan: list[Step]
+
+
+def _prepare(left: Expr, right: Expr, conditions: Sequence[Condition], difference: PolyElement,
+             generators: Sequence[Generator], seed: int) -> _Prepared | str:
+    """What the search runs on, or why it stands aside (a short reason, for the benchmark's counts)."""
+    if not difference:
+        return "the sides expand to the same polynomial"
+    problem = searchable_problem(left, right, conditions)
+    if problem is None:
+        return "an opaque call"
+    screen = build_screen(difference, problem.names, generators)
+    if screen is None:
+        return _AUXILIARY
+    order = definitions(conditions)
+    plan = equation_plan(problem.equations)
+    if plan is None:
+        return "equations with no private variables (no triangular order)"
+    if order or screen.denominators or problem.equations:
+        try:
+            vanishes = _vanishes_generically(screen, plan, random.Random(seed))
+        except NotModular:
+            return "an equation with a root or an angle (no value mod p)"
+        if vanishes is None:
+            return "no point of the equations found mod p"
+        if vanishes:
+            return "the difference vanishes on the equations mod p (probably true)"
+    return _Prepared(problem, screen, order, plan)
+
+
+def screen_obstacle(translation: Translation, left: Expr, right: Expr, conditions: Sequence[Condition], *,
+                    seed: int = 0) -> str | None:
+    """Why the cheap search stands aside for this obligation (its translation given), or None when it
+    searches: a short reason, for the benchmark's counts."""
+    prepared = _prepare(left, right, conditions, translation.difference, translation.generators, seed)
+    if not isinstance(prepared, str) or not prepared.startswith(_AUXILIARY):
+        return prepared if isinstance(prepared, str) else None
+    kind_of = {a.name: a.kind for a in translation.aux}
+    used = _used(translation.difference, [str(s) for s in translation.ring.symbols])
+    kinds = sorted({kind_of[name] for name in used if name in kind_of} - {"inverse"})
+    return f"{_AUXILIARY} {'/'.join(kinds)}" if kinds else "a variable or coefficient the screen cannot take"
+
+
 def polynomial_witness(left: Expr, right: Expr, conditions: Sequence[Condition], difference: PolyElement, *,
                        deadline: float, seed: int = 0, generators: Sequence[Generator] = ()) -> Witness | None:
     """A witness found with the difference polynomial, checked exactly on the claim; None when the cheap
     search does not apply (an auxiliary variable other than an inverse in ``difference``, equations it
     cannot solve, an opaque call), when f vanishes wherever the claim is defined, or when it found nothing
     before ``deadline``.  ``generators``: the translation's, for the denominators of inverse variables."""
-    if not difference:
+    prepared = _prepare(left, right, conditions, difference, generators, seed)
+    if isinstance(prepared, str):
         return None
-    problem = searchable_problem(left, right, conditions)
-    if problem is None:
-        return None
-    screen = build_screen(difference, problem.names, generators)
-    if screen is None:
-        return None
-    rng = random.Random(seed)
-    order = definitions(conditions)
-    plan = equation_plan(problem.equations)
-    if plan is None or (order is None and not plan):
-        return None
-    if order or screen.denominators or problem.equations:
-        try:
-            vanishes = _vanishes_generically(screen, plan, random.Random(seed))
-        except NotModular:  # a root or an angle in an equation: no value mod p, nothing to screen with
-            return None
-        if vanishes is not False:
-            return None  # f is zero on the equations wherever defined (or no point was found): prove it
-    if order is not None:
-        return _search(problem, screen, _defined_points(problem, order, rng), deadline, None)
-    return _search(problem, screen, _variety_points(problem, plan, rng), deadline, _VARIETY_ZEROS)
+    problem, screen, rng = prepared.problem, prepared.screen, random.Random(seed)
+    if prepared.order is not None:
+        return _search(problem, screen, _defined_points(problem, prepared.order, rng), deadline, None)
+    return _search(problem, screen, _variety_points(problem, prepared.plan, rng), deadline, _VARIETY_ZEROS)
 
 
 def _search(problem: WitnessProblem, screen: Screen, candidates: Iterator[dict[str, Fraction] | None],
