@@ -136,3 +136,21 @@ def test_the_command_line_refutes_a_wrong_rotation_and_proves_the_right_one(cli,
     wrong = "(c*x - s*y)**2 + (s*x - c*y)**2 == x**2 + y**2 given c**2 + s**2 == 1"
     right = "(c*x - s*y)**2 + (s*x + c*y)**2 == x**2 + y**2 given c**2 + s**2 == 1"
     assert cli.verdicts(tmp_path, "rotation.py", [wrong, right]) == {wrong: "refuted", right: "proved"}
+
+
+def test_roots_are_screened_at_points_where_the_radicands_are_rational_squares() -> None:
+    # sqrt(a**2*b) = |a|*sqrt(b), not a*sqrt(b): wrong for a < 0 (common practice)
+    v = confirmed("sqrt(a**2*b)", "a*sqrt(b)")
+    assert sympy.sqrt(v["a"]**2 * v["b"]) != v["a"] * sympy.sqrt(v["b"])  # sympy's exact principal roots
+    v = confirmed("hypot(a, b)", "a + b")
+    assert sympy.sqrt(v["a"]**2 + v["b"]**2) != v["a"] + v["b"]
+    v = confirmed("x**2.5", "x**3*sqrt(x)")  # x**2.5 = x**2*sqrt(x)
+    assert v["x"]**sympy.Rational(5, 2) != v["x"]**3 * sympy.sqrt(v["x"])
+
+
+def test_claims_true_for_the_principal_root_are_not_refuted() -> None:
+    # mod p a root is either square root, so the screen proposes; the exact check takes the principal one
+    assert cheap("sqrt(x**2)", "x", "x >= 0") is None
+    assert cheap("sqrt(x**4)", "x**2") is None
+    assert cheap("sqrt(a**2*b)", "a*sqrt(b)", "a >= 0") is None
+    assert cheap("sqrt(2 + sqrt(3))", "(sqrt(6) + sqrt(2))/2") is None  # true; constant roots stand aside

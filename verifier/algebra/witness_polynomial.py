@@ -26,6 +26,7 @@ import random
 from dataclasses import dataclass
 from fractions import Fraction
 from itertools import islice
+from math import isqrt
 from typing import Any, Iterator, Mapping, Sequence
 
 from sympy.polys.rings import PolyElement
@@ -49,6 +50,9 @@ _GENERIC_TRIALS = 3  # random points mod p that decide whether f vanishes where 
 _VARIETY_CANDIDATES = 300  # points of the equations tried at most
 _VARIETY_ZEROS = 16  # zero residues on the equations after which the claim is taken to hold there
 _VARIETY_MISSES = 40  # candidates in a row where the equations could not be solved: the search gives up
+
+_ROOT_ZEROS = 32  # zero residues after which a claim with roots is taken to hold at the points tried
+_ROOT_MISSES = 400  # candidates in a row where a radicand was not a rational square: the search gives up
 
 # a term: its coefficient modulo the prime and the (slot, exponent) pairs of its monomial
 _Term = tuple[int, tuple[tuple[int, int], ...]]
@@ -96,54 +100,145 @@ def value_mod_p(terms: Sequence[_Term], values: Sequence[int]) -> int:
     return total % PRIME
 
 
+# an exact term: its coefficient and the (slot, exponent) pairs of its monomial
+_ExactTerm = tuple[Fraction, tuple[tuple[int, int], ...]]
+
+
+@dataclass(frozen=True)
+class Slot:
+    """An auxiliary variable f needs: an inverse 1/u or a principal root sqrt(u), u over earlier slots."""
+
+    kind: str  # "inverse" or "radical"
+    argument: list[_Term]  # u mod p
+    exact_argument: list[_ExactTerm]  # u in rationals
+
+
 @dataclass(frozen=True)
 class Screen:
-    """f over slots: the claim's variables first, then the inverse variables it needs, in an order where
-    each inverse's denominator uses only slots before it."""
+    """f over slots: the claim's variables first, then the inverse and root variables it needs, in an order
+    where each one's argument uses only slots before it."""
 
     names: tuple[str, ...]
-    denominators: tuple[list[_Term], ...]  # of the inverse slots, in order
+    slots: tuple[Slot, ...]
     terms: list[_Term]
 
+    @property
+    def denominators(self) -> bool:
+        return bool(self.slots)
+
+    @property
+    def roots(self) -> bool:
+        return any(s.kind == "radical" for s in self.slots)
+
     def value(self, residues: Sequence[int]) -> int | None:
-        """f mod p at the point (the claim's variables' residues), None where a denominator is 0 mod p."""
+        """f mod p at the point (the claim's variables' residues), None where a denominator is 0 mod p or a
+        radicand has no square root mod p (a root is then one of its two square roots, no branch known)."""
         values = list(residues)
-        for denominator in self.denominators:
-            u = value_mod_p(denominator, values)
-            if not u:
-                return None
-            values.append(pow(u, -1, PRIME))
+        for slot in self.slots:
+            u = value_mod_p(slot.argument, values)
+            if slot.kind == "inverse":
+                if not u:
+                    return None
+                values.append(pow(u, -1, PRIME))
+            else:
+                root = pow(u, (PRIME + 1) // 4, PRIME)  # p = 3 mod 4
+                if root * root % PRIME != u:
+                    return None
+                values.append(root)
         return value_mod_p(self.terms, values)
+
+    def value_at(self, point: Mapping[str, Fraction]) -> int | None:
+        """f mod p at an exact rational point, None where it is undefined there (a zero denominator) or,
+        with roots, where a radicand is not the square of a rational (its principal root is taken)."""
+        if not self.roots:
+            residues = [_residue(point[name]) for name in self.names]
+            values = [r for r in residues if r is not None]
+            return self.value(values) if len(values) == len(residues) else None
+        exact = [Fraction(point[name]) for name in self.names]
+        for slot in self.slots:
+            u = _exact_sum(slot.exact_argument, exact)
+            if slot.kind == "inverse":
+                if not u:
+                    return None
+                exact.append(1 / u)
+            else:
+                root = _rational_sqrt(u)
+                if root is None:
+                    return None
+                exact.append(root)
+        residues = [_residue(v) for v in exact]
+        values = [r for r in residues if r is not None]
+        return value_mod_p(self.terms, values) if len(values) == len(residues) else None
+
+
+def _exact_sum(terms: Sequence[_ExactTerm], values: Sequence[Fraction]) -> Fraction:
+    total = Fraction(0)
+    for coefficient, factors in terms:
+        product = coefficient
+        for index, exponent in factors:
+            product *= values[index] ** exponent
+        total += product
+    return total
+
+
+def _rational_sqrt(value: Fraction) -> Fraction | None:
+    if value < 0:
+        return None
+    n, d = isqrt(value.numerator), isqrt(value.denominator)
+    return Fraction(n, d) if n * n == value.numerator and d * d == value.denominator else None
+
+
+def _arguments(generators: Sequence[Generator], ring) -> dict[str, tuple[str, PolyElement]]:
+    """Inverse variable d -> ("inverse", u) from d*u - 1; root variable r -> ("radical", u) from r**2 - u."""
+    symbols = [str(s) for s in ring.symbols]
+    found: dict[str, tuple[str, PolyElement]] = {}
+    for g in generators:
+        if g.variable not in symbols:
+            continue
+        variable = ring.gens[symbols.index(g.variable)]
+        if g.kind == "inverse":
+            found[g.variable] = ("inverse", g.poly.diff(variable))
+        elif g.kind == "radical":
+            radicand = variable**2 - g.poly
+            if radicand.degree(variable) <= 0:
+                found[g.variable] = ("radical", radicand)
+    return found
 
 
 def build_screen(difference: PolyElement, names: Sequence[str], generators: Sequence[Generator]) -> Screen | None:
     """The screen of ``difference``, or None when it involves an auxiliary variable other than an inverse
-    (a root, an angle, an exponential, an opaque call) or a coefficient has no residue mod p."""
+    or a root (an angle, an exponential, an opaque call), the root of a constant that is not a rational
+    square (no rational point helps), or a coefficient has no residue mod p."""
     ring = difference.ring
     symbols = [str(s) for s in ring.symbols]
-    denominators = {g.variable: g.poly.diff(ring.gens[symbols.index(g.variable)])
-                    for g in generators if g.kind == "inverse" and g.variable in symbols}
+    arguments = _arguments(generators, ring)
     slot = {name: index for index, name in enumerate(names)}
     needed = _used(difference, symbols) - set(slot)
     pending = set(needed)
-    while pending:  # the inverses that the needed ones' denominators use
+    while pending:  # the inverses and roots that the needed ones' arguments use
         name = pending.pop()
-        if name not in denominators:
+        if name not in arguments:
             return None
-        for other in _used(denominators[name], symbols) - set(slot) - needed:
+        kind, argument = arguments[name]
+        if kind == "radical" and argument.is_ground:
+            return None  # sqrt(2): irrational at every point
+        for other in _used(argument, symbols) - set(slot) - needed:
             needed.add(other)
             pending.add(other)
-    ordered: list[list[_Term]] = []
+    ordered: list[Slot] = []
     while needed:
-        ready = sorted(name for name in needed if _used(denominators[name], symbols) <= set(slot))
+        ready = sorted(name for name in needed if _used(arguments[name][1], symbols) <= set(slot))
         if not ready:
-            return None  # circular (cannot happen for inverses of polynomials, but never loop)
+            return None  # circular (cannot happen for arguments built before their variable, but never loop)
         for name in ready:
-            terms = _terms(denominators[name], slot)
+            kind, argument = arguments[name]
+            terms = _terms(argument, slot)
             if terms is None:
                 return None
+            exact = [(Fraction(int(c.numerator), int(c.denominator)), factors)
+                     for (_, factors), (_, c) in zip(terms, argument.terms())]
             slot[name] = len(slot)
-            ordered.append(terms)
+            ordered.append(Slot(kind, terms, exact))
             needed.discard(name)
     terms = _terms(difference, slot)
     return None if terms is None else Screen(tuple(names), tuple(ordered), terms)
@@ -224,19 +319,19 @@ def polynomial_witness(left: Expr, right: Expr, conditions: Sequence[Condition],
 
 def _search(problem: WitnessProblem, screen: Screen, candidates: Iterator[dict[str, Fraction] | None],
             deadline: float, zero_limit: int | None) -> Witness | None:
-    checks = zeros = 0
+    checks = zeros = misses = 0
+    if screen.roots and zero_limit is None:
+        zero_limit = _ROOT_ZEROS  # a root's sign may make a claim true only where it is principal
     for point in candidates:
         if decision_clock() > deadline or checks >= _EXACT_CHECKS:
             return None
-        if point is None:
+        value = screen.value_at(point) if point is not None else None
+        if point is None or value is None:
+            misses += 1
+            if screen.roots and misses >= _ROOT_MISSES:
+                return None  # the radicands are seldom rational squares at these points
             continue
-        residues = [_residue(point[name]) for name in problem.names]
-        values = [r for r in residues if r is not None]
-        if len(values) != len(residues):
-            continue
-        value = screen.value(values)
-        if value is None:
-            continue
+        misses = 0
         if not value:
             zeros += 1
             if zero_limit is not None and zeros >= zero_limit:
