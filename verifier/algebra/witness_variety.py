@@ -243,6 +243,9 @@ def _on_line_through_base(step: Step, point: dict[str, Any], rng: random.Random,
     of it (the other variables as they are in ``point``)."""
     names = list(step.private)
     zero = ar.number(0)
+    generic = {name: ar.number(rng.randint(1, 9)) for name in names}
+    if _quadratic_along(step.equation, point, generic, ar) is None:
+        return False  # of degree above 2 along a line: not a quadric, no base point would help
     base: dict[str, Any] | None = None
     for pattern in _patterns(len(names) - 1):
         for solved in names:
