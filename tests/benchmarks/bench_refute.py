@@ -6,8 +6,13 @@ Each row is a pair of claims of the same size, one true and one false (a sign or
 written to a temporary Python project and extracted once; the decision (verifier.algebra.decide.decide,
 in this process) is timed for each, medians of N runs, and the ratio refuted / proved is printed.  The
 matrix-product kernel row also reports extraction and the whole command line run (a fresh interpreter,
-as a user runs it).  First, for the shipped corpora: the refuted claims' share of all decision time and
-the mean refuted decision against the mean proved one.  Nothing is asserted; the figures are printed.
+as a user runs it).  First, for every shipped corpus: the refuted claims' share of all decision time and
+the mean refuted decision against the mean proved one, side by side in three modes of the cheap witness
+search (``witness_polynomial.py``), all measured in this run: "slow only" (no cheap search: the full
+search and the Groebner basis), "earlier" (the cheap search as it first was: polynomial differences and
+definitions among the conditions only) and "now"; then, for "now", how the refuted claims were found:
+by the cheap search, or why it stood aside (count and decision seconds per reason).  Nothing is
+asserted; the figures are printed.
 
 Identities (common practice): the Lagrange identity, the Binet-Cauchy identity
 (sum a_i c_i)(sum b_j d_j) - (sum a_i d_i)(sum b_j c_j) = sum_{i<j} (a_i b_j - a_j b_i)(c_i d_j - c_j d_i),
@@ -25,8 +30,15 @@ import tempfile
 import time
 from pathlib import Path
 
+from unittest import mock
+
+from verifier.algebra import decide as decide_module
 from verifier.algebra.decide import Limits, decide
+from verifier.algebra.translate import TranslationError, translate
+from verifier.algebra.witness_polynomial import definitions, polynomial_witness, screen_obstacle, sparse_terms
+from verifier.algebra.witness_problem import searchable_problem
 from verifier.api import find_claims
+from verifier.model.limits import decision_clock
 
 
 def _sum(terms: list[str]) -> str:
@@ -108,25 +120,73 @@ def command_line_seconds(folder: Path) -> tuple[float, float, str]:
 
 
 CHECKOUT = Path(__file__).resolve().parents[2]
-CORPORA = ("fixtures/acceptance", "fixtures/py_acceptance", "fixtures/demo")
+CORPORA = ("fixtures/acceptance", "fixtures/py_acceptance", "fixtures/demo", "fixtures/kernels",
+           "fixtures/kernels_lang", "fixtures/py_numpy", "fixtures/explain", "fixtures/languages")
+
+
+def _no_cheap_search(*args, **kwargs):
+    return None
+
+
+def _earlier_cheap_search(left, right, conditions, difference, *, deadline, seed=0, generators=()):
+    """The first coverage: only a difference in the claim's own variables, only definitions as equations."""
+    problem = searchable_problem(left, right, conditions)
+    if problem is None or definitions(conditions) is None or sparse_terms(difference, problem.names) is None:
+        return None
+    return polynomial_witness(left, right, conditions, difference, deadline=deadline, seed=seed)
+
+
+MODES = (("slow only", _no_cheap_search), ("earlier", _earlier_cheap_search), ("now", polynomial_witness))
+
+
+def _how_refuted(claim) -> str:
+    """For a refuted claim: found by the cheap search, or why the cheap search stood aside."""
+    for obligation in claim.obligations:
+        try:
+            tr = translate(obligation)
+        except (TranslationError, RecursionError):
+            continue
+        args = (obligation.left, obligation.right, obligation.conditions, tr.difference)
+        if polynomial_witness(*args, deadline=decision_clock() + 10, generators=tr.generators) is not None:
+            return "found by the cheap search"
+    for obligation in claim.obligations:
+        try:
+            tr = translate(obligation)
+        except (TranslationError, RecursionError):
+            return "an obligation cannot be translated"
+        reason = screen_obstacle(tr, obligation.left, obligation.right, obligation.conditions)
+        if reason is not None:
+            return reason
+    return "searched, found nothing"
 
 
 def corpus_shares(repeat: int) -> None:
-    """Per corpus: the refuted claims' share of all decision time, and the mean decision of a refuted claim
-    against that of a proved one (CPU seconds, decided in this process, medians of ``repeat`` runs)."""
-    print(f"{'corpus':24} {'claims':>6} {'refuted share':>14} {'mean refuted / mean proved':>27}")
+    """Per corpus and mode: the refuted claims' share of all decision time, and the mean decision of a
+    refuted claim against that of a proved one (CPU seconds, decided in this process, medians of
+    ``repeat`` runs); then the refuted claims by how they were found, in mode "now"."""
+    print(f"{'corpus':14} {'claims':>6} " + " ".join(f"{name + ': share, refuted/proved':>32}" for name, _ in MODES))
+    reasons: dict[str, list[float]] = {}
     for corpus in CORPORA:
         folder = CHECKOUT / corpus
         found = find_claims([str(folder)], cwd=str(folder), cache=False, in_process=True)
-        spent: dict[str, list[float]] = {}
-        for claim in found.claims:
-            seconds, verdict = decision_seconds(claim, repeat)
-            spent.setdefault(verdict, []).append(seconds)
-        total = sum(sum(v) for v in spent.values())
-        refuted, proved = spent.get("refuted", []), spent.get("proved", [])
-        share = sum(refuted) / total if total else 0.0
-        ratio = (statistics.mean(refuted) / statistics.mean(proved)) if refuted and proved else float("nan")
-        print(f"{corpus.split('/')[-1]:24} {len(found.claims):6d} {share:13.0%} {ratio:26.2f}x")
+        cells = []
+        for name, search in MODES:
+            spent: dict[str, list[float]] = {}
+            with mock.patch.object(decide_module, "polynomial_witness", search):
+                for claim in found.claims:
+                    seconds, verdict = decision_seconds(claim, repeat)
+                    spent.setdefault(verdict, []).append(seconds)
+                    if name == "now" and verdict == "refuted":
+                        reasons.setdefault(_how_refuted(claim), []).append(seconds)
+            total = sum(sum(v) for v in spent.values())
+            refuted, proved = spent.get("refuted", []), spent.get("proved", [])
+            share = sum(refuted) / total if total else 0.0
+            ratio = (statistics.mean(refuted) / statistics.mean(proved)) if refuted and proved else float("nan")
+            cells.append(f"{share:19.0%} {ratio:11.2f}x")
+        print(f"{corpus.split('/')[-1]:14} {len(found.claims):6d} " + " ".join(cells))
+    print("refuted claims of all corpora, mode now: how they were found   count   decision s")
+    for reason, seconds in sorted(reasons.items(), key=lambda item: -sum(item[1])):
+        print(f"  {reason:60} {len(seconds):5d} {sum(seconds):11.3f}")
 
 
 def main() -> None:

@@ -132,7 +132,7 @@ def _decide(ob: Obligation, deadline: float, seed: int) -> ObligationResult:
     if early is not None:
         # refutation first and cheap: the difference polynomial, screened modulo a prime, checked exactly
         witness = polynomial_witness(ob.left, ob.right, ob.conditions, early.difference, deadline=deadline,
-                                     seed=seed)
+                                     seed=seed, generators=early.generators)
         if witness is not None:
             cnf, assumed, plain = _normal_form_text(ob, deadline, early)
             return ObligationResult(label, "refuted", None, _refuted_reason(notes, plain), cnf, witness, assumed)
