@@ -62,6 +62,7 @@ from fractions import Fraction
 from typing import Union
 
 from verifier.model.expr import BinOp, Call, Neg, Num, Opaque, Pow, Var
+from verifier.model.ir_places import AddressOf, Aggregate, Load, Place, Store  # kernel places: see that module
 
 # ---------------------------------------------------------------- kinds
 
@@ -277,7 +278,7 @@ Expr = Union[
     Num, Var, BinOp, Neg, Pow, Call, Opaque,
     # IR nodes
     Name, NoValue, Binary, Unary, Compare, Logical, Conditional, Element, Slice, Field, Sequence, Invoke,
-    Unsupported,
+    Unsupported, Load, AddressOf, Aggregate,
 ]
 
 # ---------------------------------------------------------------- assignment targets
@@ -334,7 +335,7 @@ class Unpack:
     column: int = 0
 
 
-Target = Union[ToLocal, ToElement, ToField, ToOut, Unpack, Unsupported]
+Target = Union[ToLocal, ToElement, ToField, ToOut, Unpack, Unsupported, Store]
 
 # ---------------------------------------------------------------- statements
 
