@@ -123,6 +123,12 @@ class Evaluator(Functions):
             keys = places.keys_of(node.place, lambda index: self.constant_index(index, state, frame))
             whole = isinstance(node, ir.AddressOf) or node.whole
             return [(state, places.read(state.get(node.place.root), node.place, keys, whole))]
+        if isinstance(node, (ir.IntegerBinary, ir.ToInteger)):
+            operands = (node.left, node.right) if isinstance(node, ir.IntegerBinary) else (node.operand,)
+            paths: list[tuple[State, list[Value]]] = [(state, [])]
+            for operand in operands:
+                paths = [(s2, values + [v]) for s1, values in paths for s2, v in self.evaluate(operand, s1, frame)]
+            return [(after, integer_value(node, values)) for after, values in paths]
         if isinstance(node, ir.Aggregate):
             built = self._sequence(ir.Sequence(node.items, line=node.line), state, frame)
             return [(after, places.aggregate(node, value.items)) for after, value in built
@@ -363,6 +369,28 @@ class Evaluator(Functions):
         if any(c.relation == negated and c.left == left and c.right == right for c in state.conditions):
             return []  # the same test was already decided the other way on this path
         return [state.with_condition(condition)]
+
+
+def integer_value(node: ir.IntegerBinary | ir.ToInteger, values: list[Value]) -> Value:
+    """Integer arithmetic of kernel code (``verifier.model.ir_ints``): exact on integer constants only."""
+    unknown = next((v for v in values if isinstance(v, Unknown)), None)
+    if unknown is not None:
+        return unknown
+    constants = [int_of(v) for v in values]
+    line = node.line
+    if isinstance(node, ir.ToInteger):
+        return values[0] if constants[0] is not None else Unknown(
+            f"conversion to an integer truncates (line {line})")
+    a, b = constants
+    if a is None or b is None:
+        what = "integer division truncates" if node.op == "/" else "integer arithmetic may overflow"
+        return Unknown(f"{what} (line {line})")
+    if node.op == "/":
+        if b == 0:
+            return Unknown(f"division by zero at line {line}")
+        quotient = abs(a) // abs(b)  # toward zero
+        return Num(Fraction(quotient if (a >= 0) == (b >= 0) else -quotient))
+    return Num(Fraction(a + b if node.op == "+" else a - b if node.op == "-" else a * b))
 
 
 def holds(a: Fraction, relation: str, b: Fraction) -> bool:

@@ -14,7 +14,7 @@ from verifier.claims.execute.values import Compound
 from verifier.claims.execute.values import Value as IrValue
 from verifier.claims.kernels import tree as t
 from verifier.claims.kernels.kvalues import Agg, Stuck, Unknown, Value
-from verifier.claims.kernels.to_ir import MATH_PREFIX, convert_function
+from verifier.claims.kernels.to_ir import MATH_PREFIX, UNKNOWN_PREFIX, convert_function
 from verifier.model import ir
 from verifier.model.claim import Condition
 from verifier.model.expr import BinOp, Call, Neg, Num, Opaque, Pow, Var
@@ -31,6 +31,8 @@ class KernelScope:
     functions: Mapping[str, ir.Function]
 
     def global_value(self, host: Host, module: str, name: str, line: int) -> IrValue:
+        if name.startswith(UNKNOWN_PREFIX):
+            return IrUnknown(name[len(UNKNOWN_PREFIX):])
         return IrUnknown(f"the name {name} is not a parameter or local (line {line})")
 
     def member_value(self, host: Host, module: str, node: ir.Field, is_bound: IsBound, line: int) -> IrValue | None:
@@ -60,8 +62,8 @@ def run_on_ir(function: t.Function, resolve: Callable[[str], t.Function | None],
     executor = Executor(KernelScope(functions), unroll_limit=unroll_limit, inline_depth=inline_depth)
     results: Results = []
     for outcome in executor.run_function(top, ir_args):
-        if outcome.status is Status.STUCK:
-            raise Stuck(outcome.reason, outcome.line)
+        if outcome.status is Status.STUCK:  # a statement the front end did not lower: the runner's words
+            raise Stuck(outcome.reason.removesuffix(f" at line {outcome.line} is not supported"), outcome.line)
         values: list[Value] = []
         if function.returns_value or function.result_name is not None:
             if outcome.status is not Status.RETURN or outcome.value is None:

@@ -3,12 +3,11 @@
 A step of moving the kernel front ends onto the one executor (issue 8): a function converts only when
 both executors give it the same meaning, i.e. when it uses real scalars, structs and fixed-size arrays of
 reals, pointers and references to them as parameters (places: ``verifier.model.ir_places``), and none of
-what the IR has no model of yet: integer parameters (symbolic integers that may overflow), casts, integer
-division (C truncates, decided from the values at run time), pointer locals, and calls whose places by
-reference may overlap.  Anything else gives ``None`` and the kernel runner (``run``) keeps the function.
-A name is "maybe an integer" when a value it holds may be an exact integer constant of the kernel runner
-(an integer literal, a loop counter, an ``int`` local, a call's result): a division of two such operands
-is integer division there, so it is not converted.
+what the IR has no model of yet: operations on values whose kind (integer or real) the
+code does not say, pointer locals, and calls whose places by reference may overlap.  Anything else gives ``None`` and the kernel runner (``run``) keeps the function.
+Integer arithmetic is lowered by the static kinds of ``ir_kinds`` to ``verifier.model.ir_ints``; an
+operation whose operands' kinds are not known is refused when it divides, or when the function has
+integer parameters (symbolic integers that may overflow).
 """
 from __future__ import annotations
 
@@ -16,12 +15,19 @@ from collections.abc import Callable
 from fractions import Fraction
 
 from verifier.claims.kernels import tree as t
+from verifier.claims.kernels.ir_kinds import Kinds
 from verifier.model import ir
 from verifier.model.expr import Num
 from verifier.model.ir_places import Step
 
 MATH_PREFIX = "math:"  # callee names of known math functions: no scanned name contains a colon
+UNKNOWN_PREFIX = "unknown:"  # names whose value is unknown for the reason that follows (the runner's wording)
 _ARITHMETIC = {"+": "+", "-": "-", "*": "*", "/": "/"}
+
+
+def unknown(reason: str) -> ir.Name:
+    """A value the kernel runner does not follow either, with its reason in the kernel runner's words."""
+    return ir.Name(UNKNOWN_PREFIX + reason)
 
 
 class NotConvertible(Exception):
@@ -68,7 +74,9 @@ class _Converter:
         self.source = function
         self.resolve = resolve
         self.called: list[str] = []
-        self.maybe_int = _maybe_int_names(function)
+        self.kinds = Kinds(function)
+        # integer parameters are symbolic integers: arithmetic on values of unknown kind may involve them
+        self.symbolic = any(p.kind == "int" and not (p.size or p.struct) for p in function.params)
         self.pointers: set[str] = set()  # pointer parameters: ``*p``, ``p->w``, ``p[i]`` are places rooted at p
         self.scalars: set[str] = set()  # real scalars passed by value: they have no components
         self.outputs: set[str] = set()  # scalar parameters the function writes for its caller
@@ -78,7 +86,7 @@ class _Converter:
         parameters = tuple(self.parameter(p, top) for p in fn.params)
         body = [self.statement(s) for s in fn.body]
         if fn.result_name is not None:  # Fortran: the result variable is returned at the end
-            unset = ir.Unsupported(f"reading {fn.result_name} before it is set", fn.line)
+            unset = unknown(f"{fn.result_name} is read before it is set (line {fn.line})")
             body = [ir.Assign((ir.ToLocal(fn.result_name, fn.line),), unset, fn.line)] + body
             body.append(ir.Return(ir.Name(fn.result_name, fn.line), fn.line))
         return ir.Function(fn.name, parameters, tuple(body), fn.path, fn.line)
@@ -88,7 +96,7 @@ class _Converter:
         Fortran dummy argument, C array): the parameter's value is what it refers to, written back to the
         caller's place when the call returns (``INOUT``; at the top level its final value is a result)."""
         aggregate = bool(param.size or param.struct)
-        if param.kind != "real" and param.struct is None:
+        if param.kind not in ("real", "int") and param.struct is None or param.kind == "int" and aggregate:
             raise NotConvertible(f"parameter {param.name}")
         by_reference = param.mode != "value"
         if not aggregate and not by_reference:
@@ -122,14 +130,17 @@ class _Converter:
             if s.size or s.struct or isinstance(s.init, t.Aggregate):
                 return ir.Assign((ir.ToLocal(s.name, s.line),), self.declared_aggregate(s), s.line)
             if s.init is None:
-                value: ir.Expr = ir.Unsupported(f"reading {s.name} before it is set", s.line)
-            elif s.kind == "int" and not self.surely_int(s.init):
-                raise NotConvertible("conversion to an integer")
+                value: ir.Expr = unknown(f"{s.name} is read before it is set (line {s.line})")
             else:
-                value = self.value(s.init)
+                value = self.converted(s.init, s.kind)
             return ir.Assign((ir.ToLocal(s.name, s.line),), value, s.line)
         if isinstance(s, t.Assign):
-            value = self.aggregate(s.value) if isinstance(s.value, t.Aggregate) else self.value(s.value, top=True)
+            if isinstance(s.value, t.Aggregate):
+                value = self.aggregate(s.value)
+            elif self.kinds.of(s.target) == "int":
+                value = self.converted(s.value, "int")
+            else:
+                value = self.value(s.value, top=True)
             return ir.Assign((self.target(s.target),), value, s.line)
         if isinstance(s, t.Evaluate) and isinstance(s.value, (t.UserCall, t.MathCall)):
             return ir.Evaluate(self.call(s.value, statement=True) if isinstance(s.value, t.UserCall)
@@ -233,7 +244,13 @@ class _Converter:
         if isinstance(node, (t.Field, t.Index, t.Deref)):
             return ir.Load(self.place(node), top, node.line)
         if isinstance(node, t.Negate):
+            if self.kinds.of(node.operand) == "int":
+                return ir.IntegerBinary("-", Num(Fraction(0)), self.value(node.operand), node.line)
             return ir.Unary("-", self.value(node.operand), node.line)
+        if isinstance(node, t.Cast):
+            if node.kind not in ("int", "real"):
+                raise NotConvertible("a cast to a type that is neither an integer nor a real")
+            return self.converted(node.operand, node.kind)
         if isinstance(node, t.Binary):
             return self.binary(node)
         if isinstance(node, t.Choose):
@@ -250,7 +267,7 @@ class _Converter:
         if isinstance(node, t.Aggregate) and top:  # returned: its components are the results
             return self.aggregate(node)
         if isinstance(node, t.Unsupported):
-            return ir.Unsupported(node.construct, node.line)
+            return unknown(f"{node.construct} (line {node.line})")
         raise NotConvertible(type(node).__name__)
 
     def call(self, node: t.UserCall, statement: bool) -> ir.Expr:
@@ -274,6 +291,8 @@ class _Converter:
                     arguments.append(ir.Argument(ir.AddressOf(place, place.line)))
                 elif isinstance(arg, t.AddressOf):
                     raise NotConvertible("an address passed by value")
+                elif param.kind == "int" and not (param.size or param.struct):
+                    arguments.append(ir.Argument(self.converted(arg, "int")))
                 else:
                     arguments.append(ir.Argument(self.value(arg, top=True)))
             _check_no_overlap(passed)
@@ -290,31 +309,33 @@ class _Converter:
     def binary(self, node: t.Binary) -> ir.Expr:
         if node.op == "pow":
             return self.power(node.left, node.right, node.line)
+        left, right = self.kinds.of(node.left), self.kinds.of(node.right)
+        if node.op == "idiv":
+            if left == right == "int":
+                return ir.IntegerBinary("/", self.value(node.left), self.value(node.right), node.line)
+            raise NotConvertible("an integer division of values that may not be integers")
         if node.op not in _ARITHMETIC:
             raise NotConvertible(node.op)
-        if node.op == "/" and self.source.language != "julia" and self.maybe(node.left) and self.maybe(node.right):
-            raise NotConvertible("a division that may be integer division")
+        julia_division = node.op == "/" and self.source.language == "julia"  # `/` of integers is real there
+        if left == right == "int" and not julia_division:
+            return ir.IntegerBinary(node.op, self.value(node.left), self.value(node.right), node.line)
+        if "real" not in (left, right) and not julia_division and (node.op == "/" or self.symbolic):
+            raise NotConvertible("a division that may be integer division" if node.op == "/"
+                                 else "arithmetic on values that may be symbolic integers")
         return ir.Binary(_ARITHMETIC[node.op], self.value(node.left), self.value(node.right), node.line)
+
+    def converted(self, node: t.Node, kind: str) -> ir.Expr:
+        """``node``'s value in a place of kind ``kind`` (an ``int`` local, parameter or cast)."""
+        if kind != "int" or self.kinds.of(node) == "int":
+            return self.value(node)
+        if self.kinds.of(node) == "real":
+            return ir.ToInteger(self.value(node), getattr(node, "line", 0))
+        raise NotConvertible("conversion to an integer")
 
     def power(self, base: t.Node, exponent: t.Node, line: int) -> ir.Expr:
         if not (isinstance(exponent, t.Lit) and exponent.value.denominator in (1, 2)):
             raise NotConvertible("a power without a literal integer or half-integer exponent")
         return ir.Binary("**", self.value(base), Num(exponent.value), line)
-
-    # -- integer kinds (see the module's docstring)
-
-    def maybe(self, node: t.Node) -> bool:
-        return _maybe_int(node, self.maybe_int)
-
-    def surely_int(self, node: t.Node) -> bool:
-        if isinstance(node, t.Lit):
-            return node.kind == "int" and node.value.denominator == 1
-        if isinstance(node, t.Negate):
-            return self.surely_int(node.operand)
-        if isinstance(node, t.Binary) and node.op in ("+", "-", "*"):
-            return self.surely_int(node.left) and self.surely_int(node.right)
-        return False  # names: their kind may change with an assignment; the kernel runner decides at run time
-
 
 def _check_no_overlap(passed: list[tuple[ir.Place, bool]]) -> None:
     """Places passed by reference to one call must be apart when one is written, and the indices of one
@@ -337,54 +358,6 @@ def _names_in(expr: object) -> list[ir.Name]:
         for child in value if isinstance(value, tuple) else (value,):
             found.extend(_names_in(child))
     return found
-
-
-def _maybe_int(node: t.Node, names: set[str]) -> bool:
-    if isinstance(node, t.Lit):
-        return node.kind == "int"
-    if isinstance(node, t.Name):
-        return node.name in names
-    if isinstance(node, t.Negate):
-        return _maybe_int(node.operand, names)
-    if isinstance(node, t.Binary):
-        return _maybe_int(node.left, names) or _maybe_int(node.right, names)
-    if isinstance(node, t.Choose):
-        return _maybe_int(node.then, names) or _maybe_int(node.otherwise, names)
-    return isinstance(node, t.UserCall)  # a callee's result is not converted to its declared kind
-
-
-def _maybe_int_names(function: t.Function) -> set[str]:
-    """Names that may hold an exact integer of the kernel runner somewhere in ``function``: a fixpoint."""
-    names: set[str] = set()
-    assignments: list[tuple[str, t.Node | None]] = []
-
-    def collect(statements: tuple[t.Statement, ...]) -> None:
-        for s in statements:
-            if isinstance(s, t.Declare):
-                if s.kind == "int":
-                    names.add(s.name)
-                elif s.kind == "unknown" and s.init is not None:  # an untyped local keeps its value's kind
-                    assignments.append((s.name, s.init))
-            elif isinstance(s, t.Assign) and isinstance(s.target, t.Name):
-                assignments.append((s.target.name, s.value))
-            elif isinstance(s, t.Destructure):
-                assignments.extend((name, None) for name in s.targets)
-            elif isinstance(s, t.For):
-                names.add(s.var)
-                collect(s.body)
-            elif isinstance(s, t.If):
-                collect(s.then)
-                collect(s.otherwise)
-
-    collect(function.body)
-    changed = True
-    while changed:
-        changed = False
-        for name, value in assignments:
-            if name not in names and (value is None or _maybe_int(value, names)):
-                names.add(name)
-                changed = True
-    return names
 
 
 def _reassigns(statements: tuple[t.Statement, ...], name: str) -> bool:
