@@ -62,6 +62,8 @@ from fractions import Fraction
 from typing import Union
 
 from verifier.model.expr import BinOp, Call, Neg, Num, Opaque, Pow, Var
+from verifier.model.ir_ints import IntegerBinary, ToInteger  # integer kinds of kernel code: see that module
+from verifier.model.ir_places import AddressOf, Aggregate, Load, Place, Store  # kernel places: see that module
 
 # ---------------------------------------------------------------- kinds
 
@@ -277,7 +279,7 @@ Expr = Union[
     Num, Var, BinOp, Neg, Pow, Call, Opaque,
     # IR nodes
     Name, NoValue, Binary, Unary, Compare, Logical, Conditional, Element, Slice, Field, Sequence, Invoke,
-    Unsupported,
+    Unsupported, Load, AddressOf, Aggregate, IntegerBinary, ToInteger,
 ]
 
 # ---------------------------------------------------------------- assignment targets
@@ -334,7 +336,7 @@ class Unpack:
     column: int = 0
 
 
-Target = Union[ToLocal, ToElement, ToField, ToOut, Unpack, Unsupported]
+Target = Union[ToLocal, ToElement, ToField, ToOut, Unpack, Unsupported, Store]
 
 # ---------------------------------------------------------------- statements
 

@@ -77,7 +77,8 @@ class Arithmetic:
         if isinstance(left, NoneValue) or isinstance(right, NoneValue):
             return Unknown(f"arithmetic with None at line {line}")
         a, b = as_expr(left), as_expr(right)
-        assert a is not None and b is not None  # every other kind of value was handled above
+        if a is None or b is None:  # a struct or array of kernel code (values.Compound)
+            return Unknown(f"an array, struct or pointer is used as a number at line {line}")
         if op == "**":
             if not isinstance(b, Num):
                 return Unknown(f"`**` with a non-constant exponent at line {line} is not supported")

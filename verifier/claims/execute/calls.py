@@ -276,7 +276,7 @@ class CallEvaluator(Evaluator):
             for outcome in self.exec_block(function.body, [start], callee):
                 back = State(after.env, outcome.state.conditions, outcome.state.notes)
                 if outcome.status in (Status.RETURN, Status.NEXT):
-                    back = self._outputs_back(function, node, outcome.state, back)
+                    back = self._outputs_back(function, node, outcome.state, back, frame)
                 if outcome.status is Status.RETURN:
                     result.append((back, outcome.value if outcome.value is not None else NONE))
                 elif outcome.status is Status.NEXT:
@@ -286,8 +286,10 @@ class CallEvaluator(Evaluator):
                 # RAISE: this path of the caller raises too and returns nothing
         return result
 
-    def _outputs_back(self, function: ir.Function, node: ir.Invoke, inside: State, back: State) -> State:
-        """Out-parameters passed a caller's local (``f(x, &y)``): the local takes the value left in them."""
+    def _outputs_back(self, function: ir.Function, node: ir.Invoke, inside: State, back: State,
+                      frame: Frame) -> State:
+        """Out-parameters passed a caller's local (``f(x, &y)``) or a kernel place by reference (``AddressOf``):
+        the local or place takes the value left in them."""
         positional = [p for p in function.parameters if p.binding in (ir.Binding.POSITIONAL,
                                                                         ir.Binding.POSITIONAL_ONLY)]
         for param, arg in zip(positional, node.arguments):
@@ -295,6 +297,10 @@ class CallEvaluator(Evaluator):
                 value = inside.get(param.name)
                 if value is not None:
                     back = back.bind(arg.value.name, value)
+            elif param.kind in OUTPUT_KINDS and isinstance(arg.value, ir.AddressOf) and arg.keyword is None:
+                value = inside.get(param.name)
+                if value is not None:
+                    back = self.store_place(arg.value.place, value, back, frame)
         return back
 
     def bind_arguments(self, function: ir.Function, positional: list[Value], keywords: dict[str, Value],

@@ -5,6 +5,7 @@ from collections.abc import Collection
 from fractions import Fraction
 from typing import cast
 
+from verifier.claims.execute import places
 from verifier.claims.execute.arithmetic import ARITHMETIC
 from verifier.claims.execute.arrays import ATTRIBUTES, finfo_constant
 from verifier.claims.execute.functions import Functions, opaque_note
@@ -12,6 +13,7 @@ from verifier.claims.execute.scope import Scope
 from verifier.claims.execute.state import Frame, Mark, State, Visit
 from verifier.claims.execute.values import (
     ARRAY,
+    Compound,
     MUTABLE,
     NONE,
     NoneValue,
@@ -117,6 +119,20 @@ class Evaluator(Functions):
             return result
         if isinstance(node, ir.Sequence):
             return self._sequence(node, state, frame)
+        if isinstance(node, (ir.Load, ir.AddressOf)):  # kernel places
+            keys = places.keys_of(node.place, lambda index: self.constant_index(index, state, frame))
+            whole = isinstance(node, ir.AddressOf) or node.whole
+            return [(state, places.read(state.get(node.place.root), node.place, keys, whole))]
+        if isinstance(node, (ir.IntegerBinary, ir.ToInteger)):
+            operands = (node.left, node.right) if isinstance(node, ir.IntegerBinary) else (node.operand,)
+            paths: list[tuple[State, list[Value]]] = [(state, [])]
+            for operand in operands:
+                paths = [(s2, values + [v]) for s1, values in paths for s2, v in self.evaluate(operand, s1, frame)]
+            return [(after, integer_value(node, values)) for after, values in paths]
+        if isinstance(node, ir.Aggregate):
+            built = self._sequence(ir.Sequence(node.items, line=node.line), state, frame)
+            return [(after, places.aggregate(node, value.items)) for after, value in built
+                    if isinstance(value, Seq)]
         if isinstance(node, ir.Invoke):
             return self.call(node, state, frame, iterable)
         if isinstance(node, ir.Compare):  # a value: 1 where it holds, 0 where not (Python's True/False)
@@ -242,6 +258,11 @@ class Evaluator(Functions):
         ident = self.new_ident() if mutable else 0
         return [(s, Seq(items, node.kind, ident, frame.ident if mutable else 0)) for s, items in paths]
 
+    def store_place(self, place: ir.Place, value: Value, state: State, frame: Frame) -> State:
+        """``state`` with ``value`` stored at the kernel place ``place``."""
+        keys = places.keys_of(place, lambda index: self.constant_index(index, state, frame))
+        return state.bind(place.root, places.written(state.get(place.root), place, keys, value))
+
     def constant_index(self, node: ir.Expr, state: State, frame: Frame) -> int | None:
         """The integer ``node`` evaluates to on this path without splitting it, or None."""
         alternatives = self.evaluate(node, state, frame)
@@ -277,6 +298,8 @@ class Evaluator(Functions):
             return [state] if not want else []
         if isinstance(value, Seq):
             return [state] if bool(value.items) == want else []
+        if isinstance(value, Compound):
+            raise Stuck(f"the test at line {line} uses an array, struct or pointer as a number")
         return self.relation(value, "!=" if want else "==", Num(Fraction(0)), state, line)
 
     def _compare_chain(self, node: ir.Compare, state: State, frame: Frame, want: bool) -> list[State]:
@@ -346,6 +369,28 @@ class Evaluator(Functions):
         if any(c.relation == negated and c.left == left and c.right == right for c in state.conditions):
             return []  # the same test was already decided the other way on this path
         return [state.with_condition(condition)]
+
+
+def integer_value(node: ir.IntegerBinary | ir.ToInteger, values: list[Value]) -> Value:
+    """Integer arithmetic of kernel code (``verifier.model.ir_ints``): exact on integer constants only."""
+    unknown = next((v for v in values if isinstance(v, Unknown)), None)
+    if unknown is not None:
+        return unknown
+    constants = [int_of(v) for v in values]
+    line = node.line
+    if isinstance(node, ir.ToInteger):
+        return values[0] if constants[0] is not None else Unknown(
+            f"conversion to an integer truncates (line {line})")
+    a, b = constants
+    if a is None or b is None:
+        what = "integer division truncates" if node.op == "/" else "integer arithmetic may overflow"
+        return Unknown(f"{what} (line {line})")
+    if node.op == "/":
+        if b == 0:
+            return Unknown(f"division by zero at line {line}")
+        quotient = abs(a) // abs(b)  # toward zero
+        return Num(Fraction(quotient if (a >= 0) == (b >= 0) else -quotient))
+    return Num(Fraction(a + b if node.op == "+" else a - b if node.op == "-" else a * b))
 
 
 def holds(a: Fraction, relation: str, b: Fraction) -> bool:

@@ -4,6 +4,7 @@ from __future__ import annotations
 from collections.abc import Mapping, Sequence
 from fractions import Fraction
 
+from verifier.claims.execute import places
 from verifier.claims.execute.arrays import replaced_slice, slice_positions
 from verifier.claims.execute.calls import OUTPUT_KINDS, CallEvaluator
 from verifier.claims.execute.expressions import unsupported_reason
@@ -11,6 +12,7 @@ from verifier.claims.execute.sequences import Shape, parameter_sequence
 from verifier.claims.execute.state import Frame, Outcome, State, Status, Visit
 from verifier.claims.execute.values import (
     LIST,
+    Compound,
     MUTABLE,
     NONE,
     Seq,
@@ -205,6 +207,8 @@ class Executor(CallEvaluator):
             return state.bind(target.name, value)
         if isinstance(target, ir.ToField):
             return state.bind(f"{target.base}.{target.field}", value)
+        if isinstance(target, ir.Store):
+            return self.store_place(target.place, value, state, frame)
         if isinstance(target, ir.Unpack):
             parts = self._unpack(value, len(target.items), line)
             for item, part in zip(target.items, parts):
@@ -289,6 +293,8 @@ class Executor(CallEvaluator):
         return self._replace_list(state, outer, Seq(tuple(rows), outer.kind, outer.ident, outer.owner), frame, line)
 
     def _unpack(self, value: Value, count: int, line: int) -> list[Value]:
+        if isinstance(value, Compound):  # a kernel struct or array: its numbers in order
+            value = Seq(tuple(places.flatten(value, line)))
         if isinstance(value, Seq):
             if len(value.items) != count:
                 raise Stuck(f"unpacking {len(value.items)} values into {count} names at line {line}")

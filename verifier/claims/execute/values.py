@@ -38,7 +38,30 @@ class NoneValue:
 
 
 NONE = NoneValue()
-Value = Union[Num, Var, BinOp, Neg, Pow, Call, Opaque, Unknown, Seq, NoneValue]
+Key = Union[str, int]  # a field name or an index of a Compound
+
+
+@dataclass(frozen=True)
+class Compound:
+    """A struct or fixed-size array of kernel code (``verifier.model.ir_places``): the components set so far;
+    the others read as variables named after ``prefix`` (``q.w``, ``v[1]``), or are unset without one.
+    ``fields`` (a struct's, in order) or ``size`` and ``base`` (an array's) give its components' order."""
+
+    items: tuple[tuple[Key, "Value"], ...] = ()
+    prefix: str | None = None
+    fields: tuple[str, ...] = ()
+    size: int = 0
+    base: int = 0
+
+    def keys(self) -> list[Key]:
+        if self.fields:
+            return list(self.fields)
+        if self.size:
+            return list(range(self.base, self.base + self.size))
+        return [key for key, _ in self.items]
+
+
+Value = Union[Num, Var, BinOp, Neg, Pow, Call, Opaque, Unknown, Seq, NoneValue, Compound]
 EXPR_TYPES = (Num, Var, BinOp, Neg, Pow, Call, Opaque)
 
 

@@ -8,11 +8,13 @@ from dataclasses import dataclass
 from verifier.claims.execute import (Callee, Executor, Host, InlineCallee, MathCallee, OpaqueCallee, Seq, Status,
                                      UnknownCallee)
 from verifier.claims.execute import Unknown as IrUnknown
+from verifier.claims.execute import places
 from verifier.claims.execute.scope import IsBound
+from verifier.claims.execute.values import Compound
 from verifier.claims.execute.values import Value as IrValue
 from verifier.claims.kernels import tree as t
-from verifier.claims.kernels.kvalues import Stuck, Unknown, Value
-from verifier.claims.kernels.to_ir import MATH_PREFIX, convert_function
+from verifier.claims.kernels.kvalues import Agg, Stuck, Unknown, Value
+from verifier.claims.kernels.to_ir import MATH_PREFIX, UNKNOWN_PREFIX, convert_function
 from verifier.model import ir
 from verifier.model.claim import Condition
 from verifier.model.expr import BinOp, Call, Neg, Num, Opaque, Pow, Var
@@ -29,6 +31,8 @@ class KernelScope:
     functions: Mapping[str, ir.Function]
 
     def global_value(self, host: Host, module: str, name: str, line: int) -> IrValue:
+        if name.startswith(UNKNOWN_PREFIX):
+            return IrUnknown(name[len(UNKNOWN_PREFIX):])
         return IrUnknown(f"the name {name} is not a parameter or local (line {line})")
 
     def member_value(self, host: Host, module: str, node: ir.Field, is_bound: IsBound, line: int) -> IrValue | None:
@@ -48,20 +52,18 @@ def run_on_ir(function: t.Function, resolve: Callable[[str], t.Function | None],
               inline_depth: int, args: list[Value] | None, inlined: list[str]) -> Results | None:
     """Every path's results and conditions, or None when the function does not convert (the kernel runner
     keeps it).  Raises Stuck as the kernel runner does when a path cannot be followed."""
-    if args is not None and not all(isinstance(a, _EXPRESSIONS) for a in args):
-        return None
     functions = convert_function(function, resolve)
     if functions is None:
         return None
     top = functions.pop("")
-    if args is not None and any(p.kind is not ir.ParameterKind.VALUE for p in top.parameters):
-        return None  # `same as` passes the inputs only: the kernel runner binds them
+    ir_args = _arguments(function, args)
+    if ir_args is None:
+        return None
     executor = Executor(KernelScope(functions), unroll_limit=unroll_limit, inline_depth=inline_depth)
-    ir_args: list[IrValue] | None = None if args is None else [a for a in args if isinstance(a, _EXPRESSIONS)]
     results: Results = []
     for outcome in executor.run_function(top, ir_args):
-        if outcome.status is Status.STUCK:
-            raise Stuck(outcome.reason, outcome.line)
+        if outcome.status is Status.STUCK:  # a statement the front end did not lower: the runner's words
+            raise Stuck(outcome.reason.removesuffix(f" at line {outcome.line} is not supported"), outcome.line)
         values: list[Value] = []
         if function.returns_value or function.result_name is not None:
             if outcome.status is not Status.RETURN or outcome.value is None:
@@ -76,9 +78,35 @@ def run_on_ir(function: t.Function, resolve: Callable[[str], t.Function | None],
     return results
 
 
+def _arguments(function: t.Function, args: list[Value] | None) -> list[IrValue] | None:
+    """The top-level parameters' values as the kernel runner gives them: ``args`` for the inputs of a `same
+    as`, otherwise variables (``x``) and structs and arrays whose components are variables (``q.w``)."""
+    inputs = iter(args or [])
+    values: list[IrValue] = []
+    for param in function.params:
+        if args is not None and param.mode != "out" and not param.out_only:
+            given = next(inputs, None)
+            if isinstance(given, Agg) and given.prefix is not None and not given.items:
+                values.append(Compound(prefix=given.prefix, fields=given.fields, size=given.size, base=given.base))
+            elif isinstance(given, _EXPRESSIONS):
+                values.append(given)
+            else:
+                return None  # integers and other values stay on the kernel runner
+        elif param.size or param.struct:
+            fields = function.structs.get(param.struct or "", ())
+            # C++ `this`: the members are named as the code spells them inside the class (`x`)
+            prefix = "" if param.name == "this" and function.language in ("cpp", "cuda") else param.name
+            values.append(Compound(prefix=prefix, fields=fields, size=param.size, base=function.index_base))
+        else:
+            values.append(Var(param.name))
+    return values
+
+
 def _flatten(value: IrValue) -> list[Value]:
     if isinstance(value, Seq):
         return [part for item in value.items for part in _flatten(item)]
+    if isinstance(value, Compound):
+        return [part for item in places.flatten(value) for part in _flatten(item)]
     if isinstance(value, _EXPRESSIONS):
         return [value]
     if isinstance(value, IrUnknown):
