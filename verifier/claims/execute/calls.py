@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 from collections.abc import Sequence
+from dataclasses import dataclass
 
 from verifier.claims.execute.arrays import ROUTED, array_method, harmless_keywords
 from verifier.claims.execute.expressions import Alternatives, Evaluator
@@ -10,6 +11,7 @@ from verifier.claims.execute.piecewise import PIECEWISE, pieces
 from verifier.claims.execute.scope import (
     BuiltinCallee,
     Callee,
+    ConstructCallee,
     InlineCallee,
     MathCallee,
     MethodCallee,
@@ -20,13 +22,17 @@ from verifier.claims.execute.state import Frame, Outcome, State, Status
 from verifier.claims.execute.values import (
     ARRAY,
     NONE,
+    FunctionValue,
+    Record,
     Seq,
     Stuck,
     Unknown,
     Value,
     as_expr,
+    holds_object,
 )
 from verifier.model import ir
+from verifier.model.ir_keys import DICT_LITERAL, LAMBDA_PREFIX
 from verifier.model.expr import Expr, Opaque, Var
 
 Arguments = list[tuple[State, list[Value], dict[str, Value]]]
@@ -41,6 +47,68 @@ _IMPURE_NAMES = frozenset({"random", "rand", "randn", "randint", "uniform", "nor
 PARAMETER_FUNCTION = "parameter "  # the prefix of the opaque name of a function passed as a parameter
 
 
+def fields_written(node: ir.Invoke, state: State, line: int) -> None:
+    """A call passing a local whose attributes this path assigned as plain names (``p.x = 1`` on a value that
+    is no object of the project) would let the callee read the old attributes: not followed."""
+    names = {a.value.name for a in node.arguments if isinstance(a.value, ir.Name)}
+    if isinstance(node.callee, ir.Field) and isinstance(node.callee.base, ir.Name):
+        names.add(node.callee.base.name)
+    if not names:
+        return
+    for bound, _ in state.env:
+        head, dot, _rest = bound.partition(".")
+        if dot and head in names:
+            raise Stuck(f"the call at line {line} passes {head}, whose attribute {bound} was assigned before; "
+                        "this is not followed")
+
+
+def writes_attributes(body: Sequence[ir.Statement]) -> bool:
+    """Whether a body assigns an attribute anywhere (``obj.x = v``)."""
+    def target_writes(target: ir.Target) -> bool:
+        if isinstance(target, ir.Unpack):
+            return any(target_writes(t) for t in target.items)
+        return isinstance(target, ir.ToField)
+
+    for stmt in body:
+        if isinstance(stmt, ir.Assign) and any(target_writes(t) for t in stmt.targets):
+            return True
+        if isinstance(stmt, ir.If) and (writes_attributes(stmt.then) or writes_attributes(stmt.orelse)):
+            return True
+        if isinstance(stmt, (ir.ForEach, ir.CountedLoop)) and writes_attributes(stmt.body):
+            return True
+        if isinstance(stmt, ir.ForEach) and (target_writes(stmt.target) or writes_attributes(stmt.orelse or ())):
+            return True
+    return False
+
+
+def adopted(value: Value, callee: int, caller: int) -> Value:
+    """A value a call returns: the objects and dicts the callee made now belong to the caller, which may
+    change them (nothing else holds them once the callee has returned)."""
+    if isinstance(value, Record):
+        fields = tuple((k, adopted(v, callee, caller)) for k, v in value.fields)
+        return Record(value.cls, fields, value.ident, caller if value.owner == callee else value.owner, value.label)
+    if isinstance(value, FunctionValue) and value.frame == callee:
+        return Unknown(f"a lambda returned by the function that made it ({value.function.name}) is not followed")
+    if isinstance(value, Seq) and any(isinstance(i, (Record, Seq, FunctionValue)) for i in value.items):
+        return Seq(tuple(adopted(i, callee, caller) for i in value.items), value.kind, value.ident, value.owner)
+    return value
+
+
+def replace_object(state: State, new: Record, frame: Frame, line: int) -> State:
+    """``state`` with every local holding the object ``new.ident`` holding ``new`` (objects are shared);
+    an object held inside another value (a list item, an attribute) is not followed when it changes."""
+    env: list[tuple[str, Value]] = []
+    for name, value in state.env:
+        if isinstance(value, Record) and value.ident == new.ident:
+            env.append((name, new))
+        else:
+            if holds_object(value, new.ident):
+                raise Stuck(f"changing an object that another value holds ({name}) at line {line} is not "
+                            "supported")
+            env.append((name, value))
+    return state.with_env(tuple(env))
+
+
 def impure(name: str) -> bool:
     """Calls whose value may differ between two calls with the same arguments (by name, conservatively)."""
     return name.startswith(_IMPURE_PREFIXES) or name.rsplit(".", 1)[-1] in _IMPURE_NAMES
@@ -49,6 +117,13 @@ def impure(name: str) -> bool:
 def _noted(state: State, value: Value, line: int) -> tuple[State, Value]:
     note = opaque_note(value, line)
     return (state.with_note(note) if note else state), value
+
+@dataclass(frozen=True)
+class FunctionCallee:
+    """A local or global holding a function value: called by inlining it."""
+
+    value: FunctionValue
+
 
 _RUNNING, _ITEM = "\0running", "\0item"  # names of reduce's step call
 
@@ -59,7 +134,18 @@ class CallEvaluator(Evaluator):
     def exec_block(self, statements: Sequence[ir.Statement], states: list[State], frame: Frame) -> list[Outcome]:
         raise NotImplementedError  # Executor
 
-    def resolve(self, node: ir.Invoke, state: State, frame: Frame) -> Callee:
+    def construct(self, callee: ConstructCallee, node: ir.Invoke, state: State, frame: Frame,
+                  label: str = "") -> list[tuple[State, Record]]:
+        raise NotImplementedError  # ObjectCalls
+
+    def object_method(self, record: Record, node: ir.Invoke, name: str, state: State, frame: Frame
+                      ) -> Alternatives:
+        raise NotImplementedError  # ObjectCalls
+
+    def mapping(self, node: ir.Invoke, state: State, frame: Frame) -> Alternatives:
+        raise NotImplementedError  # ObjectCalls
+
+    def resolve(self, node: ir.Invoke, state: State, frame: Frame) -> Callee | FunctionCallee:
         """What ``node`` calls; a name bound on the path is a local value, which is not called."""
         line = node.line
         if isinstance(node.callee, ir.Name):
@@ -70,6 +156,12 @@ class CallEvaluator(Evaluator):
                 # a function passed as a parameter: any pure function, the same arguments give the same value;
                 # named apart from module functions of the same name, which are other functions
                 return OpaqueCallee(f"{PARAMETER_FUNCTION}{bound.name}")
+            if bound is None and node.callee.name.startswith(LAMBDA_PREFIX):  # `(lambda t: ...)(x)`, reduce
+                bound = self.name_value(node.callee.name, state, frame, line)
+            if isinstance(bound, FunctionValue):
+                return FunctionCallee(bound)
+            if isinstance(bound, Record):
+                return UnknownCallee(f"calling the object {node.callee.name} at line {line} is not supported")
             if bound is not None:
                 return UnknownCallee(f"calling the local value {node.callee.name} at line {line} is not supported")
         return self.scope.callee(self, frame.module, frame.function, node.callee,
@@ -77,6 +169,8 @@ class CallEvaluator(Evaluator):
 
     def call(self, node: ir.Invoke, state: State, frame: Frame, iterable: bool) -> Alternatives:
         line = node.line
+        if isinstance(node.callee, ir.Name) and node.callee.name == DICT_LITERAL:
+            return self.mapping(node, state, frame)
         callee = self.resolve(node, state, frame)
         if isinstance(callee, BuiltinCallee):
             if callee.name in PIECEWISE:
@@ -85,11 +179,15 @@ class CallEvaluator(Evaluator):
                     for after, args, keywords in self.arguments(node, state, frame)]
         if isinstance(callee, MathCallee):
             return self._math_call(callee.name, node, state, frame)
+        if isinstance(callee, FunctionCallee):
+            return self.call_function_value(callee.value, node, state, frame)
         if isinstance(callee, InlineCallee):
             receiver = state.get(callee.receiver) if callee.receiver is not None else None
             return self.inline(callee.function, node, state, frame, receiver)
         if isinstance(callee, MethodCallee):
             return self._method_call(callee, node, state, frame)
+        if isinstance(callee, ConstructCallee):
+            return [(after, record) for after, record in self.construct(callee, node, state, frame)]
         if isinstance(callee, UnknownCallee):
             return [(state, Unknown(callee.reason))]
         routed = ROUTED.get(callee.name)  # np.linalg.norm, functools.reduce: known, not opaque
@@ -131,7 +229,9 @@ class CallEvaluator(Evaluator):
         for after, receiver in self.evaluate(callee.receiver, state, frame):
             expr = as_expr(receiver)
             numpy_name = array_method(callee.name, receiver, {}) if isinstance(receiver, Seq) else None
-            if numpy_name is not None:
+            if isinstance(receiver, Record):
+                result.extend(self.object_method(receiver, node, callee.name, after, frame))
+            elif numpy_name is not None and isinstance(receiver, Seq):
                 result.extend(alternative for s, args, keywords in self.arguments(node, after, frame)
                               for alternative in self._math_of(numpy_name, [receiver] + args, keywords, s, frame,
                                                                node.line))
@@ -182,8 +282,15 @@ class CallEvaluator(Evaluator):
             if keywords:
                 full_name += "[" + ",".join(f"{k}=" for k in sorted(keywords)) + "]"
                 values += [keywords[k] for k in sorted(keywords)]
+            if any(isinstance(v, Record) for v in values):
+                raise Stuck(f"the call {name}(...) at line {line} is given an object or dict, which a function "
+                            "the tool cannot see into may change; this is not followed")
             exprs = [as_expr(v) for v in values]
             bad = next((v for v, e in zip(values, exprs) if e is None), None)
+            if isinstance(bad, FunctionValue):
+                result.append((after, Unknown(f"the call {name}(...) at line {line} is given the function "
+                                              f"{bad.function.name}, and the tool cannot see what it does with it")))
+                continue
             if bad is not None:
                 reason = bad.reason if isinstance(bad, Unknown) else (
                     f"the call {name}(...) at line {line} passes a tuple, list or None to a function the tool "
@@ -252,8 +359,27 @@ class CallEvaluator(Evaluator):
 
     # -- inlining
 
+    def call_function_value(self, value: FunctionValue, node: ir.Invoke, state: State, frame: Frame
+                            ) -> Alternatives:
+        """A function passed around as a value: inlined; a lambda with the locals it captured, which must be
+        the ones its maker still has (Python reads them when the lambda runs)."""
+        if value.frame == frame.ident:
+            for name, held in value.captured:
+                if state.get(name) != held:
+                    raise Stuck(f"the lambda called at line {node.line} reads {name}, which changed after the "
+                                "lambda was made; this is not followed")
+        return [(back, result) for back, result, _ in
+                self.inline_paths(value.function, node, state, frame, None, value.captured)]
+
     def inline(self, function: ir.Function, node: ir.Invoke, state: State, frame: Frame,
                receiver: Value | None) -> Alternatives:
+        return [(back, value) for back, value, _ in self.inline_paths(function, node, state, frame, receiver)]
+
+    def inline_paths(self, function: ir.Function, node: ir.Invoke, state: State, frame: Frame,
+                     receiver: Value | None, captured: tuple[tuple[str, Value], ...] = ()
+                     ) -> list[tuple[State, Value, State]]:
+        """Every (caller's path after the call, returned value, the callee's final path) of an inlined call;
+        objects passed in come back changed as the callee left them."""
         line = node.line
         if function.key in frame.stack:
             raise Stuck(f"the recursive call of {function.name} at line {line} is not supported")
@@ -266,25 +392,49 @@ class CallEvaluator(Evaluator):
         note = f"inlined {function.name} from {function.module}"
         if note not in self.inlined:
             self.inlined.append(note)
-        callee = Frame(function.module, function, frame.depth + 1, frame.stack + (function.key,), self.new_ident())
-        result: Alternatives = []
+        fields_written(node, state, line)
+        result: list[tuple[State, Value, State]] = []
         for after, positional, keywords in self.arguments(node, state, frame):
             if receiver is not None:
                 positional = [receiver] + positional
+            passed = [v for v in positional + list(keywords.values()) if isinstance(v, Record)]
+            callee = Frame(function.module, function, frame.depth + 1, frame.stack + (function.key,),
+                           self.new_ident(), objects=frozenset(r.ident for r in passed))
             start = self.bind_arguments(function, positional, keywords,
-                                        State((), after.conditions, after.notes), line)
+                                        State(captured, after.conditions, after.notes), line)
             for outcome in self.exec_block(function.body, [start], callee):
                 back = State(after.env, outcome.state.conditions, outcome.state.notes)
                 if outcome.status in (Status.RETURN, Status.NEXT):
                     back = self._outputs_back(function, node, outcome.state, back)
+                    back = self._objects_back(function, passed, outcome.state, back, frame, line)
                 if outcome.status is Status.RETURN:
-                    result.append((back, outcome.value if outcome.value is not None else NONE))
+                    value = adopted(outcome.value, callee.ident, frame.ident) if outcome.value is not None else NONE
+                    result.append((back, value, outcome.state))
                 elif outcome.status is Status.NEXT:
-                    result.append((back, NONE))
+                    result.append((back, NONE, outcome.state))
                 elif outcome.status is Status.STUCK:
                     raise Stuck(f"{outcome.reason} (in {function.name} of {function.module}, called at line {line})")
                 # RAISE: this path of the caller raises too and returns nothing
         return result
+
+    def _objects_back(self, function: ir.Function, passed: list[Record], inside: State, back: State, frame: Frame,
+                      line: int) -> State:
+        """The objects a call was given, as the callee left them, for every local of the caller holding them;
+        attributes the callee wrote on a parameter that is no object of the project are not followed."""
+        for name, value in inside.env:
+            head = name.split(".", 1)[0]
+            if "." in name and any(p.name == head for p in function.parameters):
+                raise Stuck(f"{function.name} (called at line {line}) assigns the attribute {name} of its "
+                            "argument, which is not an object the tool follows")
+        for record in passed:
+            final = next((v for _, v in inside.env if isinstance(v, Record) and v.ident == record.ident), None)
+            if final is None:
+                if writes_attributes(function.body):
+                    raise Stuck(f"{function.name} (called at line {line}) may change the object it was given "
+                                "and then stop holding it; this is not followed")
+            elif final != record:
+                back = replace_object(back, final, frame, line)
+        return back
 
     def _outputs_back(self, function: ir.Function, node: ir.Invoke, inside: State, back: State) -> State:
         """Out-parameters passed a caller's local (``f(x, &y)``): the local takes the value left in them."""
