@@ -86,6 +86,12 @@ def after_burn_slip(m, f, s):
     q = Probe(m, f)
     q.burn(s)
     return p.fuel()
+
+
+class Tanker(Probe):
+    # idealcheck: returns self.mass
+    def dry_mass(self):
+        return self.mass + self.fuel() - self.fuel()
 '''
 
 
@@ -102,6 +108,18 @@ def test_methods_that_change_the_object(cli: Cli, tmp_path: Path) -> None:
     assert "has base classes" in result.out
     assert claims[20]["verdict"] == "proved"
     assert claims[27]["verdict"] == "refuted"
+    # an inherited method (base classes are not followed) is an opaque function of its arguments
+    assert claims[36]["verdict"] == "proved"
+    assert "opaque call self.fuel(...) at line 38" in result.out
+
+
+def test_a_claim_naming_the_init_parameters_is_told_the_attribute(cli: Cli, tmp_path: Path) -> None:
+    (tmp_path / "cell.py").write_text(
+        "class Cell:\n    def __init__(self, width, height):\n        self.w = width\n        self.h = height\n\n"
+        "    # idealcheck: returns width * height\n    def area(self):\n        return self.w * self.h\n")
+    claim = _claims(cli, tmp_path, "cell.py")[0]
+    assert claim["verdict"] == "error"
+    assert "`__init__` stores `width` as `self.w`: write `self.w`" in str(claim["reason"])
 
 
 UNSUPPORTED = [  # (the body after `p = Cell(x)` at line 8, the reason, the line it names)

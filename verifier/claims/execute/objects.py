@@ -158,9 +158,13 @@ class ObjectCalls(CallEvaluator):
         if member is not None and member.kind in ("method", "static") and member.function is not None:
             receiver = record if member.kind == "method" else None
             return self.inline(member.function, node, state, frame, receiver)
-        if member is None and record.label:
-            raise Stuck(f"the method {record.label}.{name} called at line {line} is not defined in the class "
-                        f"{record.class_name}; this is not followed")
+        if member is None and record.label and not record.fields:
+            # the claim's `self` read as any object: a method its class does not define (inherited) is an
+            # opaque function of its arguments, as for any value whose methods the tool cannot see
+            return self.opaque(f"{record.label}.{name}", node, state, frame, prefix=())
+        if member is None:
+            raise Stuck(f"the method {record.class_name}.{name} called at line {line} is not defined in the "
+                        "class; this is not followed")
         reason = member.reason if member is not None and member.reason else (
             f"the method {record.class_name}.{name} called at line {line} is not followed")
         raise Stuck(reason)
