@@ -148,3 +148,14 @@ def test_unsupported_object_constructs_are_inconclusive_with_their_line(cli: Cli
         assert expected in str(claim["reason"]), (body, claim["reason"])
         if line:
             assert f"line {line}" in str(claim["reason"]), (body, claim["reason"])
+
+
+def test_a_class_whose_body_the_tool_does_not_follow_is_not_built(cli: Cli, tmp_path: Path) -> None:
+    """A method defined under `if` could replace another: the class is opaque, never guessed."""
+    (tmp_path / "gate.py").write_text(
+        "FAST = True\n\n\nclass Gate:\n    def __init__(self, x):\n        self.x = x\n\n"
+        "    def level(self):\n        return self.x\n\n    if FAST:\n        def level(self):\n"
+        "            return 2 * self.x\n\n\n# idealcheck: returns x\ndef read(x):\n    return Gate(x).level()\n")
+    claim = _claims(cli, tmp_path, "gate.py")[0]
+    assert claim["verdict"] == "inconclusive"
+    assert "opaque call gate.Gate(...) at line 18" in str(claim["reason"])

@@ -147,7 +147,10 @@ def read_class(module: ModuleInfo, name: str) -> ClassModel | None:
                 reason = reason or f"the class {name} defines {member}, which the tool does not follow"
             if member not in ("__init__", "__post_init__") and "staticmethod" not in names:
                 assigned |= _self_attributes(item)
-        elif isinstance(item, cst.SimpleStatementLine):
+        elif not isinstance(item, cst.SimpleStatementLine):  # `if FAST: def norm(...)`, a nested class
+            reason = reason or (f"the class {name} has a {type(item).__name__} statement in its body, which the "
+                                "tool does not follow")
+        else:
             for small in item.body:
                 if isinstance(small, cst.AnnAssign) and isinstance(small.target, cst.Name):
                     annotation = dotted(small.annotation.annotation) or ""
@@ -158,6 +161,11 @@ def read_class(module: ModuleInfo, name: str) -> ClassModel | None:
                 elif isinstance(small, cst.Assign) and len(small.targets) == 1 and isinstance(
                         small.targets[0].target, cst.Name):
                     constants[small.targets[0].target.value] = small.value
+    for member in set(constants) & (set(methods) | set(properties)):  # `norm = staticmethod(...)` after `def norm`
+        others[member] = f"{name}.{member} is bound more than once in the class body"
+        methods.pop(member, None)
+        properties.pop(member, None)
+        constants.pop(member, None)
     if is_dataclass and "__init__" in methods:
         reason = reason or f"the dataclass {name} defines its own __init__, which the tool does not follow"
     return ClassModel(name, module, node, methods, frozenset(static), properties, constants,
