@@ -133,6 +133,8 @@ UNSUPPORTED = [  # (the body after `p = Cell(x)` at line 8, the reason, the line
     ("d = {**{}, 'k': 1}\n    return d['k']", "a dict with `**` unpacking at line 9", 9),
     ("a, b = p\n    return a", "line 9", 9),
     ("return p + p", "line 9", 9),
+    ("f = lambda: p.x\n    p.x = 2\n    return f()", "reads p, which changed after the lambda was made", 11),
+    ("return helper(lambda: p.x)", "is given the function", 9),
 ]
 
 

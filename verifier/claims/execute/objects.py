@@ -9,7 +9,8 @@ when it changes, an object given to a function the tool cannot see into) stops t
 """
 from __future__ import annotations
 
-from verifier.claims.execute.calls import CallEvaluator, replace_object
+from verifier.claims.execute.calls import CallEvaluator
+from verifier.claims.execute.sharing import replace_object
 from verifier.claims.execute.expressions import Alternatives
 from verifier.claims.execute.scope import ConstructCallee, Member
 from verifier.claims.execute.state import Frame, State
