@@ -10,7 +10,8 @@ reason names the construct and its line.
 Modules, bottom to top: ``values`` and ``state`` (data), ``sharing`` (values shared between frames),
 ``scope`` (what front ends supply),
 ``arithmetic`` and ``functions`` (operations on values), ``expressions`` (values and tests of
-expressions), ``calls`` (callees, arguments, inlining), ``statements`` (the ``Executor``).
+expressions), ``calls`` (callees, arguments, inlining), ``objects`` (objects of classes, dicts),
+``statements`` (the ``Executor``).
 """
 from verifier.claims.execute.scope import (
     BuiltinCallee,
