@@ -20,6 +20,7 @@ from verifier.claims.expression import error_claim, expression_claims
 from verifier.claims.expr_parser import Nested
 from verifier.claims.language import ClaimSyntaxError, ParsedClaim, parse_claim_text
 from verifier.claims.execute import NONE, Executor, Outcome, Seq, State, Status, Value, first_unknown
+from verifier.claims.execute.values import Record
 from verifier.claims.frontends.python.modules import (
     FunctionRef,
     MemberImport,
@@ -28,6 +29,7 @@ from verifier.claims.frontends.python.modules import (
     ModuleLoader,
     parse_module_text,
 )
+from verifier.claims.frontends.python.receiver import method_receiver
 from verifier.claims.frontends.python.scope import PythonScope
 from verifier.claims.obligations import (
     MAX_OBLIGATIONS,
@@ -279,16 +281,17 @@ class _FileReader:
             other = self._find_function(parsed.other or "", self.module, 0, executor)
         others = [] if other is None else [_lowered(scope, other)]
         shapes, shape_notes = parameter_shapes(parsed, lowered, others)
-        outcomes = executor.run_function(lowered, shapes=shapes)
+        bindings, receiver_note = method_receiver(executor, scope, ref)
+        outcomes = executor.run_function(lowered, shapes=shapes, bindings=bindings)
         paths = self._returned(outcomes, name)
-        for note in shape_notes:
+        for note in shape_notes + ([receiver_note] if receiver_note else []):
             paths = [(state.with_note(note), value) for state, value in paths]
         obligations: list[Obligation] = []
         if "pi" in ref.positional_names():
             parsed = _pi_as_variable(parsed)  # a parameter named pi: the claim's pi is that parameter
         if parsed.form == "returns":
             # EXPR is in the parameters; a module-level constant it names means that constant's value
-            params = State(tuple((p, Var(p)) for p in ref.positional_names()))
+            params = State(tuple((p, bindings.get(p, Var(p))) for p in ref.positional_names()))
             constant = _constant_lookup(executor, scope, ref.module)
             target = _target_value(parsed, lambda side: substitute(side, params, constant))
             unknown = first_unknown(target)
@@ -308,7 +311,10 @@ class _FileReader:
             if len(mine) != len(theirs):
                 raise ClaimProblem("error", f"{name} takes {len(mine)} positional arguments, {other_name} takes "
                                              f"{len(theirs)}: `same as` compares them for the same arguments")
-            other_outcomes = executor.run_function(others[0], args=sequence_arguments(mine, shapes, executor))
+            arguments = sequence_arguments(mine, shapes, executor)
+            if bindings and other.class_name == ref.class_name and other.module is ref.module:
+                arguments = [bindings[mine[0]]] + list(arguments[1:])  # two methods of one object
+            other_outcomes = executor.run_function(others[0], args=arguments)
             other_paths = self._returned(other_outcomes, other_name)
             for state, value in paths:
                 for other_state, other_value in other_paths:
@@ -344,6 +350,8 @@ class _FileReader:
             if unknown is not None:
                 raise ClaimProblem("inconclusive", f"{name} returns a value the tool cannot follow: "
                                                     f"{unknown.reason}")
+            if isinstance(value, Record):
+                raise ClaimProblem("inconclusive", f"{name} returns a {value.class_name} object, not a number")
             if contains_none(value) and not state.conditions:  # on a branch: that branch must be impossible
                 raise ClaimProblem("inconclusive", f"{name} returns None on a path (no return statement "
                                                     "or `return None`), which is not a number")
@@ -436,7 +444,8 @@ class _FileReader:
         if key not in self._visits_cache:
             marks = frozenset(self.module.position(site.node) for site in self.sites if site.function == function)
             executor, scope = self._executor(marks)
-            outcomes = executor.run_function(_lowered(scope, function))
+            bindings, _ = method_receiver(executor, scope, function)
+            outcomes = executor.run_function(_lowered(scope, function), bindings=bindings)
             self._visits_cache[key] = (executor, scope, outcomes)
         return self._visits_cache[key]
 

@@ -9,7 +9,7 @@ import re
 from collections.abc import Callable
 
 from verifier.claims.execute import Seq, State, Unknown, Value
-from verifier.claims.execute.values import as_expr
+from verifier.claims.execute.values import Record, as_expr
 from verifier.claims.obligations import ClaimProblem
 from verifier.model.claim import Condition
 from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
@@ -62,6 +62,11 @@ def _component(value: Value, suffix: str) -> Value | None:
         return Var(value.name + suffix)
     if isinstance(value, Opaque):
         return Opaque(value.name + suffix, value.args)
+    if isinstance(value, Record) and value.cls is not None and suffix.startswith("."):
+        held = value.get(suffix[1:])  # an attribute of the claim's `self`, as the code builds it
+        if held is not None:
+            return held
+        return Var(value.label + suffix) if value.label else None
     return None
 
 

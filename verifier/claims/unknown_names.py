@@ -101,12 +101,32 @@ def _unknown(parsed: ParsedClaim, known: set[str]) -> list[str]:
     return [name for name in dict.fromkeys(used) if name not in known and name not in given]
 
 
-def _message(unknown: list[str], what: str, candidates: list[str]) -> str:
+def _stored_by_init(tree: ast.Module, function: ast.FunctionDef | ast.AsyncFunctionDef) -> dict[str, str]:
+    """For a method: the parameters of its class's ``__init__`` stored unchanged, ``self.x = x`` (by name)."""
+    for cls in (n for n in ast.walk(tree) if isinstance(n, ast.ClassDef)):
+        if function not in cls.body:
+            continue
+        init = next((n for n in cls.body if isinstance(n, _FUNCTIONS) and n.name == "__init__"), None)
+        receiver = _parameters(init)[0] if init is not None and _parameters(init) else None
+        stored: dict[str, str] = {}
+        for stmt in init.body if init is not None else []:
+            if isinstance(stmt, ast.Assign) and isinstance(stmt.value, ast.Name):
+                for target in stmt.targets:
+                    if (isinstance(target, ast.Attribute) and isinstance(target.value, ast.Name)
+                            and target.value.id == receiver):
+                        stored.setdefault(stmt.value.id, f"{receiver}.{target.attr}")
+        return stored
+    return {}
+
+
+def _message(unknown: list[str], what: str, candidates: list[str], stored: dict[str, str] | None = None) -> str:
     first = unknown[0]
     names = ", ".join(f"`{n}`" for n in unknown)
     noun = "name" if len(unknown) == 1 else "names"
     close = difflib.get_close_matches(first, candidates, n=1)
     hint = f"did you mean `{close[0]}`? " if close else ""
+    if stored and first in stored:  # a claim on a method names the object's attributes
+        hint = f"`__init__` stores `{first}` as `{stored[first]}`: write `{stored[first]}`; "
     listed = ", ".join(sorted(candidates)[:12]) or "none"
     return (f"unknown {noun} {names} in the claim: not {what} ({listed}), nor a module-level name, nor "
             f"introduced by a `given` condition; {hint}fix the spelling, or define it with "
@@ -143,7 +163,9 @@ def flag_unknown_names(path: str, text: str, claims: list[Claim], comments: list
                 continue
             local = _parameters(function)
             what = f"a parameter of `{function.name}`"
+            stored = _stored_by_init(tree, function)
         elif parsed.form == "statement":
+            stored = {}
             around = _enclosing(functions, comment.line)
             if not around:
                 continue
@@ -155,7 +177,7 @@ def flag_unknown_names(path: str, text: str, claims: list[Claim], comments: list
         unknown = _unknown(parsed, set(local) | module_names)
         if unknown:
             flagged[claim.id] = replace(claim, obligations=(),
-                                        problem=Problem("error", _message(unknown, what, local)))
+                                        problem=Problem("error", _message(unknown, what, local, stored)))
     return [flagged.get(c.id, c) for c in claims]
 
 

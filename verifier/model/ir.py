@@ -24,7 +24,8 @@ How constructs of the front-end languages map onto the IR (the front end does th
   expression of the body, or of each branch of a final ``if``) lower to ``Return(expr)``.
 - Struct fields ``q.w`` / ``q->w`` / ``q%w``: reading is ``Field(Name("q"), "w")``; writing is
   ``ToField("q", "w")`` (nested ``q.a.b`` is ``ToField("q.a", "b")``).  A field that was never written
-  reads as the variable ``q.w`` (the claim language spells it so).
+  reads as the variable ``q.w`` (the claim language spells it so).  Python ``obj.attr = v`` is
+  ``ToField("obj", "attr")``: it changes an object of the project's classes.  Dict keys: ``ir_keys.py``.
 - Arrays: reading ``v[i]`` is ``Element(Name("v"), (i,))``; ``a[i][j]`` and Fortran ``a(i, j)`` are
   ``Element(Element(a, (i,)), (j,))`` so that reads see ``ToElement`` writes (numpy ``a[i, j]`` is
   ``Element(a, (i, j))``).  Indices must evaluate
@@ -64,6 +65,7 @@ from typing import Union
 from verifier.model.expr import BinOp, Call, Neg, Num, Opaque, Pow, Var
 from verifier.model.ir_ints import IntegerBinary, ToInteger  # integer kinds of kernel code: see that module
 from verifier.model.ir_places import AddressOf, Aggregate, Load, Place, Store  # kernel places: see that module
+from verifier.model.ir_keys import Text
 
 # ---------------------------------------------------------------- kinds
 
@@ -279,7 +281,7 @@ Expr = Union[
     Num, Var, BinOp, Neg, Pow, Call, Opaque,
     # IR nodes
     Name, NoValue, Binary, Unary, Compare, Logical, Conditional, Element, Slice, Field, Sequence, Invoke,
-    Unsupported, Load, AddressOf, Aggregate, IntegerBinary, ToInteger,
+    Text, Unsupported, Load, AddressOf, Aggregate, IntegerBinary, ToInteger,
 ]
 
 # ---------------------------------------------------------------- assignment targets
@@ -490,7 +492,7 @@ class Function:
 __all__ = [
     "ParameterKind", "Binding", "SequenceKind", "Star",
     "Name", "NoValue", "Binary", "Unary", "Compare", "Logical", "Conditional", "Element", "Slice", "Field",
-    "Sequence", "Argument", "Invoke", "Unsupported", "Expr",
+    "Sequence", "Text", "Argument", "Invoke", "Unsupported", "Expr",
     "ToLocal", "ToElement", "ToField", "ToOut", "Unpack", "Target",
     "Assign", "Append", "Evaluate", "If", "ForEach", "CountedLoop", "Return", "Break", "Continue", "Raise",
     "Statement", "Parameter", "Function",

@@ -7,9 +7,11 @@ else is an opaque value.  Unsupported expressions give an ``Unknown`` value that
 used (returned, tested, claimed); unsupported statements stop their path with a reason.  Either way the
 reason names the construct and its line.
 
-Modules, bottom to top: ``values`` and ``state`` (data), ``scope`` (what front ends supply),
+Modules, bottom to top: ``values`` and ``state`` (data), ``sharing`` (values shared between frames),
+``scope`` (what front ends supply),
 ``arithmetic`` and ``functions`` (operations on values), ``expressions`` (values and tests of
-expressions), ``calls`` (callees, arguments, inlining), ``statements`` (the ``Executor``).
+expressions), ``calls`` (callees, arguments, inlining), ``objects`` (objects of classes, dicts),
+``statements`` (the ``Executor``).
 """
 from verifier.claims.execute.scope import (
     BuiltinCallee,

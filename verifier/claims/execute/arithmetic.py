@@ -6,7 +6,9 @@ from fractions import Fraction
 from verifier.claims.execute.values import (
     ARRAY,
     LIST,
+    FunctionValue,
     NoneValue,
+    Record,
     Seq,
     Unknown,
     Value,
@@ -76,6 +78,10 @@ class Arithmetic:
             return self._sequence_arithmetic(op, left, right, line)
         if isinstance(left, NoneValue) or isinstance(right, NoneValue):
             return Unknown(f"arithmetic with None at line {line}")
+        if isinstance(left, Record) or isinstance(right, Record):
+            return Unknown(f"`{op}` on an object or dict at line {line} is not supported")
+        if isinstance(left, FunctionValue) or isinstance(right, FunctionValue):
+            return Unknown(f"`{op}` on a function at line {line} is not supported")
         a, b = as_expr(left), as_expr(right)
         if a is None or b is None:  # a struct or array of kernel code (values.Compound)
             return Unknown(f"an array, struct or pointer is used as a number at line {line}")

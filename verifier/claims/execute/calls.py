@@ -2,6 +2,7 @@
 from __future__ import annotations
 
 from collections.abc import Sequence
+from dataclasses import dataclass
 
 from verifier.claims.execute.arrays import ROUTED, array_method, harmless_keywords
 from verifier.claims.execute.expressions import Alternatives, Evaluator
@@ -10,16 +11,20 @@ from verifier.claims.execute.piecewise import PIECEWISE, pieces
 from verifier.claims.execute.scope import (
     BuiltinCallee,
     Callee,
+    ConstructCallee,
     InlineCallee,
     MathCallee,
     MethodCallee,
     OpaqueCallee,
     UnknownCallee,
 )
+from verifier.claims.execute.sharing import adopted, current, fields_written, replace_object, writes_attributes
 from verifier.claims.execute.state import Frame, Outcome, State, Status
 from verifier.claims.execute.values import (
     ARRAY,
     NONE,
+    FunctionValue,
+    Record,
     Seq,
     Stuck,
     Unknown,
@@ -27,6 +32,7 @@ from verifier.claims.execute.values import (
     as_expr,
 )
 from verifier.model import ir
+from verifier.model.ir_keys import DICT_LITERAL, LAMBDA_PREFIX
 from verifier.model.expr import Expr, Opaque, Var
 
 Arguments = list[tuple[State, list[Value], dict[str, Value]]]
@@ -50,6 +56,13 @@ def _noted(state: State, value: Value, line: int) -> tuple[State, Value]:
     note = opaque_note(value, line)
     return (state.with_note(note) if note else state), value
 
+@dataclass(frozen=True)
+class FunctionCallee:
+    """A local or global holding a function value: called by inlining it."""
+
+    value: FunctionValue
+
+
 _RUNNING, _ITEM = "\0running", "\0item"  # names of reduce's step call
 
 
@@ -59,7 +72,18 @@ class CallEvaluator(Evaluator):
     def exec_block(self, statements: Sequence[ir.Statement], states: list[State], frame: Frame) -> list[Outcome]:
         raise NotImplementedError  # Executor
 
-    def resolve(self, node: ir.Invoke, state: State, frame: Frame) -> Callee:
+    def construct(self, callee: ConstructCallee, node: ir.Invoke, state: State, frame: Frame,
+                  label: str = "") -> list[tuple[State, Record]]:
+        raise NotImplementedError  # ObjectCalls
+
+    def object_method(self, record: Record, node: ir.Invoke, name: str, state: State, frame: Frame
+                      ) -> Alternatives:
+        raise NotImplementedError  # ObjectCalls
+
+    def mapping(self, node: ir.Invoke, state: State, frame: Frame) -> Alternatives:
+        raise NotImplementedError  # ObjectCalls
+
+    def resolve(self, node: ir.Invoke, state: State, frame: Frame) -> Callee | FunctionCallee:
         """What ``node`` calls; a name bound on the path is a local value, which is not called."""
         line = node.line
         if isinstance(node.callee, ir.Name):
@@ -70,6 +94,12 @@ class CallEvaluator(Evaluator):
                 # a function passed as a parameter: any pure function, the same arguments give the same value;
                 # named apart from module functions of the same name, which are other functions
                 return OpaqueCallee(f"{PARAMETER_FUNCTION}{bound.name}")
+            if bound is None and node.callee.name.startswith(LAMBDA_PREFIX):  # `(lambda t: ...)(x)`, reduce
+                bound = self.name_value(node.callee.name, state, frame, line)
+            if isinstance(bound, FunctionValue):
+                return FunctionCallee(bound)
+            if isinstance(bound, Record):
+                return UnknownCallee(f"calling the object {node.callee.name} at line {line} is not supported")
             if bound is not None:
                 return UnknownCallee(f"calling the local value {node.callee.name} at line {line} is not supported")
         return self.scope.callee(self, frame.module, frame.function, node.callee,
@@ -77,6 +107,8 @@ class CallEvaluator(Evaluator):
 
     def call(self, node: ir.Invoke, state: State, frame: Frame, iterable: bool) -> Alternatives:
         line = node.line
+        if isinstance(node.callee, ir.Name) and node.callee.name == DICT_LITERAL:
+            return self.mapping(node, state, frame)
         callee = self.resolve(node, state, frame)
         if isinstance(callee, BuiltinCallee):
             if callee.name in PIECEWISE:
@@ -85,11 +117,15 @@ class CallEvaluator(Evaluator):
                     for after, args, keywords in self.arguments(node, state, frame)]
         if isinstance(callee, MathCallee):
             return self._math_call(callee.name, node, state, frame)
+        if isinstance(callee, FunctionCallee):
+            return self.call_function_value(callee.value, node, state, frame)
         if isinstance(callee, InlineCallee):
             receiver = state.get(callee.receiver) if callee.receiver is not None else None
             return self.inline(callee.function, node, state, frame, receiver)
         if isinstance(callee, MethodCallee):
             return self._method_call(callee, node, state, frame)
+        if isinstance(callee, ConstructCallee):
+            return [(after, record) for after, record in self.construct(callee, node, state, frame)]
         if isinstance(callee, UnknownCallee):
             return [(state, Unknown(callee.reason))]
         routed = ROUTED.get(callee.name)  # np.linalg.norm, functools.reduce: known, not opaque
@@ -131,7 +167,9 @@ class CallEvaluator(Evaluator):
         for after, receiver in self.evaluate(callee.receiver, state, frame):
             expr = as_expr(receiver)
             numpy_name = array_method(callee.name, receiver, {}) if isinstance(receiver, Seq) else None
-            if numpy_name is not None:
+            if isinstance(receiver, Record):
+                result.extend(self.object_method(receiver, node, callee.name, after, frame))
+            elif numpy_name is not None and isinstance(receiver, Seq):
                 result.extend(alternative for s, args, keywords in self.arguments(node, after, frame)
                               for alternative in self._math_of(numpy_name, [receiver] + args, keywords, s, frame,
                                                                node.line))
@@ -182,8 +220,15 @@ class CallEvaluator(Evaluator):
             if keywords:
                 full_name += "[" + ",".join(f"{k}=" for k in sorted(keywords)) + "]"
                 values += [keywords[k] for k in sorted(keywords)]
+            if any(isinstance(v, Record) for v in values):
+                raise Stuck(f"the call {name}(...) at line {line} is given an object or dict, which a function "
+                            "the tool cannot see into may change; this is not followed")
             exprs = [as_expr(v) for v in values]
             bad = next((v for v, e in zip(values, exprs) if e is None), None)
+            if isinstance(bad, FunctionValue):
+                result.append((after, Unknown(f"the call {name}(...) at line {line} is given the function "
+                                              f"{bad.function.name}, and the tool cannot see what it does with it")))
+                continue
             if bad is not None:
                 reason = bad.reason if isinstance(bad, Unknown) else (
                     f"the call {name}(...) at line {line} passes a tuple, list or None to a function the tool "
@@ -252,8 +297,23 @@ class CallEvaluator(Evaluator):
 
     # -- inlining
 
+    def call_function_value(self, value: FunctionValue, node: ir.Invoke, state: State, frame: Frame
+                            ) -> Alternatives:
+        """A function passed around as a value: inlined; a lambda with the locals it captured, which must be
+        the ones its maker still has (Python reads them when the lambda runs)."""
+        current(value, state, frame, node.line)
+        return [(back, result) for back, result, _ in
+                self.inline_paths(value.function, node, state, frame, None, value.captured)]
+
     def inline(self, function: ir.Function, node: ir.Invoke, state: State, frame: Frame,
                receiver: Value | None) -> Alternatives:
+        return [(back, value) for back, value, _ in self.inline_paths(function, node, state, frame, receiver)]
+
+    def inline_paths(self, function: ir.Function, node: ir.Invoke, state: State, frame: Frame,
+                     receiver: Value | None, captured: tuple[tuple[str, Value], ...] = ()
+                     ) -> list[tuple[State, Value, State]]:
+        """Every (caller's path after the call, returned value, the callee's final path) of an inlined call;
+        objects passed in come back changed as the callee left them."""
         line = node.line
         if function.key in frame.stack:
             raise Stuck(f"the recursive call of {function.name} at line {line} is not supported")
@@ -266,25 +326,52 @@ class CallEvaluator(Evaluator):
         note = f"inlined {function.name} from {function.module}"
         if note not in self.inlined:
             self.inlined.append(note)
-        callee = Frame(function.module, function, frame.depth + 1, frame.stack + (function.key,), self.new_ident())
-        result: Alternatives = []
+        fields_written(node, state, line)
+        result: list[tuple[State, Value, State]] = []
         for after, positional, keywords in self.arguments(node, state, frame):
             if receiver is not None:
                 positional = [receiver] + positional
+            for given in positional + list(keywords.values()):
+                if isinstance(given, FunctionValue):
+                    current(given, after, frame, line)  # a lambda handed on sees its maker's locals as they are
+            passed = [v for v in positional + list(keywords.values()) if isinstance(v, Record)]
+            callee = Frame(function.module, function, frame.depth + 1, frame.stack + (function.key,),
+                           self.new_ident(), objects=frozenset(r.ident for r in passed))
             start = self.bind_arguments(function, positional, keywords,
-                                        State((), after.conditions, after.notes), line)
+                                        State(captured, after.conditions, after.notes), line)
             for outcome in self.exec_block(function.body, [start], callee):
                 back = State(after.env, outcome.state.conditions, outcome.state.notes)
                 if outcome.status in (Status.RETURN, Status.NEXT):
                     back = self._outputs_back(function, node, outcome.state, back, frame)
+                    back = self._objects_back(function, passed, outcome.state, back, frame, line)
                 if outcome.status is Status.RETURN:
-                    result.append((back, outcome.value if outcome.value is not None else NONE))
+                    value = adopted(outcome.value, callee.ident, frame.ident) if outcome.value is not None else NONE
+                    result.append((back, value, outcome.state))
                 elif outcome.status is Status.NEXT:
-                    result.append((back, NONE))
+                    result.append((back, NONE, outcome.state))
                 elif outcome.status is Status.STUCK:
                     raise Stuck(f"{outcome.reason} (in {function.name} of {function.module}, called at line {line})")
                 # RAISE: this path of the caller raises too and returns nothing
         return result
+
+    def _objects_back(self, function: ir.Function, passed: list[Record], inside: State, back: State, frame: Frame,
+                      line: int) -> State:
+        """The objects a call was given, as the callee left them, for every local of the caller holding them;
+        attributes the callee wrote on a parameter that is no object of the project are not followed."""
+        for name, value in inside.env:
+            head = name.split(".", 1)[0]
+            if "." in name and any(p.name == head for p in function.parameters):
+                raise Stuck(f"{function.name} (called at line {line}) assigns the attribute {name} of its "
+                            "argument, which is not an object the tool follows")
+        for record in passed:
+            final = next((v for _, v in inside.env if isinstance(v, Record) and v.ident == record.ident), None)
+            if final is None:
+                if writes_attributes(function.body):
+                    raise Stuck(f"{function.name} (called at line {line}) may change the object it was given "
+                                "and then stop holding it; this is not followed")
+            elif final != record:
+                back = replace_object(back, final, frame, line)
+        return back
 
     def _outputs_back(self, function: ir.Function, node: ir.Invoke, inside: State, back: State,
                       frame: Frame) -> State:

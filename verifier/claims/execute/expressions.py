@@ -19,6 +19,8 @@ from verifier.claims.execute.values import (
     NoneValue,
     Seq,
     Stuck,
+    FunctionValue,
+    Record,
     Unknown,
     Value,
     as_expr,
@@ -100,7 +102,9 @@ class Evaluator(Functions):
             result = []
             for s1, left in self.evaluate(node.left, state, frame):
                 for s2, right in self.evaluate(node.right, s1, frame):
-                    if node.op in ARITHMETIC:
+                    if isinstance(left, Record) or isinstance(right, Record):
+                        result.extend(self.object_operator(node, left, right, s2, frame))
+                    elif node.op in ARITHMETIC:
                         result.append((s2, self.binary(node.op, left, right, node.line)))
                     else:
                         value = self.other_binary(node.op, left, right, node.line)
@@ -108,8 +112,13 @@ class Evaluator(Functions):
                         result.append((s2.with_note(note) if note else s2, value))
             return result
         if isinstance(node, ir.Unary):
-            return [(s1, self.bounded(self.unary(node.op, operand, node.line), node.line))
-                    for s1, operand in self.evaluate(node.operand, state, frame)]
+            result = []
+            for s1, operand in self.evaluate(node.operand, state, frame):
+                if isinstance(operand, Record) and node.op in ("-", "+"):
+                    result.extend(self.object_operator(node, operand, None, s1, frame))
+                else:
+                    result.append((s1, self.bounded(self.unary(node.op, operand, node.line), node.line)))
+            return result
         if isinstance(node, ir.Conditional):
             result = []
             for s in self.truth(node.test, state, frame, True):
@@ -126,13 +135,15 @@ class Evaluator(Functions):
         if isinstance(node, (ir.IntegerBinary, ir.ToInteger)):
             operands = (node.left, node.right) if isinstance(node, ir.IntegerBinary) else (node.operand,)
             paths: list[tuple[State, list[Value]]] = [(state, [])]
-            for operand in operands:
-                paths = [(s2, values + [v]) for s1, values in paths for s2, v in self.evaluate(operand, s1, frame)]
+            for part in operands:
+                paths = [(s2, values + [v]) for s1, values in paths for s2, v in self.evaluate(part, s1, frame)]
             return [(after, integer_value(node, values)) for after, values in paths]
         if isinstance(node, ir.Aggregate):
             built = self._sequence(ir.Sequence(node.items, line=node.line), state, frame)
             return [(after, places.aggregate(node, value.items)) for after, value in built
                     if isinstance(value, Seq)]
+        if isinstance(node, ir.Text):
+            return [(state, Unknown(f"a string at line {node.line} is not supported"))]
         if isinstance(node, ir.Invoke):
             return self.call(node, state, frame, iterable)
         if isinstance(node, ir.Compare):  # a value: 1 where it holds, 0 where not (Python's True/False)
@@ -147,11 +158,26 @@ class Evaluator(Functions):
             return [(state, Unknown(f"`{node.op}` used as a value at line {node.line} is not supported"))]
         return [(state, Unknown(unsupported_reason(node)))]
 
+    # objects and dicts (``objects.py``)
+
+    def object_field(self, record: Record, node: ir.Field, state: State, frame: Frame) -> Alternatives:
+        raise NotImplementedError  # ObjectCalls
+
+    def object_operator(self, node: ir.Binary | ir.Unary, left: Value, right: Value | None, state: State,
+                        frame: Frame) -> Alternatives:
+        raise NotImplementedError  # ObjectCalls
+
+    def dict_item(self, record: Record, index: Value | ir.Text, state: State, line: int) -> Value:
+        raise NotImplementedError  # ObjectCalls
+
     def name_value(self, name: str, state: State, frame: Frame, line: int) -> Value:
         bound = state.get(name)
         if bound is not None:
             return bound
-        return self.scope.global_value(self, frame.module, name, line)
+        value = self.scope.global_value(self, frame.module, name, line)
+        if isinstance(value, FunctionValue) and value.closure:  # a lambda sees the locals where it is made
+            return FunctionValue(value.function, tuple(state.env), frame.ident)
+        return value
 
     def _field(self, node: ir.Field, state: State, frame: Frame) -> Alternatives:
         line = node.line
@@ -169,7 +195,9 @@ class Evaluator(Functions):
             return [(state, written)]
         result: Alternatives = []
         for after, base in self.evaluate(node.base, state, frame):
-            if isinstance(base, Var):
+            if isinstance(base, Record):
+                result.extend(self.object_field(base, node, after, frame))
+            elif isinstance(base, Var):
                 result.append((after, Var(f"{base.name}.{node.name}")))
             elif isinstance(base, Opaque):
                 result.append((after, Opaque(f"{base.name}.{node.name}", base.args)))
@@ -189,9 +217,14 @@ class Evaluator(Functions):
                 result.append((after, base))
             elif len(node.indices) != 1:
                 result.append((after, self._multi_index(base, node, after, frame)))
+            elif isinstance(base, Record) and isinstance(node.indices[0], ir.Text):
+                result.append((after, self.dict_item(base, node.indices[0], after, line)))
             else:
                 for after2, index in self.evaluate(node.indices[0], after, frame):
-                    result.append((after2, self._item(base, int_of(index), after2, line)))
+                    if isinstance(base, Record):
+                        result.append((after2, self.dict_item(base, index, after2, line)))
+                    else:
+                        result.append((after2, self._item(base, int_of(index), after2, line)))
         return result
 
     def _item(self, base: Value, i: int | None, state: State, line: int) -> Value:
@@ -300,6 +333,12 @@ class Evaluator(Functions):
             return [state] if bool(value.items) == want else []
         if isinstance(value, Compound):
             raise Stuck(f"the test at line {line} uses an array, struct or pointer as a number")
+        if isinstance(value, FunctionValue):
+            return [state] if want else []
+        if isinstance(value, Record):  # an object is true unless its class says otherwise; a dict by its entries
+            if value.cls is not None:
+                raise Stuck(f"the truth of an object at line {line} is not followed")
+            return [state] if bool(value.fields) == want else []
         return self.relation(value, "!=" if want else "==", Num(Fraction(0)), state, line)
 
     def _compare_chain(self, node: ir.Compare, state: State, frame: Frame, want: bool) -> list[State]:

@@ -56,13 +56,37 @@ class OpaqueCallee:
 
 
 @dataclass(frozen=True)
+class ConstructCallee:
+    """A class of the project called to build an object: a fresh object of ``cls`` (module path, class
+    name) passed as the receiver of ``init`` (its ``__init__``, or the one a dataclass generates; None when
+    the class has neither), whose attributes afterwards are the object."""
+
+    cls: tuple[str, str]
+    init: ir.Function | None
+
+
+@dataclass(frozen=True)
 class UnknownCallee:
     """A callee that is not followed: the call's value is unknown for ``reason``."""
 
     reason: str
 
 
-Callee = Union[InlineCallee, MathCallee, BuiltinCallee, MethodCallee, OpaqueCallee, UnknownCallee]
+Callee = Union[InlineCallee, MathCallee, BuiltinCallee, MethodCallee, OpaqueCallee, ConstructCallee, UnknownCallee]
+
+
+@dataclass(frozen=True)
+class Member:
+    """What ``obj.name`` is on an object of a class when the object holds no attribute ``name``.
+
+    ``kind``: ``method`` (``function`` called with the object first), ``property`` (``function`` called
+    with the object on reading), ``constant`` (a class-level value), ``unknown`` (``reason`` says why it
+    is not followed)."""
+
+    kind: str
+    function: ir.Function | None = None
+    value: Value | None = None
+    reason: str = ""
 
 
 # ---------------------------------------------------------------- the front end's side
@@ -83,6 +107,10 @@ IsBound = Callable[[str], bool]  # whether a name is a local or parameter bound 
 
 
 class Scope(Protocol):
+    """A language with classes also offers ``class_member(host, cls, name, line) -> Member | None``: the
+    member ``name`` of the class ``cls`` (module path, class name) that is not an attribute of the object
+    itself, None when the class does not define it (optional: without it no object has members)."""
+
     def global_value(self, host: Host, module: str, name: str, line: int) -> Value:
         """The value of ``name`` used in ``module`` and not bound on the path."""
         ...

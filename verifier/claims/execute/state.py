@@ -133,3 +133,4 @@ class Frame:
     stack: tuple[tuple[str, str], ...]
     ident: int
     loops: tuple[tuple[int, int], ...] = ()
+    objects: frozenset[int] = frozenset()  # objects passed in whose changes go back to the caller

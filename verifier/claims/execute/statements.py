@@ -6,7 +6,8 @@ from fractions import Fraction
 
 from verifier.claims.execute import places
 from verifier.claims.execute.arrays import replaced_slice, slice_positions
-from verifier.claims.execute.calls import OUTPUT_KINDS, CallEvaluator
+from verifier.claims.execute.calls import OUTPUT_KINDS
+from verifier.claims.execute.objects import ObjectCalls, field_name, key_of
 from verifier.claims.execute.expressions import unsupported_reason
 from verifier.claims.execute.sequences import Shape, parameter_sequence
 from verifier.claims.execute.state import Frame, Outcome, State, Status, Visit
@@ -15,6 +16,7 @@ from verifier.claims.execute.values import (
     Compound,
     MUTABLE,
     NONE,
+    Record,
     Seq,
     Stuck,
     Unknown,
@@ -30,17 +32,18 @@ ELEMENT_KINDS = (ir.ParameterKind.ARRAY, ir.ParameterKind.OUT, ir.ParameterKind.
 _LOOP_ENDS = {Status.NEXT: "next", Status.CONTINUE: "next", Status.BREAK: "break"}
 
 
-class Executor(CallEvaluator):
+class Executor(ObjectCalls):
     """Runs functions symbolically; one executor per claim (it collects the claim's dependencies)."""
 
     def run_function(self, function: ir.Function, args: Sequence[Value] | None = None,
-                     conditions: tuple[Condition, ...] = (), shapes: Mapping[str, Shape] | None = None
-                     ) -> list[Outcome]:
+                     conditions: tuple[Condition, ...] = (), shapes: Mapping[str, Shape] | None = None,
+                     bindings: Mapping[str, Value] | None = None) -> list[Outcome]:
         """Execute ``function`` at the top level: parameters are variables named after them unless ``args``
         gives values (a parameter with a shape in ``shapes`` is an array of variables ``q[0]``, ...).
         Returns the outcomes of every path (RETURN, RAISE, STUCK, or NEXT for falling off the end); the values assigned at ``marks`` are collected in ``visits``."""
         self.depend(function.module)
-        frame = Frame(function.module, function, 0, (function.key,), self.new_ident())
+        objects = frozenset(v.ident for v in (bindings or {}).values() if isinstance(v, Record))
+        frame = Frame(function.module, function, 0, (function.key,), self.new_ident(), objects=objects)
         if args is None:
             state = State((), conditions)
             for param in function.parameters:
@@ -48,6 +51,7 @@ class Executor(CallEvaluator):
                     shape = (shapes or {}).get(param.name)
                     value = (parameter_sequence(param.name, shape, iter(self.new_ident, -1), frame.ident)
                              if shape else Var(param.name))
+                    value = (bindings or {}).get(param.name, value)  # the claim's `self` of a method
                     state = state.bind(param.name, value)
             for param in function.parameters:
                 if param.binding in (ir.Binding.VARIADIC, ir.Binding.VARIADIC_KEYWORD):
@@ -206,6 +210,9 @@ class Executor(CallEvaluator):
         if isinstance(target, (ir.ToLocal, ir.ToOut)):
             return state.bind(target.name, value)
         if isinstance(target, ir.ToField):
+            held = state.get(target.base)
+            if isinstance(held, Record):
+                return self.set_field(target.base, held, target.field, value, state, frame, line)
             return state.bind(f"{target.base}.{target.field}", value)
         if isinstance(target, ir.Store):
             return self.store_place(target.place, value, state, frame)
@@ -242,6 +249,14 @@ class Executor(CallEvaluator):
             if isinstance(updated, Unknown):
                 raise Stuck(updated.reason)
             return self._replace_list(state, current, updated, frame, line)
+        if isinstance(current, Record) and current.cls is None:  # d["X"] = value on a dict
+            key = key_of(part) if isinstance(part, ir.Text) else None
+            if key is None:
+                alternatives = self.evaluate(part, state, frame)
+                key = key_of(alternatives[0][1]) if len(alternatives) == 1 else None
+            if key is None:
+                raise Stuck(f"assignment to a dict entry whose key is not a constant at line {line}")
+            return self.set_field(target.name, current, field_name(key), value, state, frame, line)
         index = self.constant_index(target.indices[0], state, frame)
         if isinstance(current, Seq) and current.kind in MUTABLE and index is not None:
             items = list(current.items)

@@ -5,7 +5,7 @@ from dataclasses import dataclass
 from typing import Union
 
 from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
-from verifier.model.ir import SequenceKind
+from verifier.model.ir import Function, SequenceKind
 
 TUPLE, LIST, ARRAY = SequenceKind.TUPLE, SequenceKind.LIST, SequenceKind.ARRAY
 MUTABLE = (LIST, ARRAY)
@@ -30,6 +30,47 @@ class Seq:
     kind: SequenceKind = SequenceKind.TUPLE
     ident: int = 0
     owner: int = 0
+
+
+@dataclass(frozen=True)
+class Record:
+    """An object of a class of the scanned project (``cls`` = (module path, class name)) or, with ``cls``
+    None, a dict with constant keys; ``fields`` are its attributes (keys) in the order they were set.
+
+    ``ident`` tells objects apart (Python objects are shared by reference: every local holding the same
+    ident sees a change); ``owner`` is the frame that created it; ``label`` names it in variables of
+    attributes it does not hold (``self.x`` for the receiver of a claim on a method).
+    """
+
+    cls: tuple[str, str] | None
+    fields: tuple[tuple[str, "Value"], ...]
+    ident: int = 0
+    owner: int = 0
+    label: str = ""
+
+    def get(self, name: str) -> "Value | None":
+        return next((value for key, value in self.fields if key == name), None)
+
+    def with_field(self, name: str, value: "Value") -> "Record":
+        fields = tuple((k, v) for k, v in self.fields if k != name) + ((name, value),)
+        return Record(self.cls, fields, self.ident, self.owner, self.label)
+
+    @property
+    def class_name(self) -> str:
+        return self.cls[1] if self.cls is not None else "dict"
+
+
+@dataclass(frozen=True)
+class FunctionValue:
+    """A function used as a value (a module function, a lambda): calling it inlines ``function``.
+
+    A lambda sees the locals of the function that made it: ``captured`` are they, as they were when it was
+    made, and ``frame`` that function's frame (0 for a module function, which captures nothing)."""
+
+    function: Function
+    captured: tuple[tuple[str, "Value"], ...] = ()
+    frame: int = 0
+    closure: bool = False  # a lambda: captures the locals where its value is taken
 
 
 @dataclass(frozen=True)
@@ -61,7 +102,7 @@ class Compound:
         return [key for key, _ in self.items]
 
 
-Value = Union[Num, Var, BinOp, Neg, Pow, Call, Opaque, Unknown, Seq, NoneValue, Compound]
+Value = Union[Num, Var, BinOp, Neg, Pow, Call, Opaque, Unknown, Seq, Record, FunctionValue, NoneValue, Compound]
 EXPR_TYPES = (Num, Var, BinOp, Neg, Pow, Call, Opaque)
 
 
@@ -104,12 +145,25 @@ def is_array(value: object) -> bool:
     return isinstance(value, Seq) and value.kind is ARRAY
 
 
+def holds_object(value: Value, ident: int) -> bool:
+    """Whether ``value`` holds the object or dict ``ident`` inside it (an item or an attribute, any depth)."""
+    inner: tuple[Value, ...] = ()
+    if isinstance(value, Seq):
+        inner = value.items
+    elif isinstance(value, Record):
+        inner = tuple(v for _, v in value.fields)
+    return any((isinstance(i, Record) and i.ident == ident) or holds_object(i, ident) for i in inner)
+
+
 def contains_list(value: Value, ident: int) -> bool:
     """Whether ``value`` holds (at any depth) the mutable sequence ``ident``."""
+    inner: tuple[Value, ...] = ()
     if isinstance(value, Seq):
-        return any((isinstance(i, Seq) and i.kind in MUTABLE and i.ident == ident) or contains_list(i, ident)
-                   for i in value.items)
-    return False
+        inner = value.items
+    elif isinstance(value, Record):  # a list held by an object's attribute or a dict entry
+        inner = tuple(v for _, v in value.fields)
+    return any((isinstance(i, Seq) and i.kind in MUTABLE and i.ident == ident) or contains_list(i, ident)
+               for i in inner)
 
 
 class Stuck(Exception):

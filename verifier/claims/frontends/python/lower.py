@@ -13,6 +13,7 @@ import libcst as cst
 
 from verifier.claims.frontends.python.modules import ModuleInfo, dotted
 from verifier.model import ir
+from verifier.model.ir_keys import DICT_LITERAL, LAMBDA_PREFIX
 from verifier.model.expr import Num
 
 _BINARY: dict[type, str] = {
@@ -54,6 +55,14 @@ def spelling(node: cst.BaseExpression) -> str:
         return cst.Module(body=[]).code_for_node(node)
     except Exception:  # pragma: no cover - printing is best effort
         return type(node).__name__
+
+
+def string_key(node: cst.BaseExpression) -> str | None:
+    """The text of a plain string literal (no f-string, no bytes), or None."""
+    if isinstance(node, cst.SimpleString):
+        value = node.evaluated_value
+        return value if isinstance(value, str) else None
+    return None
 
 
 def is_generator(node: cst.FunctionDef) -> bool:
@@ -210,7 +219,9 @@ class Lowering:
             indices = (self._target_index(node.value), self._target_index(node))
             return ir.ToElement(node.value.value.value, indices, line, column)
         if isinstance(node, cst.Attribute):
-            return ir.Unsupported("attribute assignment", line, column)
+            if isinstance(node.value, cst.Name):
+                return ir.ToField(node.value.value, node.attr.value, line, column)
+            return ir.Unsupported("assignment to a nested attribute", line, column)
         return ir.Unsupported(f"assignment to {type(node).__name__}", line, column)
 
     def _target_index(self, node: cst.Subscript) -> ir.Expr:
@@ -222,7 +233,15 @@ class Lowering:
         if len(node.slice) != 1 or not isinstance(node.slice[0].slice, cst.Index):
             line, column = self._at(node)
             return ir.Unsupported("a subscript that is not one index", line, column)
-        return self.expr(node.slice[0].slice.value)
+        return self._index(node.slice[0].slice.value)
+
+    def _index(self, node: cst.BaseExpression) -> ir.Expr:
+        """An index; a string literal is a constant key (``d["X"]``)."""
+        key = string_key(node)
+        if key is not None:
+            line, column = self._at(node)
+            return ir.Text(key, line, column)
+        return self.expr(node)
 
     # -- expressions
 
@@ -238,6 +257,9 @@ class Lowering:
                 return Num(Fraction(node.value.replace("_", "")))
             except ValueError:
                 return ir.Unsupported(f"the number {node.value}", line, column)
+        key = string_key(node)
+        if key is not None:  # a constant key where one is used (d["X"], d.get("X")); else a string
+            return ir.Text(key, line, column)
         if isinstance(node, cst.Imaginary):
             return ir.Unsupported(f"the complex number {node.value}", line, column)
         if isinstance(node, cst.Name):
@@ -265,6 +287,15 @@ class Lowering:
         if isinstance(node, cst.Call):
             return ir.Invoke(self.expr(node.func), tuple(self._argument(a) for a in node.args), spelling(node.func),
                              line, column)
+        if isinstance(node, cst.Dict):
+            return self._mapping(node, line, column)
+        if isinstance(node, cst.Lambda):
+            name = f"{LAMBDA_PREFIX}{line}:{column}"
+            if name not in self.module.lambdas:
+                body = (ir.Return(self.expr(node.body), line, column),)
+                self.module.lambdas[name] = ir.Function(f"<lambda at line {line}>", self.parameters(node.params),
+                                                        body, self.module.path, line, column)
+            return ir.Name(name, line, column)
         if isinstance(node, cst.Comparison):
             operands = (self.expr(node.left),) + tuple(self.expr(c.comparator) for c in node.comparisons)
             operators = tuple(_COMPARISONS.get(type(c.operator), type(c.operator).__name__)
@@ -276,6 +307,24 @@ class Lowering:
         name = type(node).__name__
         return ir.Unsupported(_EXPRESSION_NAMES.get(name, f"the expression {name}"), line, column)
 
+    def _mapping(self, node: cst.Dict, line: int, column: int) -> ir.Expr:
+        keys: list[str | int] = []
+        items: list[ir.Argument] = []
+        for element in node.elements:
+            if not isinstance(element, cst.DictElement):
+                return ir.Unsupported("a dict with `**` unpacking", line, column)
+            key: str | int | None = string_key(element.key)
+            if key is None and isinstance(element.key, cst.Integer):
+                number = self.expr(element.key)
+                key = int(number.value) if isinstance(number, Num) else None
+            if key is None:
+                return ir.Unsupported("a dict whose keys are not string or integer literals", line, column)
+            if key in keys:
+                return ir.Unsupported("a dict with a repeated key", line, column)
+            keys.append(key)
+            items.append(ir.Argument(self.expr(element.value), repr(key)))
+        return ir.Invoke(ir.Name(DICT_LITERAL, line, column), tuple(items), "dict", line, column)
+
     def _subscript(self, node: cst.Subscript, line: int, column: int) -> ir.Expr:
         base = self.expr(node.value)
         if len(node.slice) == 1 and isinstance(node.slice[0].slice, cst.Slice):
@@ -285,7 +334,7 @@ class Lowering:
         indices: list[ir.Expr] = []
         for element in node.slice:
             if isinstance(element.slice, cst.Index):
-                indices.append(self.expr(element.slice.value))
+                indices.append(self._index(element.slice.value))
             else:
                 indices.append(ir.Unsupported("a slice among indices", line, column))
         return ir.Element(base, tuple(indices), line, column)

@@ -42,6 +42,7 @@ class ModuleInfo:
     positions: dict[cst.CSTNode, CodeRange]
     functions: dict[str, cst.FunctionDef] = field(default_factory=dict)
     classes: dict[str, dict[str, cst.FunctionDef]] = field(default_factory=dict)
+    class_nodes: dict[str, cst.ClassDef] = field(default_factory=dict)  # the definitions, by name
     imports: dict[str, Import] = field(default_factory=dict)
     constants: dict[str, list[cst.BaseExpression]] = field(default_factory=dict)
     rebound: set[str] = field(default_factory=set)  # names bound at top level by something other than one assignment
@@ -53,6 +54,7 @@ class ModuleInfo:
     # names bound before a `from M import *` of a project or outside module M, which may replace them
     starred_over: dict[str, list[str]] = field(default_factory=dict)
     lowered: dict[tuple[int, str], ir.Function] = field(default_factory=dict)  # by id(node), qualname
+    lambdas: dict[str, ir.Function] = field(default_factory=dict)  # by the name their lowering gave them
 
     def line(self, node: cst.CSTNode) -> int:
         pos = self.positions.get(node)
@@ -105,6 +107,7 @@ def _index_statement(info: ModuleInfo, stmt: cst.CSTNode, top: bool) -> None:
             if isinstance(item, cst.FunctionDef):
                 methods[item.name.value] = item
         info.classes[stmt.name.value] = methods
+        info.class_nodes[stmt.name.value] = stmt
         line = info.line(stmt)
         info.bindings[stmt.name.value] = Binding(stmt.name, ("class", str(line)), line,
                                                  f"`class {stmt.name.value}` (line {line})")

@@ -12,6 +12,8 @@ from verifier.claims.execute.functions import TABLE_SPELLINGS, math_constant
 from verifier.claims.execute.scope import (
     BuiltinCallee,
     Callee,
+    ConstructCallee,
+    Member,
     Host,
     InlineCallee,
     IsBound,
@@ -22,7 +24,8 @@ from verifier.claims.execute.scope import (
 )
 from verifier.claims.execute.expressions import dotted_name
 from verifier.claims.execute.state import State
-from verifier.claims.execute.values import MUTABLE, NONE, Seq, Stuck, Unknown, Value
+from verifier.claims.execute.values import MUTABLE, NONE, FunctionValue, Seq, Stuck, Unknown, Value
+from verifier.claims.frontends.python.classes import ClassModel, init_function, method_function, read_class
 from verifier.claims.frontends.python.lower import lower_expression, lower_function
 from verifier.claims.frontends.python.modules import (
     MATH_MODULES,
@@ -94,6 +97,7 @@ class PythonScope:
         self._constants: dict[tuple[str, str], Value] = {}
         self._busy: set[tuple[str, str]] = set()
         self._star_busy: set[tuple[str, str]] = set()
+        self._classes: dict[tuple[str, str], ClassModel | None] = {}
 
     def lower(self, module: ModuleInfo, node: cst.FunctionDef, qualname: str, owner: str | None = None
               ) -> ir.Function:
@@ -107,6 +111,8 @@ class PythonScope:
     def _global(self, host: Host, name: str, module: ModuleInfo, line: int) -> Value:
         if name == "None":
             return NONE
+        if name in ("NotImplemented", "Ellipsis", "__name__", "__file__"):
+            return Unknown(f"the built-in name {name} at line {line} is not a number")
         if name in ("True", "False"):
             return Num(Fraction(1 if name == "True" else 0))
         if name in module.conflicts:
@@ -133,6 +139,10 @@ class PythonScope:
             return Var(f"{base}.{target.name}" if base else target.name)
         if isinstance(target, ModuleImport):
             return Unknown(f"the module {name} used as a value at line {line}")
+        if name in module.lambdas:
+            return FunctionValue(module.lambdas[name], closure=True)
+        if name in module.functions and neutral_decorators(module.functions[name]):
+            return FunctionValue(self.lower(module, module.functions[name], name))
         if name in module.functions or name in module.classes:
             return Unknown(f"the function or class {name} used as a value at line {line} is not supported")
         source = self._star_source(host, module, name, line)
@@ -287,7 +297,12 @@ class PythonScope:
             if not neutral_decorators(node):
                 return OpaqueCallee(qualified(module, name))
             return InlineCallee(self.lower(module, node, name))
-        if name in module.classes or name in module.constants:
+        if name in module.classes:
+            model = self.class_model(module, name)
+            if model is not None and not model.reason:
+                return ConstructCallee((module.path, name), init_function(model))
+            return OpaqueCallee(qualified(module, name))
+        if name in module.constants:
             return OpaqueCallee(qualified(module, name))
         target = module.imports.get(name)
         if isinstance(target, ModuleImport):
@@ -316,6 +331,33 @@ class PythonScope:
         if any(m in MATH_MODULES for m in module.star_imports) and name in _STAR_MATH:
             return MathCallee(name)
         return OpaqueCallee(name)
+
+    # -- classes
+
+    def class_model(self, module: ModuleInfo, name: str) -> ClassModel | None:
+        key = (module.path, name)
+        if key not in self._classes:
+            self._classes[key] = None if name in module.rebound else read_class(module, name)
+        return self._classes[key]
+
+    def class_member(self, host: Host, cls: tuple[str, str], name: str, line: int) -> Member | None:
+        """``obj.name`` on an object of the class ``cls`` that holds no attribute ``name``."""
+        module = self.loader.module(cls[0])
+        model = self.class_model(module, cls[1])
+        if model is None:
+            return None
+        if name in model.others:
+            return Member("unknown", reason=f"{model.others[name]} (line {line})")
+        if name in model.properties:
+            return Member("property", method_function(model, name))
+        if name in model.methods:
+            return Member("static" if name in model.static else "method", method_function(model, name))
+        if name in model.constants and name not in model.assigned:
+            value = host.evaluate_detached(lower_expression(module, model.constants[name]), module.path)
+            if len(value) == 1 and not value[0][0].conditions:
+                return Member("constant", value=value[0][1])
+            return Member("unknown", reason=f"the class constant {cls[1]}.{name} (line {line}) is not followed")
+        return None
 
     # -- star imports of project modules (read, never imported)
 
