@@ -63,6 +63,8 @@ class Translator:
         self._atoms: dict[tuple, str] = {}  # canonical key -> aux variable name
         self.inverse_of: dict[str, PolyElement] = {}  # inverse variable -> the factor it inverts
         self._memo: dict[Expr, PolyElement] = {}
+        self._gen_ring: PolyRing | None = None
+        self._gen_index: dict[str, int] = {}
         self._counter = 0
         self._angle_scale: dict[tuple, int] = {}  # direction key -> lcm of coefficient denominators
         self._angle_step: dict[tuple, int] = {}  # direction key -> gcd of the scaled coefficients
@@ -90,8 +92,11 @@ class Translator:
         return name
 
     def gen(self, name: str) -> PolyElement:
-        index = [str(s) for s in self.ring.symbols].index(name)
-        return self.ring.gens[index]
+        # a table per ring: scanning the symbols at every variable is quadratic in their number
+        if self._gen_ring is not self.ring:
+            self._gen_index = {str(s): i for i, s in enumerate(self.ring.symbols)}
+            self._gen_ring = self.ring
+        return self.ring.gens[self._gen_index[name]]
 
     def printed(self, p: PolyElement) -> str:
         return format_poly(p, {a.name: a.meaning for a in self.aux})
