@@ -29,8 +29,7 @@ from verifier.model.functions import (
 # A constant exponent larger than this is refused: it would only blow up the algebra.
 MAX_EXPONENT = 1000
 MAX_TEXT_LENGTH = 400_000  # a 5,000-term sum of products is about 70,000
-# Nesting depth of a claim's syntax tree (a chain ``a + b - c*d ...`` is one level, however long): the
-# converter recurses into nested sub-expressions, so deeper trees are rejected here, with the claim's place.
+# Nesting depth of a claim's syntax tree (a chain ``a + b - c*d`` is one level): the converter recurses.
 MAX_NESTING = 200
 # Limits that keep hostile constants (``1e99999999``, towers of powers) from exhausting time or memory.
 MAX_LITERAL_EXPONENT = 4000
@@ -103,18 +102,15 @@ def parse_ast(source: ClaimSource, what: str = "expression") -> ast.expr:
 
 
 def _check_nesting(tree: ast.AST, what: str) -> None:
-    """ClaimSyntaxError when the tree is nested more than MAX_NESTING levels (walked without recursion).
-
-    The left operand of ``+ - * /`` continues its parent's chain (``a + b + c``) and does not count as
-    a level: the converter walks such chains with a loop."""
+    """ClaimSyntaxError when the tree is nested more than MAX_NESTING levels (walked without recursion);
+    the left operand of ``+ - * /`` continues its parent's chain, a level the converter walks by a loop."""
     stack: list[tuple[ast.AST, int]] = [(tree, 0)]
     while stack:
         node, depth = stack.pop()
         if depth > MAX_NESTING:
             raise ClaimSyntaxError(f"the {what} is nested too deeply (more than {MAX_NESTING} levels)", 0)
         if isinstance(node, ast.BinOp) and type(node.op) in _CHAIN_OPERATORS:
-            stack.append((node.left, depth))
-            stack.append((node.right, depth + 1))
+            stack.extend(((node.left, depth), (node.right, depth + 1)))
             continue
         stack.extend((child, depth + 1) for child in ast.iter_child_nodes(node))
 
@@ -265,8 +261,7 @@ class ExprConverter:
                 spine.append(spine[-1].left)  # type: ignore[arg-type]
             value = self._convert(spine[-1].left)
             for link in reversed(spine):
-                spelling = _OPERATOR_SPELLING[type(link.op)]
-                value = BinOp(spelling, value, self._convert(link.right))  # type: ignore[arg-type]
+                value = BinOp(_OPERATOR_SPELLING[type(link.op)], value, self._convert(link.right))  # type: ignore[arg-type]
             return value
         if op in (ast.Pow, ast.BitXor):
             return self.power(self._convert(node.left), node.right, node)
