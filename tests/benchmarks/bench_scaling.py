@@ -6,8 +6,8 @@ Usage: python tests/benchmarks/bench_scaling.py [--files N] [--repeat N] [--loca
   `grep -rl idealcheck: .` plus `python -c pass` on the same tree (interleaved rounds, medians).
 - straight-line function: extraction time of a function of 4L assignments over one of L; a linear
   executor gives about 4, one that rebuilds its locals per assignment about 16.
-- accumulation chain (`acc = acc + c*p`, 1,500 times) and a 500-term `returns` claim: the verdicts
-  (the goal is that both are decided).
+- accumulation chain (`acc = acc + c*p`, 1,500 and 20,000 times) and a 500- and 5,000-term `returns`
+  claim: the verdicts and wall times (the goal is that all are decided; no recursion limit).
 The command line runs in a fresh interpreter with byte-code caching on, as users run it.
 """
 from __future__ import annotations
@@ -85,25 +85,42 @@ def bench_locals(count: int) -> None:
 
 def verdicts_of(tree: Path, name: str, text: str) -> list[str]:
     (tree / name).write_text(text, encoding="utf-8")
-    done = subprocess.run([sys.executable, "-m", "verifier", "check", "--no-cache", "--format", "json", name],
-                          cwd=tree, env=ENV, capture_output=True, text=True)
+    start = time.monotonic()
+    done = subprocess.run([sys.executable, "-m", "verifier", "check", "--no-cache", "--timeout", "120",
+                           "--format", "json", name], cwd=tree, env=ENV, capture_output=True, text=True)
     claims = json.loads(done.stdout)["claims"]
-    return [f"{c['verdict']} ({(c.get('reason') or '')[:60]})" for c in claims]
+    seconds = time.monotonic() - start
+    return [f"{c['verdict']} ({(c.get('reason') or '')[:60]}) in {seconds:.1f} s wall" for c in claims]
+
+
+def accumulation_chain(steps: int, kinds: int = 100) -> str:
+    """``acc = acc + c*p_k`` ``steps`` times over ``kinds`` parameters, claimed regrouped by k."""
+    claim = f"acc0 + {steps // kinds}*c*(" + " + ".join(f"p{k}" for k in range(kinds)) + ")"
+    lines = [f"# idealcheck: returns {claim}",
+             "def accumulate(acc0, c, " + ", ".join(f"p{k}" for k in range(kinds)) + "):", "    acc = acc0"]
+    lines += [f"    acc = acc + c*p{i % kinds}" for i in range(steps)]
+    return "\n".join(lines + ["    return acc"]) + "\n"
+
+
+def term_claim(terms: int, rows: int = 50) -> str:
+    """A ``returns`` claim listing ``terms`` products a_i*b_j, over a chain that adds them one by one."""
+    pairs = [(i % rows, i // rows) for i in range(terms)]
+    params = [f"a{i}" for i in range(rows)] + [f"b{j}" for j in range(terms // rows)]
+    lines = ["# idealcheck: returns " + " + ".join(f"a{i}*b{j}" for i, j in pairs),
+             f"def dot({', '.join(params)}):", "    s = 0"]
+    lines += [f"    s = s + b{j}*a{i}" for i, j in pairs]
+    return "\n".join(lines + ["    return s"]) + "\n"
 
 
 def bench_deep() -> None:
-    chain = ["# idealcheck: returns acc0 + c*(" + " + ".join(f"p{i}" for i in range(1500)) + ")",
-             "def accumulate(acc0, c, " + ", ".join(f"p{i}" for i in range(1500)) + "):", "    acc = acc0"]
-    chain += [f"    acc = acc + c*p{i}" for i in range(1500)]
-    chain.append("    return acc")
-    terms = " + ".join(f"a{i}*b{i}" for i in range(500))
-    params = ", ".join(f"a{i}, b{i}" for i in range(500))
-    claim = [f"# idealcheck: returns {terms}", f"def dot({params}):",
-             "    return " + " + ".join(f"b{i}*a{i}" for i in range(500))]
+    """Row: 20,000-statement accumulation chain and a 5,000-term claim decided (goal), next to the sizes
+    of the issue's first measurement (1,500 and 500) in the same run."""
     with tempfile.TemporaryDirectory() as scratch:
         tree = Path(scratch)
-        print("1,500-operation accumulation chain:", verdicts_of(tree, "chain.py", "\n".join(chain) + "\n"))
-        print("500-term `returns` claim:", verdicts_of(tree, "terms.py", "\n".join(claim) + "\n"))
+        for steps in (1500, 20000):
+            print(f"{steps}-statement accumulation chain:", verdicts_of(tree, "chain.py", accumulation_chain(steps)))
+        for terms in (500, 5000):
+            print(f"{terms}-term `returns` claim:", verdicts_of(tree, "terms.py", term_claim(terms)))
 
 
 def main() -> None:

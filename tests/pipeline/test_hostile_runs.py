@@ -52,18 +52,15 @@ def test_a_claim_nested_too_deeply_is_an_error_at_its_line_and_the_run_goes_on(t
     assert verdicts[0].claim.location.line == 1 and "nested too deeply" in verdicts[0].reason
 
 
-def test_a_claim_that_cannot_be_passed_between_processes_becomes_an_error() -> None:
+def test_a_claim_nested_deeper_than_the_recursion_limit_passes_between_processes() -> None:
     deep: object = Var("x")
-    for _ in range(5000):  # deeper than pickling can follow within the recursion limit
+    for _ in range(5000):  # deeper than the recursion limit: pickled node by node, not recursively
         deep = Neg(deep)
     claim = Claim("a.c:3:1", Location("a.c", 3, 1), "expression", "x == -...-x",
                   obligations=(Obligation(Var("x"), deep),), dependencies=("a.c",))
-    with pytest.raises(RecursionError):
-        pickle.dumps(claim)
-    (replaced,) = _sendable([claim])
-    assert replaced.problem is not None and replaced.problem.verdict == "error"
-    assert replaced.location.line == 3 and "nested too deeply" in replaced.problem.message
-    pickle.dumps(replaced)
+    assert pickle.loads(pickle.dumps(claim)) == claim
+    (sent,) = _sendable([claim])
+    assert sent.problem is None and sent.obligations == claim.obligations
 
 
 def test_a_constant_past_the_default_integer_text_limit_is_decided(tmp_path: Path) -> None:

@@ -63,6 +63,7 @@ class Translator:
         self._atoms: dict[tuple, str] = {}  # canonical key -> aux variable name
         self.inverse_of: dict[str, PolyElement] = {}  # inverse variable -> the factor it inverts
         self._memo: dict[Expr, PolyElement] = {}
+        self._gen_ring: PolyRing | None = None; self._gen_index: dict[str, int] = {}  # noqa: E702
         self._counter = 0
         self._angle_scale: dict[tuple, int] = {}  # direction key -> lcm of coefficient denominators
         self._angle_step: dict[tuple, int] = {}  # direction key -> gcd of the scaled coefficients
@@ -90,8 +91,9 @@ class Translator:
         return name
 
     def gen(self, name: str) -> PolyElement:
-        index = [str(s) for s in self.ring.symbols].index(name)
-        return self.ring.gens[index]
+        if self._gen_ring is not self.ring:  # a table per ring: a scan per variable is quadratic
+            self._gen_index, self._gen_ring = {str(s): i for i, s in enumerate(self.ring.symbols)}, self.ring
+        return self.ring.gens[self._gen_index[name]]
 
     def printed(self, p: PolyElement) -> str:
         return format_poly(p, {a.name: a.meaning for a in self.aux})
@@ -104,8 +106,6 @@ class Translator:
     def value(self, expr: Expr) -> PolyElement:
         """``expr`` as a polynomial in the current ring; equal sub-expressions are translated once."""
         return self.lift(fold(expr, _Polynomials(self), self._memo))
-
-    # -- expressions
 
     def atom_name(self, key: tuple) -> str | None:
         return self._atoms.get(key)

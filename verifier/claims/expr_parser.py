@@ -12,6 +12,7 @@ from fractions import Fraction
 from typing import Sequence, Union
 
 from verifier.claims.claim_syntax import ClaimSource, ClaimSyntaxError, check_brackets, one_line
+from verifier.claims.long_chains import parse_long_chains
 from verifier.model.expr import PI, REAL_POWER, BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold
 from verifier.model.functions import (
     BARE_ONLY,
@@ -27,9 +28,8 @@ from verifier.model.functions import (
 
 # A constant exponent larger than this is refused: it would only blow up the algebra.
 MAX_EXPONENT = 1000
-MAX_TEXT_LENGTH = 20000
-# Nesting depth of a claim's syntax tree: deeper trees cannot be copied to a worker process or keyed for
-# the cache within Python's recursion limit, so they are rejected here, with the claim's place.
+MAX_TEXT_LENGTH = 400_000  # a 5,000-term sum of products is about 70,000
+# Nesting depth of a claim's syntax tree (a chain ``a + b - c*d`` is one level): the converter recurses.
 MAX_NESTING = 200
 # Limits that keep hostile constants (``1e99999999``, towers of powers) from exhausting time or memory.
 MAX_LITERAL_EXPONENT = 4000
@@ -39,6 +39,7 @@ _OPERATOR_SPELLING = {
     ast.Add: "+", ast.Sub: "-", ast.Mult: "*", ast.Div: "/", ast.FloorDiv: "//", ast.Mod: "%", ast.MatMult: "@",
     ast.LShift: "<<", ast.RShift: ">>", ast.BitAnd: "&", ast.BitOr: "|", ast.BitXor: "^", ast.Pow: "**",
 }
+_CHAIN_OPERATORS = (ast.Add, ast.Sub, ast.Mult, ast.Div)
 COMPARISON_SPELLING = {
     ast.Eq: "==", ast.NotEq: "!=", ast.Lt: "<", ast.LtE: "<=", ast.Gt: ">", ast.GtE: ">=", ast.Is: "is",
     ast.IsNot: "is not", ast.In: "in", ast.NotIn: "not in",
@@ -76,7 +77,8 @@ def parse_ast(source: ClaimSource, what: str = "expression") -> ast.expr:
     lead = len(source.text) - len(source.text.lstrip())
     body = source.text.strip()
     try:
-        tree = ast.parse(body, mode="eval")
+        chained = parse_long_chains(body)
+        tree = ast.Expression(chained) if chained is not None else ast.parse(body, mode="eval")
     except SyntaxError as exc:
         message = (exc.msg or "invalid syntax").rstrip(".")
         if not exc.offset or exc.offset > len(body):
@@ -100,12 +102,16 @@ def parse_ast(source: ClaimSource, what: str = "expression") -> ast.expr:
 
 
 def _check_nesting(tree: ast.AST, what: str) -> None:
-    """ClaimSyntaxError when the tree is nested more than MAX_NESTING levels (walked without recursion)."""
+    """ClaimSyntaxError when the tree is nested more than MAX_NESTING levels (walked without recursion);
+    the left operand of ``+ - * /`` continues its parent's chain, a level the converter walks by a loop."""
     stack: list[tuple[ast.AST, int]] = [(tree, 0)]
     while stack:
         node, depth = stack.pop()
         if depth > MAX_NESTING:
             raise ClaimSyntaxError(f"the {what} is nested too deeply (more than {MAX_NESTING} levels)", 0)
+        if isinstance(node, ast.BinOp) and type(node.op) in _CHAIN_OPERATORS:
+            stack.extend(((node.left, depth), (node.right, depth + 1)))
+            continue
         stack.extend((child, depth + 1) for child in ast.iter_child_nodes(node))
 
 
@@ -248,9 +254,15 @@ class ExprConverter:
 
     def binary(self, node: ast.BinOp) -> Expr:
         op = type(node.op)
-        if op in (ast.Add, ast.Sub, ast.Mult, ast.Div):
-            spelling = _OPERATOR_SPELLING[op]
-            return BinOp(spelling, self._convert(node.left), self._convert(node.right))  # type: ignore[arg-type]
+        if op in _CHAIN_OPERATORS:
+            # a chain ``a + b - c * d ...`` leans left: walk down its left operands with a loop
+            spine = [node]
+            while isinstance(spine[-1].left, ast.BinOp) and type(spine[-1].left.op) in _CHAIN_OPERATORS:
+                spine.append(spine[-1].left)  # type: ignore[arg-type]
+            value = self._convert(spine[-1].left)
+            for link in reversed(spine):
+                value = BinOp(_OPERATOR_SPELLING[type(link.op)], value, self._convert(link.right))  # type: ignore[arg-type]
+            return value
         if op in (ast.Pow, ast.BitXor):
             return self.power(self._convert(node.left), node.right, node)
         if op in (ast.Mod, ast.FloorDiv):

@@ -6,13 +6,13 @@ the claim names (None when there is none).
 from __future__ import annotations
 
 import re
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 
 from verifier.claims.execute import Seq, State, Unknown, Value
 from verifier.claims.execute.values import Record, as_expr
 from verifier.claims.obligations import ClaimProblem
 from verifier.model.claim import Condition
-from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var
+from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, Var, fold
 
 ConstantLookup = Callable[[str], "Value | None"]
 
@@ -72,37 +72,56 @@ def _component(value: Value, suffix: str) -> Value | None:
 
 def substitute(expr: Expr, state: State, constant: ConstantLookup) -> Value:
     """``expr`` (claim text) with the parameters and locals replaced by their values in ``state``."""
-    if isinstance(expr, Var):
-        return resolve_spelling(expr.name, state, constant)
-    if isinstance(expr, Num):
-        return expr
-    if isinstance(expr, Neg):
-        inner = substitute(expr.operand, state, constant)
-        inner_expr = as_expr(inner)
-        return Neg(inner_expr) if inner_expr is not None else _not_number(inner)
-    if isinstance(expr, BinOp):
-        left = substitute(expr.left, state, constant)
-        right = substitute(expr.right, state, constant)
+    return fold(expr, _Substitution(state, constant))
+
+
+class _Substitution:
+    """The fold behind ``substitute`` (a loop, not recursion: claims may be 5,000-term sums)."""
+
+    def __init__(self, state: State, constant: ConstantLookup) -> None:
+        self.state = state
+        self.constant = constant
+
+    def num(self, node: Num) -> Value:
+        return node
+
+    def var(self, node: Var) -> Value:
+        return resolve_spelling(node.name, self.state, self.constant)
+
+    def binop(self, node: BinOp, left: Value, right: Value) -> Value:
         left_expr, right_expr = as_expr(left), as_expr(right)
         if left_expr is None:
             return _not_number(left)
         if right_expr is None:
             return _not_number(right)
-        return BinOp(expr.op, left_expr, right_expr)
-    if isinstance(expr, Pow):
-        base = substitute(expr.base, state, constant)
+        return BinOp(node.op, left_expr, right_expr)
+
+    def neg(self, node: Neg, operand: Value) -> Value:
+        inner = as_expr(operand)
+        return Neg(inner) if inner is not None else _not_number(operand)
+
+    def pow(self, node: Pow, base: Value) -> Value:
         base_expr = as_expr(base)
-        return Pow(base_expr, expr.exponent) if base_expr is not None else _not_number(base)
-    args: list[Expr] = []
-    for arg in expr.args:
-        value = substitute(arg, state, constant)
-        arg_expr = as_expr(value)
-        if arg_expr is None:
+        return Pow(base_expr, node.exponent) if base_expr is not None else _not_number(base)
+
+    def call(self, node: Call, args: Sequence[Value]) -> Value:
+        exprs = _numbers(args)
+        return Call(node.function, exprs) if isinstance(exprs, tuple) else exprs
+
+    def opaque(self, node: Opaque, args: Sequence[Value]) -> Value:
+        exprs = _numbers(args)
+        return Opaque(node.name, exprs) if isinstance(exprs, tuple) else exprs
+
+
+def _numbers(values: Sequence[Value]) -> tuple[Expr, ...] | Unknown:
+    """The arguments as expressions, or the reason the first that is not a number is not one."""
+    out: list[Expr] = []
+    for value in values:
+        value_expr = as_expr(value)
+        if value_expr is None:
             return _not_number(value)
-        args.append(arg_expr)
-    if isinstance(expr, Call):
-        return Call(expr.function, tuple(args))
-    return Opaque(expr.name, tuple(args))
+        out.append(value_expr)
+    return tuple(out)
 
 
 def _not_number(value: Value) -> Unknown:

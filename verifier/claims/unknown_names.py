@@ -16,26 +16,18 @@ from verifier.claims.comments import CommentClaim
 from verifier.claims.expectation import comment_place
 from verifier.claims.language import ClaimSyntaxError, ParsedClaim, parse_claim_text
 from verifier.model.claim import Claim, ExtractionContext, Problem
-from verifier.model.expr import BinOp, Call, Expr, Neg, Opaque, Pow, Var
+from verifier.model.expr import Expr, Var, preorder
 
 _HEAD = re.compile(r"[^.\[]+")
 _FUNCTIONS = (ast.FunctionDef, ast.AsyncFunctionDef)
 
 
 def _expr_names(expr: Expr, into: list[str]) -> None:
-    if isinstance(expr, Var):
-        head = _HEAD.match(expr.name)
-        into.append(head.group(0) if head else expr.name)
-    elif isinstance(expr, BinOp):
-        _expr_names(expr.left, into)
-        _expr_names(expr.right, into)
-    elif isinstance(expr, Neg):
-        _expr_names(expr.operand, into)
-    elif isinstance(expr, Pow):
-        _expr_names(expr.base, into)
-    elif isinstance(expr, (Call, Opaque)):
-        for arg in expr.args:
-            _expr_names(arg, into)
+    """The head names of the variables, left to right (a loop: claims may be 5,000-term sums)."""
+    for node in preorder(expr):
+        if isinstance(node, Var):
+            head = _HEAD.match(node.name)
+            into.append(head.group(0) if head else node.name)
 
 
 def _parameters(node: ast.FunctionDef | ast.AsyncFunctionDef) -> list[str]:

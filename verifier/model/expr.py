@@ -11,42 +11,91 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Callable, Iterator, Literal, Mapping, MutableMapping, Protocol, Sequence, TypeVar, Union
+from typing import Any, Callable, ClassVar, Iterator, Literal, Mapping, MutableMapping, Protocol, Sequence, TypeVar, Union
 
 from verifier.model.functions import CONSTANTS, FUNCTIONS
 
 
-@dataclass(frozen=True)
-class Num:
+class _Node:
+    """Value semantics for expression nodes without recursion.
+
+    The generated dataclass ``__eq__``, ``__hash__``, ``__repr__`` and the pickle protocol all recurse
+    into children, which fails on the deep trees symbolic execution builds (20,000 chained additions).
+    Here the hash is computed once, when a node is built, from its children's cached hashes; equality,
+    the text and pickling walk the tree with explicit stacks.  Pickling writes the distinct nodes in
+    post-order as flat records (sharing survives); the cached hash is never written, since string
+    hashes differ between processes.
+    """
+
+    _SCALARS: ClassVar[tuple[str, ...]] = ()
+    _hash: int
+
+    def __post_init__(self) -> None:
+        kids = children(self)  # type: ignore[arg-type]
+        key = (type(self).__name__, self._scalar_values(), tuple(kid._hash for kid in kids))  # type: ignore[union-attr]
+        object.__setattr__(self, "_hash", hash(key))
+
+    def _scalar_values(self) -> tuple[Any, ...]:
+        return tuple(getattr(self, name) for name in self._SCALARS)
+
+    def __hash__(self) -> int:
+        return self._hash
+
+    def __eq__(self, other: object) -> bool:
+        if self is other:
+            return True
+        if type(other) is not type(self):
+            return NotImplemented
+        return _same_tree(self, other)  # type: ignore[arg-type]
+
+    def __ne__(self, other: object) -> bool:
+        equal = self.__eq__(other)
+        return equal if equal is NotImplemented else not equal
+
+    def __reduce__(self) -> tuple[Any, ...]:
+        return (_rebuild_tree, (_records(self),))  # type: ignore[arg-type]
+
+    def __repr__(self) -> str:
+        return _tree_repr(self)  # type: ignore[arg-type]
+
+
+@dataclass(frozen=True, eq=False, repr=False)
+class Num(_Node):
     """An exact rational constant (decimal literals keep their exact decimal value)."""
 
     value: Fraction
 
+    _SCALARS = ("value",)
 
-@dataclass(frozen=True)
-class Var:
+
+@dataclass(frozen=True, eq=False, repr=False)
+class Var(_Node):
     """A real variable; dotted names and constant subscripts are plain names (``q.w``, ``v[0]``)."""
 
     name: str
+
+    _SCALARS = ("name",)
 
 
 BinaryOperator = Literal["+", "-", "*", "/"]
 
 
-@dataclass(frozen=True)
-class BinOp:
+@dataclass(frozen=True, eq=False, repr=False)
+class BinOp(_Node):
     op: BinaryOperator
     left: "Expr"
     right: "Expr"
 
+    _SCALARS = ("op",)
 
-@dataclass(frozen=True)
-class Neg:
+
+@dataclass(frozen=True, eq=False, repr=False)
+class Neg(_Node):
     operand: "Expr"
 
 
-@dataclass(frozen=True)
-class Pow:
+@dataclass(frozen=True, eq=False, repr=False)
+class Pow(_Node):
     """``base ** exponent`` with a constant rational exponent.
 
     Integer exponents (negative ones mean division); a denominator of 2 means a square root
@@ -56,21 +105,25 @@ class Pow:
     base: "Expr"
     exponent: Fraction
 
+    _SCALARS = ("exponent",)
+
 
 # canonical name -> number of arguments: a view of the function table (verifier/model/functions.py)
 KNOWN_FUNCTIONS: dict[str, int] = {name: entry.arity for name, entry in FUNCTIONS.items()}
 
 
-@dataclass(frozen=True)
-class Call:
+@dataclass(frozen=True, eq=False, repr=False)
+class Call(_Node):
     """A call of a function of the table ``FUNCTIONS`` (``pow`` is parsed into ``Pow``)."""
 
     function: str
     args: tuple["Expr", ...]
 
+    _SCALARS = ("function",)
 
-@dataclass(frozen=True)
-class Opaque:
+
+@dataclass(frozen=True, eq=False, repr=False)
+class Opaque(_Node):
     """A value the tool cannot see into (an unresolved call in Python code), or a named constant.
 
     The same name applied to the same arguments is the same value; nothing else is known about it.
@@ -81,8 +134,23 @@ class Opaque:
     name: str
     args: tuple["Expr", ...]
 
+    _SCALARS = ("name",)
+
 
 Expr = Union[Num, Var, BinOp, Neg, Pow, Call, Opaque]
+
+
+def children(expr: Expr) -> tuple[Expr, ...]:
+    if isinstance(expr, BinOp):
+        return (expr.left, expr.right)
+    if isinstance(expr, Neg):
+        return (expr.operand,)
+    if isinstance(expr, Pow):
+        return (expr.base,)
+    if isinstance(expr, (Call, Opaque)):
+        return expr.args
+    return ()
+
 
 # The number pi: an opaque constant.  Proofs hold for every value of it; since no witness can be given in
 # terms of an unknown constant, a claim whose difference depends on it is never refuted.
@@ -122,16 +190,73 @@ class ExprFold(Protocol[T]):
     def opaque(self, node: Opaque, args: Sequence[T]) -> T: ...
 
 
-def children(expr: Expr) -> tuple[Expr, ...]:
-    if isinstance(expr, BinOp):
-        return (expr.left, expr.right)
-    if isinstance(expr, Neg):
-        return (expr.operand,)
-    if isinstance(expr, Pow):
-        return (expr.base,)
-    if isinstance(expr, (Call, Opaque)):
-        return expr.args
-    return ()
+def _same_tree(first: Expr, second: Expr) -> bool:
+    """Structural equality of two trees, walked with a stack (pairs already compared are skipped)."""
+    stack = [(first, second)]
+    compared: set[tuple[int, int]] = set()
+    while stack:
+        left, right = stack.pop()
+        if left is right or (id(left), id(right)) in compared:
+            continue
+        if (type(left) is not type(right) or left._hash != right._hash
+                or left._scalar_values() != right._scalar_values()):
+            return False
+        mine, theirs = children(left), children(right)
+        if len(mine) != len(theirs):
+            return False
+        compared.add((id(left), id(right)))
+        stack.extend(zip(mine, theirs))
+    return True
+
+
+# A pickled tree: its distinct nodes in post-order, each (class name, scalar fields, indices of children).
+_Record = tuple[str, tuple[Any, ...], tuple[int, ...]]
+
+
+def _records(expr: Expr) -> tuple[_Record, ...]:
+    index: dict[int, int] = {}
+    out: list[_Record] = []
+    for node in postorder(expr):
+        index[id(node)] = len(out)
+        out.append((type(node).__name__, node._scalar_values(), tuple(index[id(kid)] for kid in children(node))))
+    return tuple(out)
+
+
+def _rebuild_tree(records: Sequence[_Record]) -> Expr:
+    built: list[Expr] = []
+    for kind, scalars, kids in records:
+        parts = [built[at] for at in kids]
+        built.append(_BUILDERS[kind](scalars, parts))
+    return built[-1]
+
+
+_BUILDERS: dict[str, Callable[[tuple[Any, ...], list[Any]], Expr]] = {
+    "Num": lambda scalars, _kids: Num(*scalars),
+    "Var": lambda scalars, _kids: Var(*scalars),
+    "BinOp": lambda scalars, kids: BinOp(scalars[0], kids[0], kids[1]),
+    "Neg": lambda _scalars, kids: Neg(kids[0]),
+    "Pow": lambda scalars, kids: Pow(kids[0], scalars[0]),
+    "Call": lambda scalars, kids: Call(scalars[0], tuple(kids)),
+    "Opaque": lambda scalars, kids: Opaque(scalars[0], tuple(kids)),
+}
+
+
+def _tree_repr(expr: Expr) -> str:
+    """The dataclass-style text (``BinOp(op='+', left=Var(name='x'), ...)``), built bottom-up."""
+    shown: dict[int, str] = {}
+    for node in postorder(expr):
+        values: list[str] = []
+        for field in node.__dataclass_fields__:
+            value = getattr(node, field)
+            if isinstance(value, _Node):
+                values.append(f"{field}={shown[id(value)]}")
+            elif isinstance(value, tuple):
+                items = [shown[id(item)] for item in value]
+                values.append(f"{field}=({', '.join(items)}{',' if len(items) == 1 else ''})")
+            else:
+                values.append(f"{field}={value!r}")
+        shown[id(node)] = f"{type(node).__name__}({', '.join(values)})"
+    return shown[id(expr)]
 
 
 def _apply(folder: ExprFold[T], node: Expr, folded: Mapping[int, T]) -> T:

@@ -17,10 +17,10 @@ from verifier.claims.execute.values import (
     int_of,
     is_array,
 )
-from verifier.model.expr import BinOp, Call, Neg, Num, Opaque, Pow
+from verifier.model.expr import BinOp, Call, Expr, Neg, Num, Opaque, Pow, children
 from verifier.model.numbers import fraction_text  # re-exported
 
-MAX_TREE_SIZE = 50000  # nodes of an expression counted as a tree (shared parts counted each time)
+MAX_TREE_SIZE = 250_000  # 20,000 chained `acc + c*p` are 80,000; nodes of an expression counted as a tree (shared parts counted each time)
 MAX_CONSTANT_EXPONENT = 64  # folding n**k of constants beyond this is left symbolic
 MAX_REPEAT = 4096  # longest sequence built by `seq * n` or zeros(n)
 ARITHMETIC = frozenset({"+", "-", "*", "/", "**"})
@@ -40,24 +40,28 @@ class Arithmetic:
         return self._counter
 
     def tree_size(self, value: Value) -> int:
-        """Size of an expression as a tree; values built from shared parts can be exponentially large."""
+        """Size of an expression as a tree; values built from shared parts can be exponentially large.
+
+        Sizes are cached per node; nodes not yet sized are sized children first with a stack (no
+        recursion: an accumulation chain is 20,000 levels deep)."""
         if as_expr(value) is None:
             return 1
-        cached = self._sizes.get(id(value))
-        if cached is not None and cached[0] is value:
-            return cached[1]
-        if isinstance(value, BinOp):
-            size = 1 + self.tree_size(value.left) + self.tree_size(value.right)
-        elif isinstance(value, Neg):
-            size = 1 + self.tree_size(value.operand)
-        elif isinstance(value, Pow):
-            size = 1 + self.tree_size(value.base)
-        elif isinstance(value, (Call, Opaque)):
-            size = 1 + sum(self.tree_size(a) for a in value.args)
-        else:
-            size = 1
-        self._sizes[id(value)] = (value, size)
-        return size
+        stack: list[tuple[Expr, bool]] = [(value, False)]  # type: ignore[list-item]
+        while stack:
+            node, expanded = stack.pop()
+            if not expanded:
+                if self._size_of(node) is None:
+                    stack.append((node, True))
+                    stack.extend((kid, False) for kid in children(node) if self._size_of(kid) is None)
+                continue
+            if self._size_of(node) is None:
+                size = 1 + sum(self._size_of(kid) or 0 for kid in children(node))
+                self._sizes[id(node)] = (node, size)
+        return self._size_of(value) or 1  # type: ignore[arg-type]
+
+    def _size_of(self, node: Expr) -> int | None:
+        cached = self._sizes.get(id(node))
+        return cached[1] if cached is not None and cached[0] is node else None
 
     def bounded(self, value: Value, line: int) -> Value:
         if self.tree_size(value) > MAX_TREE_SIZE:

@@ -53,13 +53,15 @@ def stated_lengths(conditions: Iterable[tuple[str, int | None]]) -> dict[str, in
 
 
 def _nodes(node: object) -> Iterator[object]:
-    yield node
-    if isinstance(node, tuple):
-        for item in node:
-            yield from _nodes(item)
-    elif dataclasses.is_dataclass(node) and not isinstance(node, type):
-        for field in dataclasses.fields(node):
-            yield from _nodes(getattr(node, field.name))
+    """Every node in pre-order, with a stack (nested generators cost the depth at every item)."""
+    stack = [node]
+    while stack:
+        current = stack.pop()
+        yield current
+        if isinstance(current, tuple):
+            stack.extend(reversed(current))
+        elif dataclasses.is_dataclass(current) and not isinstance(current, type):
+            stack.extend(getattr(current, field.name) for field in reversed(dataclasses.fields(current)))
 
 
 def _constant(node: object) -> int | None:
